@@ -1,0 +1,907 @@
+//! Claims: from a cue match to a cause span, an effect span, a sign and a modality.
+//!
+//! The matcher says where a cue's words are; this stage decides what the cue is about. Spans are
+//! noun-phrase-like runs of words found by walking outwards from the cue and stopping at clause
+//! breaks: punctuation, conjunctions, relative pronouns, auxiliaries, reporting verbs and (after
+//! the cue) prepositions, all listed in `patterns/lexicon.toml`. The words between a slot and its
+//! cue (the *verb group*: "has not been shown to") are read for negation and hedging; a clause
+//! opened by "if" makes a claim conditional; a final "?" makes it a question. The stage is pure: it
+//! sees one sentence (and the one before it) and does no I/O.
+
+use crate::cues::{CueMatch, CueSet, SlotPlace};
+use crate::model::{Claim, Kind, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
+use crate::normalize::Normalizer;
+use crate::patterns::{Lexicon, PatternSet};
+use regex::Regex;
+use std::collections::HashSet;
+use std::sync::OnceLock;
+
+/// A word or punctuation mark of a sentence; offsets are bytes into the sentence.
+#[derive(Debug, Clone)]
+pub struct Token {
+    pub start: usize,
+    pub end: usize,
+    pub lower: String,
+    pub word: bool,
+}
+
+fn token_regex() -> &'static Regex {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    RE.get_or_init(|| {
+        Regex::new(r"[\p{L}\p{N}]+(?:['’\-.][\p{L}\p{N}]+)*|\S")
+            .expect("static token regex is valid")
+    })
+}
+
+/// Split a sentence into tokens.
+pub fn tokenize(sentence: &str) -> Vec<Token> {
+    token_regex()
+        .find_iter(sentence)
+        .map(|m| {
+            let s = m.as_str();
+            let word = s.chars().next().is_some_and(char::is_alphanumeric);
+            Token {
+                start: m.start(),
+                end: m.end(),
+                lower: s.to_lowercase().replace('’', "'"),
+                word,
+            }
+        })
+        .collect()
+}
+
+/// The outcome of one cue match, kept for `hearsay explain`.
+#[derive(Debug, Clone)]
+pub struct Attempt {
+    pub cue: String,
+    /// The cue's words as matched.
+    pub matched: String,
+    pub result: Result<Claim, String>,
+    /// How the decision was reached, in words.
+    pub notes: Vec<String>,
+}
+
+/// A sentence to extract from, with its place in the document.
+#[derive(Debug, Clone, Copy)]
+pub struct SentenceRef<'a> {
+    pub text: &'a str,
+    /// Byte offset of the sentence in the document.
+    pub offset: usize,
+}
+
+/// Where a sentence came from, for the claim's `source`.
+#[derive(Debug, Clone)]
+pub struct Origin<'a> {
+    pub path: &'a str,
+    pub line: usize,
+    pub column: usize,
+    pub page: Option<u32>,
+    pub record: Option<&'a str>,
+}
+
+/// Turns cue matches into claims.
+#[derive(Debug)]
+pub struct Extractor {
+    pub cues: CueSet,
+    pub lexicon: Lexicon,
+    pub normalizer: Normalizer,
+    verb_group: HashSet<String>,
+    right_skip: HashSet<String>,
+    single_negators: HashSet<String>,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct Span {
+    /// Token range [from, to).
+    from: usize,
+    to: usize,
+}
+
+impl Span {
+    fn is_empty(&self) -> bool {
+        self.from >= self.to
+    }
+}
+
+/// A slot as chosen, before keys are built.
+#[derive(Debug, Clone)]
+struct Chosen {
+    /// Byte range in the document.
+    start: usize,
+    end: usize,
+    text: String,
+    /// Text used for the key (the span less any sign word).
+    key_text: String,
+    sign: Option<Polarity>,
+    negated: bool,
+}
+
+const CLAUSE_CAP_EXTRA: usize = 4;
+
+impl Extractor {
+    pub fn new(set: &PatternSet) -> Result<Extractor, String> {
+        let lexicon = set.lexicon.clone();
+        let cues = CueSet::new(set)?;
+        let normalizer = Normalizer::new(&lexicon);
+        let single = |v: &Vec<Vec<String>>| {
+            v.iter()
+                .filter(|p| p.len() == 1)
+                .map(|p| p[0].clone())
+                .collect::<HashSet<_>>()
+        };
+        let single_negators = single(&lexicon.negators);
+        let mut verb_group: HashSet<String> = lexicon.fillers.iter().cloned().collect();
+        verb_group.extend(lexicon.auxiliaries.iter().cloned());
+        verb_group.extend(single_negators.iter().cloned());
+        verb_group.extend(single(&lexicon.hedges));
+        let right_skip = lexicon
+            .fillers
+            .iter()
+            .filter(|w| {
+                !lexicon.prepositions.contains(*w)
+                    && w.as_str() != "to"
+                    && !lexicon.auxiliaries.contains(*w)
+            })
+            .cloned()
+            .collect();
+        Ok(Extractor {
+            cues,
+            lexicon,
+            normalizer,
+            verb_group,
+            right_skip,
+            single_negators,
+        })
+    }
+
+    fn adverb(&self, w: &str) -> bool {
+        w.len() > 5 && w.ends_with("ly") && !self.lexicon.not_adverbs.contains(w)
+    }
+
+    /// A word that ends a noun-phrase span in either direction.
+    fn np_boundary(&self, t: &Token) -> bool {
+        let l = &self.lexicon;
+        !t.word
+            || l.clause_breaks.contains(&t.lower)
+            || l.relatives.contains(&t.lower)
+            || l.auxiliaries.contains(&t.lower)
+            || l.reporting_verbs.contains(&t.lower)
+            || self.single_negators.contains(&t.lower)
+    }
+
+    /// Punctuation that closes a clause.
+    fn clause_punct(t: &Token) -> bool {
+        !t.word
+            && matches!(
+                t.lower.as_str(),
+                "," | ";" | ":" | "(" | ")" | "[" | "]" | "." | "!" | "?" | "—" | "–"
+            )
+    }
+
+    fn clause_boundary(&self, t: &Token) -> bool {
+        Self::clause_punct(t) || (t.word && self.lexicon.clause_breaks.contains(&t.lower))
+    }
+
+    fn strip_determiners(&self, toks: &[Token], mut s: Span) -> Span {
+        while s.from < s.to && self.lexicon.determiners.contains(&toks[s.from].lower) {
+            s.from += 1;
+        }
+        s
+    }
+
+    /// Walk back from token `from` (exclusive): the verb group, then the noun phrase.
+    fn walk_back(
+        &self,
+        toks: &[Token],
+        from: usize,
+        blocked: &[bool],
+        notes: &mut Vec<String>,
+    ) -> Span {
+        let mut i = from;
+        while i > 0 && matches!(toks[i - 1].lower.as_str(), "," | ";") {
+            i -= 1;
+        }
+        while i > 0
+            && !blocked[i - 1]
+            && toks[i - 1].word
+            && (self.verb_group.contains(&toks[i - 1].lower) || self.adverb(&toks[i - 1].lower))
+        {
+            i -= 1;
+        }
+        if i < from {
+            notes.push(format!(
+                "verb group before the cue: \"{}\"",
+                join(toks, i, from)
+            ));
+        }
+        if i > 0 && matches!(toks[i - 1].lower.as_str(), "which" | "that" | "who") {
+            // "X, which in turn reduces Z": the cause is the antecedent of the relative pronoun.
+            i -= 1;
+            if i > 0 && toks[i - 1].lower == "," {
+                i -= 1;
+            }
+            notes.push("relative pronoun: the slot is its antecedent".into());
+        }
+        let end = i;
+        while i > 0
+            && end - i < self.lexicon.max_words
+            && !blocked[i - 1]
+            && !self.np_boundary(&toks[i - 1])
+        {
+            i -= 1;
+        }
+        self.strip_determiners(toks, Span { from: i, to: end })
+    }
+
+    /// Walk forward from token `from`: the noun phrase after a cue.
+    fn walk_forward(&self, toks: &[Token], from: usize, blocked: &[bool]) -> Span {
+        let mut j = from;
+        while j < toks.len() && matches!(toks[j].lower.as_str(), "," | ";" | ":") {
+            j += 1;
+        }
+        while j < toks.len()
+            && toks[j].word
+            && (self.right_skip.contains(&toks[j].lower) || self.adverb(&toks[j].lower))
+        {
+            j += 1;
+        }
+        let start = j;
+        // "an increase in Y": the change noun and its link belong to the span (read_sign reads them).
+        let mut k = j;
+        while k < toks.len() && self.lexicon.determiners.contains(&toks[k].lower) {
+            k += 1;
+        }
+        if k + 1 < toks.len()
+            && (self.lexicon.increase_nouns.contains(&toks[k].lower)
+                || self.lexicon.decrease_nouns.contains(&toks[k].lower))
+            && self.lexicon.change_links.contains(&toks[k + 1].lower)
+        {
+            j = k + 2;
+        }
+        while j < toks.len()
+            && j - start < self.lexicon.max_words
+            && !blocked[j]
+            && !(self.np_boundary(&toks[j])
+                && !(j == start && self.single_negators.contains(&toks[j].lower)))
+            && !self.lexicon.prepositions.contains(&toks[j].lower)
+        {
+            j += 1;
+        }
+        Span { from: start, to: j }
+    }
+
+    /// The clause before token `from`, for connective cues.
+    fn clause_back(&self, toks: &[Token], from: usize) -> Span {
+        let mut from = from;
+        while from > 0
+            && (Self::clause_punct(&toks[from - 1])
+                || matches!(toks[from - 1].lower.as_str(), "and" | "but" | "so"))
+        {
+            from -= 1;
+        }
+        let mut i = from;
+        while i > 0 && !self.clause_boundary(&toks[i - 1]) {
+            i -= 1;
+        }
+        let mut s = self.strip_determiners(toks, Span { from: i, to: from });
+        // "Erosion is because of traffic": the copula belongs to the cue, not the clause.
+        while s.to > s.from + 1 && self.lexicon.auxiliaries.contains(&toks[s.to - 1].lower) {
+            s.to -= 1;
+        }
+        s.to = s.to.min(s.from + self.lexicon.max_words + CLAUSE_CAP_EXTRA);
+        s
+    }
+
+    /// The clause from token `from` on, for connective cues.
+    fn clause_forward(&self, toks: &[Token], from: usize) -> Span {
+        let mut j = from;
+        while j < toks.len()
+            && (Self::clause_punct(&toks[j]) || self.lexicon.determiners.contains(&toks[j].lower))
+        {
+            j += 1;
+        }
+        let start = j;
+        while j < toks.len()
+            && !Self::clause_punct(&toks[j])
+            && !(j > start && toks[j].word && self.lexicon.clause_breaks.contains(&toks[j].lower))
+        {
+            j += 1;
+        }
+        Span {
+            from: start,
+            to: j.min(start + self.lexicon.max_words + CLAUSE_CAP_EXTRA),
+        }
+    }
+
+    /// Read sign words and change nouns at the start of an effect span.
+    fn read_sign(&self, toks: &[Token], s: Span) -> (Span, Option<Polarity>, bool) {
+        let l = &self.lexicon;
+        let mut s = s;
+        let mut negated = false;
+        if !s.is_empty()
+            && matches!(
+                toks[s.from].lower.as_str(),
+                "no" | "neither" | "nothing" | "none"
+            )
+        {
+            negated = true;
+            s.from += 1;
+        }
+        s = self.strip_determiners(toks, s);
+        let mut sign = None;
+        if s.to - s.from >= 3
+            && toks[s.from + 1].word
+            && l.change_links.contains(&toks[s.from + 1].lower)
+        {
+            let w = &toks[s.from].lower;
+            if l.increase_nouns.contains(w) {
+                sign = Some(Polarity::Increase);
+            } else if l.decrease_nouns.contains(w) {
+                sign = Some(Polarity::Decrease);
+            }
+            if sign.is_some() {
+                s.from += 2;
+                s = self.strip_determiners(toks, s);
+            }
+        }
+        (s, sign, negated)
+    }
+
+    fn sign_word(&self, w: &str) -> Option<Polarity> {
+        if self.lexicon.sign_increase.contains(w) {
+            Some(Polarity::Increase)
+        } else if self.lexicon.sign_decrease.contains(w) {
+            Some(Polarity::Decrease)
+        } else {
+            None
+        }
+    }
+
+    fn choose(
+        &self,
+        toks: &[Token],
+        sent: SentenceRef<'_>,
+        span: Span,
+        effect_side: bool,
+    ) -> Option<Chosen> {
+        let (span, mut sign, negated) = if effect_side {
+            self.read_sign(toks, span)
+        } else {
+            (span, None, false)
+        };
+        if span.is_empty() {
+            return None;
+        }
+        let mut key_from = span.from;
+        if effect_side {
+            if let Some(p) = self.sign_word(&toks[span.from].lower) {
+                if span.to - span.from > 1 {
+                    sign = sign.or(Some(p));
+                    key_from += 1;
+                }
+            }
+        }
+        let (bs, be) = (toks[span.from].start, toks[span.to - 1].end);
+        let text = collapse(&sent.text[bs..be]);
+        let key_text = collapse(&sent.text[toks[key_from].start..be]);
+        Some(Chosen {
+            start: sent.offset + bs,
+            end: sent.offset + be,
+            text,
+            key_text,
+            sign,
+            negated,
+        })
+    }
+
+    fn choose_bytes(&self, sent: SentenceRef<'_>, start: usize, end: usize) -> Option<Chosen> {
+        let raw = &sent.text[start..end];
+        let toks = tokenize(raw);
+        let span = self.strip_determiners(
+            &toks,
+            Span {
+                from: 0,
+                to: toks.len(),
+            },
+        );
+        if span.is_empty() || span.to - span.from > self.lexicon.max_words + CLAUSE_CAP_EXTRA {
+            return None;
+        }
+        let shifted = SentenceRef {
+            text: raw,
+            offset: sent.offset + start,
+        };
+        self.choose(&toks, shifted, span, false)
+    }
+
+    fn modality(
+        &self,
+        toks: &[Token],
+        cue_from: usize,
+        sentence: &str,
+        notes: &mut Vec<String>,
+    ) -> Modality {
+        if sentence.trim_end().ends_with('?') {
+            notes.push("the sentence is a question".into());
+            return Modality::Question;
+        }
+        let mut clause_start = cue_from;
+        while clause_start > 0 {
+            let t = &toks[clause_start - 1];
+            if Self::clause_punct(t)
+                || matches!(
+                    t.lower.as_str(),
+                    "but" | "whereas" | "while" | "although" | "though" | "yet"
+                )
+            {
+                break;
+            }
+            clause_start -= 1;
+        }
+        let prefix = &toks[clause_start..cue_from];
+        let found = |phrases: &[Vec<String>], within: &[Token]| -> Option<String> {
+            for (i, _) in within.iter().enumerate() {
+                for p in phrases {
+                    if within.len() - i >= p.len()
+                        && p.iter().zip(&within[i..]).all(|(w, t)| *w == t.lower)
+                    {
+                        // "not only ... but also" is not a denial.
+                        if p[0] == "not" && within.get(i + 1).is_some_and(|t| t.lower == "only") {
+                            continue;
+                        }
+                        return Some(p.join(" "));
+                    }
+                }
+            }
+            None
+        };
+        if let Some(w) = found(&self.lexicon.negators, prefix) {
+            notes.push(format!("negated by \"{w}\""));
+            return Modality::Negated;
+        }
+        if let Some(w) = found(&self.lexicon.conditionals, &toks[..cue_from]) {
+            notes.push(format!("conditional on \"{w}\""));
+            return Modality::Conditional;
+        }
+        if let Some(w) = found(&self.lexicon.hedges, prefix) {
+            notes.push(format!("hedged by \"{w}\""));
+            return Modality::Hedged;
+        }
+        Modality::Asserted
+    }
+
+    /// Extract the claims of one sentence. `prev` is the sentence before it in the same block, for
+    /// connectives that open a sentence. Candidates come from the prefilter.
+    pub fn extract(
+        &self,
+        sent: SentenceRef<'_>,
+        prev: Option<SentenceRef<'_>>,
+        origin: &Origin<'_>,
+        candidates: &[usize],
+        out: &mut Vec<Claim>,
+        mut trace: Option<&mut Vec<Attempt>>,
+    ) {
+        let matches = self.cues.match_sentence(sent.text, candidates);
+        if matches.is_empty() {
+            return;
+        }
+        let toks = tokenize(sent.text);
+        let mut blocked = vec![false; toks.len()];
+        let cue_tokens: Vec<(usize, usize)> = matches
+            .iter()
+            .map(|m| token_range(&toks, m.start, m.end))
+            .collect();
+        let noun_uses: Vec<Option<String>> = matches
+            .iter()
+            .zip(&cue_tokens)
+            .map(|(m, &(a, _))| self.noun_use(m, &toks, a))
+            .collect();
+        // A cue word used as a noun ("the spawning") stays part of the spans around it.
+        for (&(a, b), nu) in cue_tokens.iter().zip(&noun_uses) {
+            if nu.is_none() {
+                blocked[a..b].iter_mut().for_each(|x| *x = true);
+            }
+        }
+        let sentence_text = collapse(sent.text);
+        for ((m, &(ca, cb)), nu) in matches.iter().zip(&cue_tokens).zip(noun_uses) {
+            let mut notes = Vec::new();
+            let result = if let Some(why) = nu {
+                Err(why)
+            } else {
+                self.claim_for(
+                    m,
+                    (ca, cb),
+                    &toks,
+                    &blocked,
+                    sent,
+                    prev,
+                    origin,
+                    &sentence_text,
+                    &mut notes,
+                )
+            };
+            if let Ok(c) = &result {
+                out.push(c.clone());
+            }
+            if let Some(t) = trace.as_deref_mut() {
+                t.push(Attempt {
+                    cue: self.cues.cues[m.cue].spec.id.clone(),
+                    matched: collapse(&sent.text[m.start..m.end]),
+                    result,
+                    notes,
+                });
+            }
+        }
+    }
+
+    /// A verb cue right after a determiner or preposition is a noun or adjective use ("an
+    /// increase in", "the increased risk"): not this cue.
+    fn noun_use(&self, m: &CueMatch, toks: &[Token], ca: usize) -> Option<String> {
+        let cue = &self.cues.cues[m.cue];
+        if cue.left.is_none() || cue.spec.clause_spans || !cue.verb_first {
+            return None;
+        }
+        // "the limit of 5 knots", "the limit is": a verb is not followed by "of" or an auxiliary.
+        let cb = toks
+            .iter()
+            .position(|t| t.start >= m.end)
+            .unwrap_or(toks.len());
+        if let Some(next) = toks.get(cb) {
+            if next.lower == "of" || self.lexicon.auxiliaries.contains(&next.lower) {
+                return Some(format!(
+                    "\"{}\" after the cue: a noun use, not a statement",
+                    next.lower
+                ));
+            }
+        }
+        let Some(before) = ca.checked_sub(1).map(|i| &toks[i].lower) else {
+            return None;
+        };
+        if self.lexicon.determiners.contains(before)
+            || (self.lexicon.prepositions.contains(before) && before != "to")
+        {
+            return Some(format!(
+                "\"{before}\" before the cue: a noun or adjective use, not a statement"
+            ));
+        }
+        None
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn claim_for(
+        &self,
+        m: &CueMatch,
+        (ca, cb): (usize, usize),
+        toks: &[Token],
+        blocked: &[bool],
+        sent: SentenceRef<'_>,
+        prev: Option<SentenceRef<'_>>,
+        origin: &Origin<'_>,
+        sentence_text: &str,
+        notes: &mut Vec<String>,
+    ) -> Result<Claim, String> {
+        let cue = &self.cues.cues[m.cue];
+        let spec = &cue.spec;
+        let clause = spec.clause_spans;
+        let mut cross_sentence = false;
+        let pick = |place: SlotPlace,
+                    effect_side: bool,
+                    notes: &mut Vec<String>|
+         -> Result<Option<Chosen>, String> {
+            Ok(match place {
+                SlotPlace::Inside(s, e) => self.choose_bytes(sent, s, e),
+                SlotPlace::After => {
+                    let mut span = if clause {
+                        self.clause_forward(toks, cb)
+                    } else {
+                        self.walk_forward(toks, cb, blocked)
+                    };
+                    if cue.glued_last {
+                        // "stress-induced insomnia": the modified noun is the word right after.
+                        span.to = span.to.min(span.from + 1);
+                    }
+                    self.choose(toks, sent, span, effect_side)
+                }
+                SlotPlace::Before => {
+                    let span = if clause {
+                        self.clause_back(toks, ca)
+                    } else {
+                        self.walk_back(toks, ca, blocked, notes)
+                    };
+                    self.choose(toks, sent, span, effect_side)
+                }
+            })
+        };
+        let mut cause = pick(m.cause, false, notes)?;
+        let mut effect = pick(m.effect, true, notes)?;
+        // An empty slot before a cue that opens the sentence: "Because X, Y." takes the clause after
+        // the comma; "As a result, Y." takes the previous sentence.
+        let before_slot_empty = match (m.cause, m.effect) {
+            (SlotPlace::Before, _) => cause.is_none(),
+            (_, SlotPlace::Before) => effect.is_none(),
+            _ => false,
+        };
+        if before_slot_empty && opens_sentence(toks, ca, &self.lexicon) {
+            let after = if m.cause == SlotPlace::After {
+                &cause
+            } else {
+                &effect
+            };
+            let after_end_tok = after.as_ref().map(|c| {
+                toks.iter()
+                    .position(|t| t.start + sent.offset >= c.end)
+                    .unwrap_or(toks.len())
+            });
+            let fronted = after_end_tok.and_then(|j| {
+                if j < toks.len() && toks[j].lower == "," {
+                    let span = if clause {
+                        self.clause_forward(toks, j + 1)
+                    } else {
+                        self.walk_forward(toks, j + 1, blocked)
+                    };
+                    let span = self.strip_determiners(toks, span);
+                    self.choose(toks, sent, span, m.effect == SlotPlace::Before)
+                } else {
+                    None
+                }
+            });
+            let filled = match fronted {
+                Some(c) => {
+                    notes.push("the cue opens the sentence: the other slot is the clause after the comma".into());
+                    Some(c)
+                }
+                None => prev.and_then(|p| {
+                    let ptoks = tokenize(p.text);
+                    let mut end = ptoks.len();
+                    while end > 0 && !ptoks[end - 1].word {
+                        end -= 1;
+                    }
+                    let span = self.clause_back(&ptoks, end);
+                    cross_sentence = true;
+                    notes.push("the cue opens the sentence: the slot is the previous sentence's last clause".into());
+                    self.choose(&ptoks, p, span, m.effect == SlotPlace::Before)
+                }),
+            };
+            if m.cause == SlotPlace::Before {
+                cause = filled;
+            } else {
+                effect = filled;
+            }
+        }
+        let cause = cause.ok_or("no cause span found")?;
+        let effect = effect.ok_or("no effect span found")?;
+        if cause.start < effect.end && effect.start < cause.end && !cross_sentence {
+            return Err("cause and effect spans overlap".into());
+        }
+        let ckey = self.normalizer.key(&cause.key_text);
+        let ekey = self.normalizer.key(&effect.key_text);
+        if ckey.is_empty() || ekey.is_empty() {
+            return Err(format!(
+                "a span has no content word (cause \"{}\", effect \"{}\")",
+                cause.text, effect.text
+            ));
+        }
+        if ckey == ekey {
+            return Err(format!(
+                "cause and effect are the same variable (\"{ckey}\")"
+            ));
+        }
+        let mut modality = self.modality(toks, ca, sent.text, notes);
+        if effect.negated && modality != Modality::Question {
+            notes.push("the effect is denied (\"no ...\")".into());
+            modality = Modality::Negated;
+        }
+        let mut polarity = spec.polarity;
+        if polarity == Polarity::None && modality != Modality::Question {
+            modality = Modality::Negated;
+        }
+        if let (Polarity::Unsigned, Some(s)) = (polarity, effect.sign) {
+            notes.push(format!("the effect's sign word makes it an {s}"));
+            polarity = s;
+        }
+        Ok(Claim {
+            schema: SCHEMA_VERSION,
+            cause: Slot {
+                text: cause.text,
+                key: ckey,
+                start: cause.start,
+                end: cause.end,
+            },
+            effect: Slot {
+                text: effect.text,
+                key: ekey,
+                start: effect.start,
+                end: effect.end,
+            },
+            kind: spec.kind,
+            polarity: if spec.kind == Kind::Association && polarity == Polarity::None {
+                Polarity::None
+            } else {
+                polarity
+            },
+            modality,
+            cue: spec.id.clone(),
+            sentence: sentence_text.to_string(),
+            source: Source {
+                path: origin.path.to_string(),
+                line: origin.line,
+                column: origin.column,
+                start: sent.offset,
+                end: sent.offset + sent.text.len(),
+                page: origin.page,
+                record: origin.record.map(str::to_string),
+            },
+            cross_sentence,
+        })
+    }
+}
+
+/// Nothing but punctuation, conjunctions and fillers stands before token `ca`.
+fn opens_sentence(toks: &[Token], ca: usize, l: &Lexicon) -> bool {
+    toks[..ca]
+        .iter()
+        .all(|t| !t.word || l.clause_breaks.contains(&t.lower) || l.fillers.contains(&t.lower))
+}
+
+fn token_range(toks: &[Token], start: usize, end: usize) -> (usize, usize) {
+    let a = toks
+        .iter()
+        .position(|t| t.end > start)
+        .unwrap_or(toks.len());
+    let b = toks
+        .iter()
+        .rposition(|t| t.start < end)
+        .map(|i| i + 1)
+        .unwrap_or(a);
+    (a, b.max(a))
+}
+
+fn join(toks: &[Token], a: usize, b: usize) -> String {
+    toks[a..b]
+        .iter()
+        .map(|t| t.lower.as_str())
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// Collapse whitespace runs (line breaks included) to single spaces.
+pub fn collapse(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    for w in s.split_whitespace() {
+        if !out.is_empty() {
+            out.push(' ');
+        }
+        out.push_str(w);
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn ex() -> Extractor {
+        Extractor::new(&PatternSet::builtin().unwrap()).unwrap()
+    }
+
+    fn claims(e: &Extractor, text: &str) -> Vec<Claim> {
+        let origin = Origin {
+            path: "t",
+            line: 1,
+            column: 1,
+            page: None,
+            record: None,
+        };
+        let hits = e.cues.hits(text);
+        let mut out = Vec::new();
+        e.extract(
+            SentenceRef { text, offset: 0 },
+            None,
+            &origin,
+            &e.cues.candidates(&hits),
+            &mut out,
+            None,
+        );
+        out
+    }
+
+    fn one(e: &Extractor, text: &str) -> (String, String, Polarity, Modality) {
+        let cs = claims(e, text);
+        assert_eq!(cs.len(), 1, "{text}: {cs:#?}");
+        let c = &cs[0];
+        (
+            c.cause.text.clone(),
+            c.effect.text.clone(),
+            c.polarity,
+            c.modality,
+        )
+    }
+
+    #[test]
+    fn tokenizer_keeps_contractions_and_hyphens() {
+        let t: Vec<String> = tokenize("It doesn't cause sea-level rise, 3.5 mg.")
+            .into_iter()
+            .map(|t| t.lower)
+            .collect();
+        assert_eq!(
+            t,
+            [
+                "it",
+                "doesn't",
+                "cause",
+                "sea-level",
+                "rise",
+                ",",
+                "3.5",
+                "mg",
+                "."
+            ]
+        );
+    }
+
+    #[test]
+    fn basic_spans_sign_and_modality() {
+        let e = ex();
+        assert_eq!(
+            one(&e, "Heavy rain causes flooding."),
+            (
+                "Heavy rain".into(),
+                "flooding".into(),
+                Polarity::Unsigned,
+                Modality::Asserted
+            )
+        );
+        assert_eq!(
+            one(&e, "Smoking causes higher blood pressure.").2,
+            Polarity::Increase
+        );
+        assert_eq!(one(&e, "Stress may cause insomnia.").3, Modality::Hedged);
+        assert_eq!(
+            one(&e, "Stress does not cause insomnia.").3,
+            Modality::Negated
+        );
+        assert_eq!(one(&e, "Does stress cause insomnia?").3, Modality::Question);
+        assert_eq!(
+            one(
+                &e,
+                "If the dam breaks, heavy rain will cause flooding downstream."
+            )
+            .3,
+            Modality::Conditional
+        );
+        // A pronoun names no variable.
+        assert!(claims(&e, "If the dam breaks, it will cause flooding downstream.").is_empty());
+        let (c, ef, _, m) = one(&e, "The flooding was caused by heavy rain.");
+        assert_eq!(
+            (c.as_str(), ef.as_str(), m),
+            ("heavy rain", "flooding", Modality::Asserted)
+        );
+    }
+
+    #[test]
+    fn change_nouns_give_the_sign() {
+        let e = ex();
+        let (_, ef, p, _) = one(&e, "Drought leads to an increase in food prices.");
+        assert_eq!((ef.as_str(), p), ("food prices", Polarity::Increase));
+    }
+
+    #[test]
+    fn chain_gives_two_claims() {
+        let e = ex();
+        let cs = claims(
+            &e,
+            "Warm water increases algae, which in turn reduces oxygen.",
+        );
+        let pairs: Vec<(&str, &str)> = cs
+            .iter()
+            .map(|c| (c.cause.text.as_str(), c.effect.text.as_str()))
+            .collect();
+        assert_eq!(pairs, [("Warm water", "algae"), ("algae", "oxygen")]);
+    }
+
+    #[test]
+    fn noun_use_of_a_verb_cue_is_not_a_claim() {
+        let e = ex();
+        assert!(claims(&e, "An increase in rainfall was recorded.").is_empty());
+    }
+}

@@ -1,0 +1,89 @@
+//! `hearsay claims`: every stored claim that matches the filters.
+
+use super::{write_rows, ClaimFilter, Global};
+use anyhow::{Context, Result};
+use clap::Args;
+use hearsay::Claim;
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "JSON output is the claim record itself (see the README's \"Output \
+schema\"), one per line, as `extract` prints it."
+)]
+pub struct ClaimsArgs {
+    /// Only claims whose cause is this variable (matched through normalisation and aliases).
+    #[arg(long, value_name = "X")]
+    pub cause: Option<String>,
+    /// Only claims whose effect is this variable.
+    #[arg(long, value_name = "Y")]
+    pub effect: Option<String>,
+    /// Only claims that involve this variable on either side.
+    #[arg(long, value_name = "X")]
+    pub var: Option<String>,
+    /// Only claims of this cue id.
+    #[arg(long, value_name = "ID")]
+    pub cue: Option<String>,
+    /// Only claims from documents whose path contains this text.
+    #[arg(long, value_name = "TEXT")]
+    pub path: Option<String>,
+    /// At most this many claims (0 for all).
+    #[arg(long, short = 'n', default_value_t = 0)]
+    pub limit: usize,
+    #[command(flatten)]
+    pub filter: ClaimFilter,
+}
+
+const HEADERS: &[&str] = &[
+    "location", "cause", "effect", "kind", "polarity", "modality", "cue", "sentence",
+];
+
+pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
+    let loaded = g.graph(&a.filter.to_filter())?;
+    let norm = &loaded.ex.normalizer;
+    let key = |s: &Option<String>| {
+        s.as_ref()
+            .map(|s| loaded.aliases.resolve(&norm.key(s)).to_string())
+    };
+    let (cause, effect, var) = (key(&a.cause), key(&a.effect), key(&a.var));
+    let mut picked: Vec<Claim> = Vec::new();
+    for row in &loaded.graph.rows {
+        if cause.as_ref().is_some_and(|k| *k != row.cause)
+            || effect.as_ref().is_some_and(|k| *k != row.effect)
+            || var
+                .as_ref()
+                .is_some_and(|k| *k != row.cause && *k != row.effect)
+            || a.cue.as_ref().is_some_and(|c| *c != row.cue)
+            || a.path
+                .as_ref()
+                .is_some_and(|p| !row.doc.contains(p.as_str()))
+        {
+            continue;
+        }
+        picked.push(
+            loaded
+                .store
+                .claim(row.at)
+                .context("cannot read a claim from the store")?,
+        );
+        if a.limit > 0 && picked.len() >= a.limit {
+            break;
+        }
+    }
+    let mut out = std::io::stdout().lock();
+    write_rows(&mut out, g.format(), &picked, cells, HEADERS)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn cells(c: &Claim) -> Vec<String> {
+    vec![
+        c.location(),
+        c.cause.text.clone(),
+        c.effect.text.clone(),
+        c.kind.to_string(),
+        c.polarity.to_string(),
+        c.modality.to_string(),
+        c.cue.clone(),
+        c.sentence.clone(),
+    ]
+}

@@ -1,0 +1,103 @@
+//! `hearsay extract PATH...|-`: claims as JSON Lines on stdout, no store. The map step for
+//! pipelines and clusters: its output is what `merge` (and any reducer) consumes.
+
+use super::{check_paths, Global};
+use anyhow::Result;
+use clap::Args;
+use hearsay::corpus::{self, Input};
+use hearsay::pipeline;
+use rayon::prelude::*;
+use std::io::Write;
+use std::process::ExitCode;
+use std::time::Instant;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "Each output line is one claim record (see the README's \"Output schema\"). \
+Files are processed in parallel and printed in input order. A file that cannot be read is \
+reported on stderr and skipped.\n\nExit status: 0 on success (unreadable files are warnings); \
+1 under --strict when any file failed; 2 on an error."
+)]
+pub struct ExtractArgs {
+    /// Files and folders to read (`-` reads standard input).
+    #[arg(required = true, value_name = "PATH")]
+    pub paths: Vec<String>,
+    /// Exit with status 1 when any file could not be read.
+    #[arg(long)]
+    pub strict: bool,
+}
+
+pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
+    let started = Instant::now();
+    check_paths(&a.paths)?;
+    let ex = g.extractor()?;
+    let (inputs, skipped) = corpus::discover(&a.paths);
+    for s in &skipped {
+        if a.paths.iter().any(|p| p == &s.path) {
+            g.warn(&format!("{}: {}", s.path, s.reason));
+        }
+    }
+    let mut out = std::io::BufWriter::with_capacity(1 << 16, std::io::stdout().lock());
+    let (mut claims, mut failed, mut bytes) = (0usize, 0usize, 0usize);
+    let chunk = rayon::current_num_threads() * 4;
+    for group in inputs.chunks(chunk.max(1)) {
+        let results: Vec<(Result<(String, usize, usize), String>, Vec<String>)> =
+            group.par_iter().map(|i| one(&ex, i)).collect();
+        for (input, (r, warnings)) in group.iter().zip(results) {
+            for w in warnings {
+                g.warn(&w);
+            }
+            match r {
+                Ok((text, n, b)) => {
+                    out.write_all(text.as_bytes())?;
+                    claims += n;
+                    bytes += b;
+                }
+                Err(e) => {
+                    failed += 1;
+                    g.warn(&format!("{}: {e}", input.label));
+                }
+            }
+        }
+    }
+    out.flush()?;
+    if !g.quiet {
+        let secs = started.elapsed().as_secs_f64();
+        eprintln!(
+            "hearsay: {} files, {:.1} MB, {} claims, {} failed, {} skipped, {:.2} s",
+            inputs.len() - failed,
+            bytes as f64 / 1e6,
+            claims,
+            failed,
+            skipped.len(),
+            secs
+        );
+    }
+    Ok(if a.strict && failed > 0 {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    })
+}
+
+type Extracted = (Result<(String, usize, usize), String>, Vec<String>);
+
+fn one(ex: &hearsay::claims::Extractor, input: &Input) -> Extracted {
+    let mut warnings = Vec::new();
+    let r = (|| {
+        let bytes = corpus::read_bytes(input).map_err(|e| e.to_string())?;
+        let docs =
+            corpus::read_documents(input, &bytes, &mut warnings).map_err(|e| e.to_string())?;
+        let mut text = String::new();
+        let mut n = 0;
+        for d in &docs {
+            for c in pipeline::document_claims(ex, d) {
+                text.push_str(&serde_json::to_string(&c).map_err(|e| e.to_string())?);
+                text.push('\n');
+                n += 1;
+            }
+        }
+        Ok((text, n, bytes.len()))
+    })();
+    (r, warnings)
+}

@@ -1,0 +1,336 @@
+//! Subcommands, one file each, and the setup they share (`Cli`, output formats, loading the
+//! patterns, the store and the graph).
+
+mod claims;
+mod eval;
+mod explain;
+mod extract;
+mod pair;
+mod patterns;
+mod scan;
+mod top;
+
+use anyhow::{Context, Result};
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use hearsay::claims::Extractor;
+use hearsay::graph::{ClaimGraph, Filter};
+use hearsay::normalize::Aliases;
+use hearsay::patterns::{self as pat, PatternSet};
+use hearsay::store::Store;
+use hearsay::{Kind, Modality, Polarity};
+use std::io::{IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+const ABOUT: &str = "Find what a body of text states about cause and effect.
+
+hearsay reads text files, finds explicit causal statements (\"X raises Y\", \"Y is due to X\",
+\"X has no effect on Y\"), keeps each with its sentence and location, and aggregates them into
+a weighted claim graph you can query.
+
+A claim is a statement found in text, not evidence that the causation is real, and nothing
+hearsay prints is advice. Check the primary literature and ask qualified practitioners.";
+
+const AFTER: &str =
+    "Exit status: 0 on success (warnings about single files included), 2 on an error.
+Output: a table on a terminal, JSON Lines otherwise; choose with --format.
+Typical use:  hearsay scan corpora-demo  &&  hearsay pair \"crayfish\" \"algae blooms\"";
+
+#[derive(Parser, Debug)]
+#[command(name = "hearsay", version, about = ABOUT, after_help = AFTER, max_term_width = 100)]
+pub struct Cli {
+    #[command(flatten)]
+    pub global: Global,
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+#[derive(Args, Debug, Clone)]
+pub struct Global {
+    /// The store directory that `scan` writes and queries read.
+    #[arg(
+        long,
+        global = true,
+        value_name = "DIR",
+        default_value = ".hearsay",
+        env = "HEARSAY_STORE"
+    )]
+    pub store: PathBuf,
+    /// Use the pattern folder DIR (same layout as the shipped `patterns/`) instead of the built-in cues.
+    #[arg(long, global = true, value_name = "DIR")]
+    pub patterns: Option<PathBuf>,
+    /// Map surface forms onto variables: a file of `surface form<TAB>variable name` lines.
+    #[arg(long, global = true, value_name = "FILE")]
+    pub aliases: Option<PathBuf>,
+    /// Output format (default: table on a terminal, JSON Lines otherwise).
+    #[arg(long, global = true, value_enum)]
+    pub format: Option<Format>,
+    /// Print no progress or warnings on stderr.
+    #[arg(long, short, global = true)]
+    pub quiet: bool,
+    /// Worker threads (default: all cores).
+    #[arg(long, short = 'j', global = true, value_name = "N")]
+    pub threads: Option<usize>,
+}
+
+#[derive(Subcommand, Debug)]
+pub enum Command {
+    /// Read files and folders into the claim store (re-reading only what changed).
+    Scan(scan::ScanArgs),
+    /// Print the claims of files or stdin as JSON Lines, without a store (the map step for pipelines).
+    Extract(extract::ExtractArgs),
+    /// What the corpus says about two variables, in each direction, with evidence.
+    Pair(pair::PairArgs),
+    /// The most-stated relations.
+    Top(top::TopArgs),
+    /// Every stored claim that matches the filters.
+    Claims(claims::ClaimsArgs),
+    /// Show which cues fire on a sentence, which spans are chosen and why.
+    Explain(explain::ExplainArgs),
+    /// Score extraction against labelled data: precision, recall and F1.
+    Eval(eval::EvalArgs),
+    /// Check or list cue patterns.
+    Patterns(patterns::PatternsArgs),
+}
+
+#[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    Table,
+    Json,
+    Csv,
+}
+
+/// Filters on claims, shared by the query commands.
+#[derive(Args, Debug, Clone, Default)]
+pub struct ClaimFilter {
+    /// Only claims of this kind.
+    #[arg(long, value_parser = parse_word::<Kind>)]
+    pub kind: Option<Kind>,
+    /// Only claims with this polarity (increase, decrease, unsigned, prevent, none).
+    #[arg(long, value_parser = parse_word::<Polarity>)]
+    pub polarity: Option<Polarity>,
+    /// Only claims with this modality (asserted, hedged, negated, question, conditional).
+    #[arg(long, value_parser = parse_word::<Modality>)]
+    pub modality: Option<Modality>,
+}
+
+impl ClaimFilter {
+    pub fn to_filter(&self) -> Filter {
+        Filter {
+            kind: self.kind,
+            polarity: self.polarity,
+            modality: self.modality,
+        }
+    }
+}
+
+fn parse_word<T: std::str::FromStr<Err = String>>(s: &str) -> Result<T, String> {
+    s.parse()
+}
+
+pub fn run(cli: Cli) -> Result<ExitCode> {
+    if let Some(n) = cli.global.threads {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(n.max(1))
+            .build_global()
+            .context("cannot set up worker threads")?;
+    }
+    let g = &cli.global;
+    match &cli.command {
+        Command::Scan(a) => scan::run(g, a),
+        Command::Extract(a) => extract::run(g, a),
+        Command::Pair(a) => pair::run(g, a),
+        Command::Top(a) => top::run(g, a),
+        Command::Claims(a) => claims::run(g, a),
+        Command::Explain(a) => explain::run(g, a),
+        Command::Eval(a) => eval::run(g, a),
+        Command::Patterns(a) => patterns::run(g, a),
+    }
+}
+
+impl Global {
+    pub fn format(&self) -> Format {
+        self.format.unwrap_or(if std::io::stdout().is_terminal() {
+            Format::Table
+        } else {
+            Format::Json
+        })
+    }
+
+    pub fn pattern_set(&self) -> Result<PatternSet> {
+        let set =
+            PatternSet::load(self.patterns.as_deref()).context("cannot load the cue patterns")?;
+        Ok(set)
+    }
+
+    pub fn extractor(&self) -> Result<Extractor> {
+        let set = self.pattern_set()?;
+        Extractor::new(&set)
+            .map_err(|e| anyhow::anyhow!(e))
+            .context("cannot compile the cue patterns")
+    }
+
+    pub fn open_store(&self) -> Result<Store> {
+        Store::open(&self.store)
+            .with_context(|| format!("cannot open the store {}", self.store.display()))
+    }
+
+    /// Alias pairs in force: the `--aliases` file, else the one the store was scanned with, then
+    /// the pattern folder's own.
+    pub fn alias_pairs(&self, set: &PatternSet) -> Result<Vec<(String, String)>> {
+        let mut pairs = Vec::new();
+        let stored = self.store.join("aliases.tsv");
+        if let Some(f) = &self.aliases {
+            pairs = pat::load_aliases(f)
+                .with_context(|| format!("cannot load aliases {}", f.display()))?;
+        } else if stored.exists() {
+            pairs = pat::load_aliases(&stored)
+                .with_context(|| format!("cannot load aliases {}", stored.display()))?;
+        }
+        pairs.extend(set.aliases.iter().cloned());
+        Ok(pairs)
+    }
+
+    /// Open the store and build its graph.
+    pub fn graph(&self, filter: &Filter) -> Result<Loaded> {
+        let store = self.open_store()?;
+        let ex = self.extractor()?;
+        let set = self.pattern_set()?;
+        let aliases = Aliases::new(&ex.normalizer, &self.alias_pairs(&set)?);
+        let rows = store.rows().context("cannot read the store's claims")?;
+        let graph = ClaimGraph::build(rows, &aliases, filter);
+        Ok(Loaded {
+            store,
+            ex,
+            aliases,
+            graph,
+        })
+    }
+
+    pub fn warn(&self, msg: &str) {
+        if !self.quiet {
+            eprintln!("hearsay: warning: {}", escape(msg));
+        }
+    }
+}
+
+/// A store with its graph, ready for queries.
+pub struct Loaded {
+    pub store: Store,
+    pub ex: Extractor,
+    pub aliases: Aliases,
+    pub graph: ClaimGraph,
+}
+
+/// Replace control characters so that text from the input cannot drive the terminal.
+pub fn escape(s: &str) -> String {
+    s.chars()
+        .map(|c| {
+            if c.is_control() && c != '\n' && c != '\t' {
+                '\u{FFFD}'
+            } else {
+                c
+            }
+        })
+        .collect()
+}
+
+/// A simple aligned table for terminals.
+pub struct Table {
+    headers: Vec<String>,
+    rows: Vec<Vec<String>>,
+}
+
+impl Table {
+    pub fn new(headers: &[&str]) -> Self {
+        Table {
+            headers: headers.iter().map(|s| s.to_string()).collect(),
+            rows: Vec::new(),
+        }
+    }
+    pub fn row(&mut self, cells: Vec<String>) {
+        self.rows.push(
+            cells
+                .into_iter()
+                .map(|c| escape(&c).replace(['\n', '\t'], " "))
+                .collect(),
+        );
+    }
+    pub fn print(&self, out: &mut impl Write) -> std::io::Result<()> {
+        let n = self.headers.len();
+        let mut w: Vec<usize> = self.headers.iter().map(|h| h.chars().count()).collect();
+        for r in &self.rows {
+            for (i, c) in r.iter().enumerate().take(n) {
+                w[i] = w[i].max(c.chars().count().min(60));
+            }
+        }
+        let line = |cells: &[String], out: &mut dyn Write| -> std::io::Result<()> {
+            let mut s = String::new();
+            for (i, c) in cells.iter().enumerate().take(n) {
+                let c: String = if c.chars().count() > 60 {
+                    c.chars().take(59).chain(std::iter::once('…')).collect()
+                } else {
+                    c.clone()
+                };
+                let pad = w[i].saturating_sub(c.chars().count());
+                if i + 1 == n {
+                    s.push_str(&c);
+                } else {
+                    s.push_str(&c);
+                    s.push_str(&" ".repeat(pad + 2));
+                }
+            }
+            writeln!(out, "{}", s.trim_end())
+        };
+        line(&self.headers, out)?;
+        line(&w.iter().map(|&x| "-".repeat(x)).collect::<Vec<_>>(), out)?;
+        for r in &self.rows {
+            line(r, out)?;
+        }
+        Ok(())
+    }
+}
+
+/// Write serialisable rows in the chosen machine format (JSON Lines or CSV with `headers`).
+pub fn write_rows<T: serde::Serialize>(
+    out: &mut impl Write,
+    format: Format,
+    rows: &[T],
+    csv_row: impl Fn(&T) -> Vec<String>,
+    headers: &[&str],
+) -> Result<()> {
+    match format {
+        Format::Json => {
+            for r in rows {
+                serde_json::to_writer(&mut *out, r)?;
+                out.write_all(b"\n")?;
+            }
+        }
+        Format::Csv => {
+            let mut w = csv::Writer::from_writer(&mut *out);
+            w.write_record(headers)?;
+            for r in rows {
+                w.write_record(csv_row(r))?;
+            }
+            w.flush()?;
+        }
+        Format::Table => {
+            let mut t = Table::new(headers);
+            for r in rows {
+                t.row(csv_row(r));
+            }
+            t.print(out)?;
+        }
+    }
+    Ok(())
+}
+
+/// True when a path is given that does not exist: a friendlier message than the walk's.
+pub fn check_paths(paths: &[String]) -> Result<()> {
+    for p in paths {
+        if p != "-" && !Path::new(p).exists() {
+            anyhow::bail!("{p}: no such file or directory");
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,216 @@
+//! `hearsay pair X Y`: what the corpus says about two variables, in each direction.
+
+use super::{escape, ClaimFilter, Format, Global};
+use anyhow::{Context, Result};
+use clap::Args;
+use hearsay::report::{self, DirectionSummary, PairReport};
+use hearsay::store::key_terms;
+use hearsay::Modality;
+use std::collections::BTreeSet;
+use std::io::Write;
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "X and Y go through the same normalisation (and aliases) as the variables \
+in the store, so \"the rising sea levels\" finds \"rising sea level\". Counts: causal claims X → Y \
+and Y → X by modality and polarity, distinct documents, association claims (either order), and \
+co-mentions: sentences naming both with no claim between them. The direction ratio is the share \
+of non-negated causal claims that go X → Y.\n\nThese are counts of statements in text, not \
+evidence that either causation is real."
+)]
+pub struct PairArgs {
+    /// The first variable.
+    pub x: String,
+    /// The second variable.
+    pub y: String,
+    /// Evidence sentences to show per relation.
+    #[arg(long, default_value_t = 3, value_name = "N")]
+    pub evidence: usize,
+    #[command(flatten)]
+    pub filter: ClaimFilter,
+}
+
+pub fn run(g: &Global, a: &PairArgs) -> Result<ExitCode> {
+    let mut loaded = g.graph(&a.filter.to_filter())?;
+    let x = report::lookup(&loaded.graph, &loaded.ex.normalizer, &loaded.aliases, &a.x);
+    let y = report::lookup(&loaded.graph, &loaded.ex.normalizer, &loaded.aliases, &a.y);
+    let co_mentions = {
+        let (xt, yt) = (key_terms(&x.0.key), key_terms(&y.0.key));
+        if xt.is_empty() || yt.is_empty() || x.0.key == y.0.key {
+            0
+        } else {
+            let both = loaded
+                .store
+                .sentence_ids_with(&[&xt, &yt])
+                .context("cannot search the sentence index")?;
+            let mut claimed: BTreeSet<(String, u64)> = BTreeSet::new();
+            if let (Some(xn), Some(yn)) = (x.1, y.1) {
+                let rels = [
+                    loaded.graph.edge(xn, yn),
+                    loaded.graph.edge(yn, xn),
+                    loaded.graph.association(xn, yn),
+                ];
+                for rel in rels.into_iter().flatten() {
+                    for &r in &rel.rows {
+                        claimed.insert((
+                            loaded.graph.rows[r].doc.clone(),
+                            loaded.graph.rows[r].sentence,
+                        ));
+                    }
+                }
+            }
+            both.iter().filter(|s| !claimed.contains(*s)).count()
+        }
+    };
+    let store = &loaded.store;
+    let graph = &loaded.graph;
+    let rep = report::pair_report(graph, x, y, co_mentions, a.evidence, |r| {
+        let row = &graph.rows[r];
+        match store.claim(row.at) {
+            Ok(c) => (c.location(), c.sentence),
+            Err(e) => (
+                format!("{}:{}", row.doc, row.line),
+                format!("(evidence unavailable: {e})"),
+            ),
+        }
+    });
+    let mut out = std::io::stdout().lock();
+    match g.format() {
+        Format::Json => {
+            serde_json::to_writer(&mut out, &rep)?;
+            out.write_all(b"\n")?;
+        }
+        Format::Csv => print_csv(&mut out, &rep)?,
+        Format::Table => print_table(&mut out, &rep)?,
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn name(v: &report::VarMatch) -> String {
+    v.label.clone().unwrap_or_else(|| v.query.clone())
+}
+
+fn line(d: &DirectionSummary) -> String {
+    let mut pol = Vec::new();
+    for (p, m) in &d.by_polarity {
+        let n: usize = m.values().sum();
+        pol.push(format!("{p} {n}"));
+    }
+    format!(
+        "{} claims in {} documents: {} asserted, {} hedged, {} negated, {} conditional, {} questions{}",
+        d.claims,
+        d.documents,
+        d.asserted,
+        d.hedged,
+        d.negated,
+        d.conditional,
+        d.question,
+        if pol.is_empty() { String::new() } else { format!("  [{}]", pol.join(", ")) }
+    )
+}
+
+fn print_table(out: &mut impl Write, r: &PairReport) -> Result<()> {
+    let (x, y) = (escape(&name(&r.x)), escape(&name(&r.y)));
+    for v in [&r.x, &r.y] {
+        if !v.known {
+            writeln!(
+                out,
+                "note: no variable \"{}\" in the claims (key \"{}\")",
+                escape(&v.query),
+                v.key
+            )?;
+            if !v.suggestions.is_empty() {
+                writeln!(
+                    out,
+                    "      variables containing it: {}",
+                    escape(&v.suggestions.join("; "))
+                )?;
+            }
+        }
+    }
+    writeln!(out, "{x} → {y}: {}", line(&r.forward))?;
+    writeln!(out, "{y} → {x}: {}", line(&r.backward))?;
+    writeln!(
+        out,
+        "associated: {} claims in {} documents",
+        r.association.claims, r.association.documents
+    )?;
+    writeln!(
+        out,
+        "co-mentioned without a claim: {} sentences",
+        r.co_mentions
+    )?;
+    match r.direction_ratio {
+        Some(d) => writeln!(out, "direction ratio ({x} → {y}): {d:.2}")?,
+        None => writeln!(out, "direction ratio: – (no causal claim either way)")?,
+    }
+    if !r.evidence.is_empty() {
+        writeln!(out, "\nevidence:")?;
+        for e in &r.evidence {
+            let arrow = match e.relation {
+                "forward" => format!("{x} → {y}"),
+                "backward" => format!("{y} → {x}"),
+                _ => format!("{x} ~ {y}"),
+            };
+            let tag = if e.modality == Modality::Asserted {
+                e.polarity.to_string()
+            } else {
+                format!("{}, {}", e.polarity, e.modality)
+            };
+            writeln!(
+                out,
+                "  [{arrow}; {tag}] {}\n      {}",
+                escape(&e.location),
+                escape(&e.sentence)
+            )?;
+        }
+    }
+    writeln!(
+        out,
+        "\n(statements found in text, not evidence that the causation is real)"
+    )?;
+    Ok(())
+}
+
+fn print_csv(out: &mut impl Write, r: &PairReport) -> Result<()> {
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record([
+        "relation",
+        "claims",
+        "documents",
+        "asserted",
+        "hedged",
+        "negated",
+        "conditional",
+        "question",
+    ])?;
+    for (n, d) in [
+        ("forward", &r.forward),
+        ("backward", &r.backward),
+        ("association", &r.association),
+    ] {
+        w.write_record([
+            n.to_string(),
+            d.claims.to_string(),
+            d.documents.to_string(),
+            d.asserted.to_string(),
+            d.hedged.to_string(),
+            d.negated.to_string(),
+            d.conditional.to_string(),
+            d.question.to_string(),
+        ])?;
+    }
+    w.write_record([
+        "co_mention".to_string(),
+        r.co_mentions.to_string(),
+        String::new(),
+        String::new(),
+        String::new(),
+        String::new(),
+        String::new(),
+        String::new(),
+    ])?;
+    w.flush()?;
+    Ok(())
+}

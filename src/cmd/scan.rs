@@ -1,0 +1,313 @@
+//! `hearsay scan PATH...`: read files into the claim store, re-reading only what changed.
+
+use super::{check_paths, escape, Format, Global, Table};
+use anyhow::{Context, Result};
+use clap::Args;
+use hearsay::claims::{collapse, Extractor};
+use hearsay::corpus::{self, Input, Skipped};
+use hearsay::graph::doc_id;
+use hearsay::pipeline;
+use hearsay::store::{FileEntry, FileResult, StoreWriter};
+use indicatif::{ProgressBar, ProgressStyle};
+use rayon::prelude::*;
+use serde::Serialize;
+use std::collections::BTreeSet;
+use std::io::IsTerminal;
+use std::path::Path;
+use std::process::ExitCode;
+use std::time::{Instant, UNIX_EPOCH};
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "A scan writes the store atomically: if it is interrupted (Ctrl-C, kill -9), the \
+previous complete store stays in force. Files are re-read only when their size, time or content \
+changed; claims of deleted files are dropped.\n\nExit status: 0 on success, also when single files \
+could not be read (they are listed as warnings and in the summary); 1 under --strict when any file \
+failed; 2 on an error that stopped the scan."
+)]
+pub struct ScanArgs {
+    /// Files and folders to read (folders recursively; `-` reads standard input).
+    #[arg(required = true, value_name = "PATH")]
+    pub paths: Vec<String>,
+    /// Exit with status 1 when any file could not be read.
+    #[arg(long)]
+    pub strict: bool,
+    /// Memory for the search index writer, in MB.
+    #[arg(long, default_value_t = 100, value_name = "MB")]
+    pub index_memory: usize,
+}
+
+/// What one file came to.
+enum Outcome {
+    Unchanged(FileEntry),
+    Changed(Box<FileResult>),
+    Failed(Skipped),
+}
+
+#[derive(Serialize, Default)]
+struct Summary {
+    store: String,
+    files_seen: usize,
+    files_read: usize,
+    files_unchanged: usize,
+    files_removed: usize,
+    files_skipped: usize,
+    files_failed: usize,
+    documents: u64,
+    sentences: u64,
+    claims: u64,
+    seconds: f64,
+    skipped: Vec<Skipped>,
+    failed: Vec<Skipped>,
+}
+
+fn mtime_ns(m: &std::fs::Metadata) -> u128 {
+    m.modified()
+        .ok()
+        .and_then(|t| t.duration_since(UNIX_EPOCH).ok())
+        .map(|d| d.as_nanos())
+        .unwrap_or(0)
+}
+
+fn process(ex: &Extractor, input: &Input, known: Option<&FileEntry>) -> Outcome {
+    let fail = |reason: String| {
+        Outcome::Failed(Skipped {
+            path: input.label.clone(),
+            reason,
+        })
+    };
+    let (size, mtime) = if input.is_stdin() {
+        (0, 0)
+    } else {
+        match std::fs::metadata(&input.path) {
+            Ok(m) => (m.len(), mtime_ns(&m)),
+            Err(e) => return fail(format!("cannot read: {e}")),
+        }
+    };
+    if let Some(k) = known {
+        if !input.is_stdin() && k.size == size && k.mtime_ns == mtime && mtime != 0 {
+            return Outcome::Unchanged(k.clone());
+        }
+    }
+    let bytes = match corpus::read_bytes(input) {
+        Ok(b) => b,
+        Err(e) => return fail(e.to_string()),
+    };
+    let hash = blake3::hash(&bytes).to_hex().to_string();
+    if let Some(k) = known {
+        if k.hash == hash {
+            return Outcome::Unchanged(FileEntry {
+                size,
+                mtime_ns: mtime,
+                ..k.clone()
+            });
+        }
+    }
+    let mut warnings = Vec::new();
+    let docs = match corpus::read_documents(input, &bytes, &mut warnings) {
+        Ok(d) => d,
+        Err(e) => return fail(e.to_string()),
+    };
+    drop(bytes);
+    let mut result = FileResult::default();
+    for d in &docs {
+        result.claims.extend(pipeline::document_claims(ex, d));
+        let id = doc_id(&d.path, d.record.as_deref());
+        for s in pipeline::document_sentences(d) {
+            result
+                .sentences
+                .push((id.clone(), s.line as u64, s.start as u64, collapse(s.text)));
+        }
+    }
+    result.entry = Some(FileEntry {
+        path: input.label.clone(),
+        size: if input.is_stdin() {
+            docs.iter().map(|d| d.text.len() as u64).sum()
+        } else {
+            size
+        },
+        mtime_ns: mtime,
+        hash,
+        documents: docs.len() as u64,
+        sentences: result.sentences.len() as u64,
+        claims: 0,
+        segment: 0,
+        rows: (0, 0),
+        warnings,
+    });
+    Outcome::Changed(Box::new(result))
+}
+
+pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
+    let started = Instant::now();
+    check_paths(&a.paths)?;
+    let set = g.pattern_set()?;
+    let ex = g.extractor()?;
+    let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
+        .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
+    if let Some(al) = &g.aliases {
+        hearsay::patterns::load_aliases(al)
+            .with_context(|| format!("cannot load aliases {}", al.display()))?;
+        std::fs::copy(al, g.store.join("aliases.tsv"))
+            .with_context(|| format!("cannot copy {} into the store", al.display()))?;
+    }
+    let (inputs, skipped) = corpus::discover(&a.paths);
+    let mut summary = Summary {
+        store: g.store.display().to_string(),
+        files_seen: inputs.len(),
+        ..Summary::default()
+    };
+    let progress = if !g.quiet && std::io::stderr().is_terminal() {
+        let pb = ProgressBar::new(inputs.len() as u64);
+        pb.set_style(
+            ProgressStyle::with_template(
+                "{spinner} scanning [{bar:30}] {pos}/{len} files {msg} ({eta})",
+            )
+            .unwrap_or_else(|_| ProgressStyle::default_bar())
+            .progress_chars("=> "),
+        );
+        pb
+    } else {
+        ProgressBar::hidden()
+    };
+    let mut failed = Vec::new();
+    for chunk in inputs.chunks(64) {
+        let known: Vec<Option<FileEntry>> = chunk
+            .iter()
+            .map(|i| writer.known(&i.label).cloned())
+            .collect();
+        let outcomes: Vec<Outcome> = chunk
+            .par_iter()
+            .zip(known.par_iter())
+            .map(|(i, k)| process(&ex, i, k.as_ref()))
+            .collect();
+        for o in outcomes {
+            match o {
+                Outcome::Unchanged(e) => {
+                    summary.files_unchanged += 1;
+                    writer.touch(e);
+                }
+                Outcome::Changed(r) => {
+                    summary.files_read += 1;
+                    if let Some(e) = &r.entry {
+                        for w in &e.warnings {
+                            progress.suspend(|| g.warn(w));
+                        }
+                    }
+                    writer.put(*r).context("cannot write to the store")?;
+                }
+                Outcome::Failed(s) => {
+                    progress.suspend(|| g.warn(&format!("{}: {}", s.path, s.reason)));
+                    failed.push(s);
+                }
+            }
+            progress.inc(1);
+        }
+    }
+    progress.finish_and_clear();
+    // Drop what is gone: files that no longer exist, and files under a scanned folder that the
+    // walk no longer yields (deleted, or now ignored).
+    let seen: BTreeSet<&str> = inputs.iter().map(|i| i.label.as_str()).collect();
+    let failed_paths: BTreeSet<&str> = failed.iter().map(|s| s.path.as_str()).collect();
+    let roots: Vec<String> = a
+        .paths
+        .iter()
+        .filter(|p| Path::new(p).is_dir())
+        .map(|p| format!("{}/", p.trim_end_matches('/')))
+        .collect();
+    let gone: Vec<String> = writer
+        .old
+        .files
+        .iter()
+        .map(|f| f.path.clone())
+        .filter(|p| p != "-" && !seen.contains(p.as_str()) && !failed_paths.contains(p.as_str()))
+        .filter(|p| !Path::new(p).exists() || roots.iter().any(|r| p.starts_with(r.as_str())))
+        .collect();
+    for p in &gone {
+        writer.remove(p)?;
+    }
+    summary.files_removed = gone.len();
+    if summary.files_read == 0 && gone.is_empty() && failed.is_empty() && writer.old.generation > 0
+    {
+        // Nothing changed: leave the store exactly as it is.
+        let m = writer.old.clone();
+        writer.abandon();
+        return finish(g, a, summary, &m, skipped, failed, started);
+    }
+    for s in &skipped {
+        if !g.quiet && a.paths.iter().any(|p| p == &s.path) {
+            g.warn(&format!("{}: {}", s.path, s.reason));
+        }
+    }
+    let manifest = writer
+        .commit(&set.origin, skipped.clone(), failed.clone())
+        .context("cannot commit the store")?;
+    finish(g, a, summary, &manifest, skipped, failed, started)
+}
+
+fn finish(
+    g: &Global,
+    a: &ScanArgs,
+    mut s: Summary,
+    m: &hearsay::store::Manifest,
+    skipped: Vec<Skipped>,
+    failed: Vec<Skipped>,
+    started: Instant,
+) -> Result<ExitCode> {
+    let (d, sn, c) = m.totals();
+    s.documents = d;
+    s.sentences = sn;
+    s.claims = c;
+    s.files_skipped = skipped.len();
+    s.files_failed = failed.len();
+    s.skipped = skipped;
+    s.failed = failed;
+    s.seconds = (started.elapsed().as_secs_f64() * 1000.0).round() / 1000.0;
+    let mut out = std::io::stdout().lock();
+    match g.format() {
+        Format::Json => {
+            serde_json::to_writer(&mut out, &s)?;
+            std::io::Write::write_all(&mut out, b"\n")?;
+        }
+        Format::Table | Format::Csv => {
+            let mut t = Table::new(&[
+                "store",
+                "files",
+                "read",
+                "unchanged",
+                "removed",
+                "skipped",
+                "failed",
+                "documents",
+                "sentences",
+                "claims",
+                "seconds",
+            ]);
+            t.row(vec![
+                s.store.clone(),
+                s.files_seen.to_string(),
+                s.files_read.to_string(),
+                s.files_unchanged.to_string(),
+                s.files_removed.to_string(),
+                s.files_skipped.to_string(),
+                s.files_failed.to_string(),
+                s.documents.to_string(),
+                s.sentences.to_string(),
+                s.claims.to_string(),
+                format!("{:.2}", s.seconds),
+            ]);
+            t.print(&mut out)?;
+            for f in &s.failed {
+                std::io::Write::write_all(
+                    &mut out,
+                    format!("failed: {}: {}\n", escape(&f.path), escape(&f.reason)).as_bytes(),
+                )?;
+            }
+        }
+    }
+    Ok(if a.strict && s.files_failed > 0 {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    })
+}

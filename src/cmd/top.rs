@@ -1,0 +1,66 @@
+//! `hearsay top`: the most-stated relations.
+
+use super::{write_rows, ClaimFilter, Global};
+use anyhow::Result;
+use clap::Args;
+use hearsay::report::{self, TopRelation};
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "Relations are ranked by the number of distinct documents that state them, \
+then by the number of claims. Causal relations are directed (cause → effect); association \
+relations are listed once per pair. Filters apply to claims before they are counted."
+)]
+pub struct TopArgs {
+    /// How many relations to show (0 for all).
+    #[arg(long, short = 'n', default_value_t = 20)]
+    pub limit: usize,
+    /// Only relations stated in at least this many documents.
+    #[arg(long, default_value_t = 1, value_name = "N")]
+    pub min_docs: usize,
+    /// Only relations with at least this many claims.
+    #[arg(long, default_value_t = 1, value_name = "N")]
+    pub min_claims: usize,
+    #[command(flatten)]
+    pub filter: ClaimFilter,
+}
+
+const HEADERS: &[&str] = &[
+    "kind",
+    "cause",
+    "effect",
+    "documents",
+    "claims",
+    "asserted",
+    "hedged",
+    "negated",
+    "sign",
+    "first",
+];
+
+pub fn run(g: &Global, a: &TopArgs) -> Result<ExitCode> {
+    let loaded = g.graph(&a.filter.to_filter())?;
+    let mut rows = report::top_relations(&loaded.graph, a.min_docs, a.min_claims);
+    if a.limit > 0 {
+        rows.truncate(a.limit);
+    }
+    let mut out = std::io::stdout().lock();
+    write_rows(&mut out, g.format(), &rows, cells, HEADERS)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn cells(r: &TopRelation) -> Vec<String> {
+    vec![
+        r.kind.to_string(),
+        r.cause.clone(),
+        r.effect.clone(),
+        r.documents.to_string(),
+        r.claims.to_string(),
+        r.asserted.to_string(),
+        r.hedged.to_string(),
+        r.negated.to_string(),
+        r.sign.to_string(),
+        r.first.clone(),
+    ]
+}

@@ -1,0 +1,415 @@
+//! Cue matching: where in a text a cue entry fires.
+//!
+//! Two layers, so that text without a cue costs almost nothing. A single Aho-Corasick automaton
+//! holds one *anchor* literal per cue (all inflected forms of the cue's longest word); it runs over
+//! whole documents and tells which sentences deserve a closer look and which cues to try there.
+//! Each cue is then checked with its own regular expression, built from the pattern string, over
+//! that sentence alone. The matcher only says where a cue's literal words are and where inner slots
+//! lie; choosing the cause and effect spans around it is the `claims` stage's job.
+
+use crate::patterns::{CueSpec, PatternSet, PatternToken, Role};
+use aho_corasick::{AhoCorasick, AhoCorasickBuilder, MatchKind};
+use regex::Regex;
+use std::collections::BTreeSet;
+
+/// A cue compiled for matching.
+#[derive(Debug)]
+pub struct CompiledCue {
+    pub spec: CueSpec,
+    regex: Regex,
+    /// The slot that lies before the first literal, if any.
+    pub left: Option<Role>,
+    /// The slot that lies after the last literal, if any.
+    pub right: Option<Role>,
+    /// Slots captured inside the match, in capture-group order (`s0`, `s1`).
+    inner: Vec<Role>,
+    reject_after: Option<Regex>,
+    reject_before: Option<Regex>,
+    /// The prefilter literals of this cue.
+    pub anchors: Vec<String>,
+    /// The cue opens with an inflected verb (`word~`), so a determiner before it means a noun use.
+    pub verb_first: bool,
+    /// The cue ends with a glued literal ("-induced"): the slot after it is one word.
+    pub glued_last: bool,
+}
+
+/// Where a slot of a match lies.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SlotPlace {
+    /// Find the span by walking back from the cue.
+    Before,
+    /// Find the span by walking forward from the cue.
+    After,
+    /// The span is this byte range of the sentence.
+    Inside(usize, usize),
+}
+
+/// One firing of one cue in a sentence. Offsets are bytes into the sentence.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CueMatch {
+    pub cue: usize,
+    pub start: usize,
+    pub end: usize,
+    pub cause: SlotPlace,
+    pub effect: SlotPlace,
+}
+
+/// A prefilter hit in a document: the byte offset of an anchor literal.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Hit {
+    pub pos: usize,
+    pub anchor: usize,
+}
+
+/// All cues, with the prefilter over them.
+#[derive(Debug)]
+pub struct CueSet {
+    pub cues: Vec<CompiledCue>,
+    prefilter: AhoCorasick,
+    /// Anchor literal → the cues that use it.
+    anchor_cues: Vec<Vec<usize>>,
+    anchor_glued: Vec<bool>,
+    anchors: Vec<String>,
+}
+
+fn alternation(forms: &[String]) -> String {
+    let mut f: Vec<&String> = forms.iter().collect();
+    f.sort_by_key(|s| std::cmp::Reverse(s.len()));
+    let parts: Vec<String> = f
+        .iter()
+        .map(|s| regex::escape(s).replace("\\-", "-").replace('\'', "['’]"))
+        .collect();
+    format!("(?:{})", parts.join("|"))
+}
+
+fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
+    let toks = &spec.tokens;
+    let is_lit =
+        |t: &PatternToken| matches!(t, PatternToken::Word { .. } | PatternToken::Glued { .. });
+    let first = toks.iter().position(is_lit).ok_or("no literal")?;
+    let mut last = toks.iter().rposition(is_lit).ok_or("no literal")?;
+    // "due to CAUSE , EFFECT": punctuation between two trailing slots separates them like a
+    // literal, and is required.
+    let mut required_punct = None;
+    if let [PatternToken::Slot(_), PatternToken::Punct(_), PatternToken::Slot(_)] =
+        &toks[last + 1..]
+    {
+        last += 2;
+        required_punct = Some(last);
+    }
+    let edge_ok = |from: usize, to: usize| {
+        toks[from..to]
+            .iter()
+            .all(|t| matches!(t, PatternToken::Punct(_)))
+    };
+    let mut left = None;
+    let mut right = None;
+    let mut inner = Vec::new();
+    // A slot glued to the first literal ("CAUSE -induced") is captured inside the match.
+    let glued_first = matches!(toks[first], PatternToken::Glued { .. });
+    let mut re = String::from("(?i)");
+    for (i, t) in toks.iter().enumerate() {
+        match t {
+            PatternToken::Slot(r) if i < first => {
+                if glued_first && i + 1 == first {
+                    re.push_str(&format!("\\b(?P<s{}>[\\p{{L}}\\p{{N}}]+)", inner.len()));
+                    inner.push(*r);
+                } else if edge_ok(i + 1, first) {
+                    left = Some(*r);
+                } else {
+                    return Err("a slot before the first literal must be next to it".into());
+                }
+            }
+            PatternToken::Slot(r) if i > last => {
+                if !edge_ok(last + 1, i) {
+                    return Err("a slot after the last literal must be next to it".into());
+                }
+                right = Some(*r);
+            }
+            PatternToken::Slot(r) => {
+                if matches!(toks.get(i + 1), Some(PatternToken::Glued { .. })) {
+                    re.push_str(&format!("\\s+(?P<s{}>[\\p{{L}}\\p{{N}}]+)", inner.len()));
+                } else {
+                    re.push_str(&format!("\\s+(?P<s{}>\\S.{{0,160}}?)", inner.len()));
+                }
+                inner.push(*r);
+            }
+            PatternToken::Word { forms } => {
+                if i == first {
+                    re.push_str("\\b");
+                } else {
+                    re.push_str("\\s+");
+                }
+                re.push_str(&alternation(forms));
+            }
+            PatternToken::Glued { forms } => {
+                re.push('-');
+                re.push_str(&alternation(forms));
+            }
+            PatternToken::Punct(c) if required_punct == Some(i) => {
+                re.push_str(&format!("\\s*{}", regex::escape(&c.to_string())));
+            }
+            PatternToken::Punct(c) if i > first && i < last => {
+                re.push_str(&format!("(?:\\s*{})?", regex::escape(&c.to_string())));
+            }
+            // Punctuation at the edges of a pattern is handled by the span walkers.
+            PatternToken::Punct(_) => {}
+        }
+    }
+    if required_punct.is_none() {
+        re.push_str("\\b");
+    }
+    let regex = Regex::new(&re).map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
+    let anchor_forms = toks
+        .iter()
+        .filter_map(|t| match t {
+            PatternToken::Word { forms } | PatternToken::Glued { forms } => Some(forms),
+            _ => None,
+        })
+        .max_by_key(|forms| forms.iter().map(|f| f.len()).min().unwrap_or(0))
+        .cloned()
+        .unwrap_or_default();
+    let glued_anchor = toks
+        .iter()
+        .any(|t| matches!(t, PatternToken::Glued { forms } if *forms == anchor_forms));
+    let anchors = anchor_forms
+        .iter()
+        .map(|f| {
+            if glued_anchor {
+                format!("-{f}")
+            } else {
+                f.clone()
+            }
+        })
+        .collect();
+    let anchored = |r: &Option<String>, after: bool| -> Result<Option<Regex>, String> {
+        r.as_ref()
+            .map(|s| {
+                let full = if after {
+                    format!("(?i)^(?:{s})")
+                } else {
+                    format!("(?i)(?:{s})$")
+                };
+                Regex::new(&full).map_err(|e| e.to_string())
+            })
+            .transpose()
+    };
+    let verb_first = matches!(&toks[first], PatternToken::Word { forms } if forms.len() > 1);
+    let glued_last = matches!(toks[last], PatternToken::Glued { .. });
+    Ok(CompiledCue {
+        glued_last,
+        verb_first,
+        reject_after: anchored(&spec.reject_after, true)?,
+        reject_before: anchored(&spec.reject_before, false)?,
+        spec,
+        regex,
+        left,
+        right,
+        inner,
+        anchors,
+    })
+}
+
+fn is_word_byte(b: u8) -> bool {
+    b.is_ascii_alphanumeric() || b >= 0x80
+}
+
+impl CueSet {
+    /// Compile every cue of a pattern set.
+    pub fn new(set: &PatternSet) -> Result<CueSet, String> {
+        let mut cues = Vec::with_capacity(set.cues.len());
+        for spec in &set.cues {
+            let id = spec.id.clone();
+            let origin = format!("{}:{}", spec.origin.0.display(), spec.origin.1);
+            cues.push(compile(spec.clone()).map_err(|e| format!("{origin}: cue '{id}': {e}"))?);
+        }
+        let mut anchors: Vec<String> = Vec::new();
+        let mut anchor_cues: Vec<Vec<usize>> = Vec::new();
+        for (ci, c) in cues.iter().enumerate() {
+            for a in &c.anchors {
+                match anchors.iter().position(|x| x == a) {
+                    Some(i) => anchor_cues[i].push(ci),
+                    None => {
+                        anchors.push(a.clone());
+                        anchor_cues.push(vec![ci]);
+                    }
+                }
+            }
+        }
+        let prefilter = AhoCorasickBuilder::new()
+            .ascii_case_insensitive(true)
+            .match_kind(MatchKind::LeftmostLongest)
+            .build(&anchors)
+            .map_err(|e| format!("cannot build the cue prefilter: {e}"))?;
+        let anchor_glued = anchors.iter().map(|a| a.starts_with('-')).collect();
+        Ok(CueSet {
+            cues,
+            prefilter,
+            anchor_cues,
+            anchor_glued,
+            anchors,
+        })
+    }
+
+    /// The prefilter's literal strings (one per line in `patterns list --literals`), without the
+    /// leading hyphen of glued literals.
+    pub fn literals(&self) -> Vec<String> {
+        let set: BTreeSet<String> = self
+            .anchors
+            .iter()
+            .map(|a| a.trim_start_matches('-').to_string())
+            .collect();
+        set.into_iter().collect()
+    }
+
+    /// Every whole-word anchor hit in `text`, in order.
+    pub fn hits(&self, text: &str) -> Vec<Hit> {
+        let b = text.as_bytes();
+        self.prefilter
+            .find_iter(text)
+            .filter(|m| {
+                let a = m.pattern().as_usize();
+                let left_ok =
+                    self.anchor_glued[a] || m.start() == 0 || !is_word_byte(b[m.start() - 1]);
+                let right_ok = m.end() == b.len() || !is_word_byte(b[m.end()]);
+                left_ok && right_ok
+            })
+            .map(|m| Hit {
+                pos: m.start(),
+                anchor: m.pattern().as_usize(),
+            })
+            .collect()
+    }
+
+    /// The cues worth trying for a set of hits.
+    pub fn candidates(&self, hits: &[Hit]) -> Vec<usize> {
+        let set: BTreeSet<usize> = hits
+            .iter()
+            .flat_map(|h| self.anchor_cues[h.anchor].iter().copied())
+            .collect();
+        set.into_iter().collect()
+    }
+
+    /// All cue matches in one sentence, trying only `candidates`. Where two matches overlap, the
+    /// longer one wins ("as a result of" over "as a result", "caused by" over "cause").
+    pub fn match_sentence(&self, sentence: &str, candidates: &[usize]) -> Vec<CueMatch> {
+        let mut found = Vec::new();
+        for &ci in candidates {
+            let cue = &self.cues[ci];
+            for caps in cue.regex.captures_iter(sentence) {
+                let Some(m) = caps.get(0) else { continue };
+                // "After the cue" means after its first run of literal words: for "since CAUSE ,
+                // EFFECT" that is right after "since".
+                let lit_end = (0..cue.inner.len())
+                    .filter_map(|gi| caps.name(&format!("s{gi}")))
+                    .map(|g| g.start())
+                    .filter(|&s| s > m.start())
+                    .min()
+                    .unwrap_or(m.end());
+                if let Some(r) = &cue.reject_after {
+                    if r.is_match(sentence[lit_end..].trim_start()) {
+                        continue;
+                    }
+                }
+                if let Some(r) = &cue.reject_before {
+                    if r.is_match(sentence[..m.start()].trim_end()) {
+                        continue;
+                    }
+                }
+                let place = |role: Role| -> SlotPlace {
+                    if cue.left == Some(role) {
+                        return SlotPlace::Before;
+                    }
+                    if cue.right == Some(role) {
+                        return SlotPlace::After;
+                    }
+                    let gi = cue.inner.iter().position(|r| *r == role).unwrap_or(0);
+                    match caps.name(&format!("s{gi}")) {
+                        Some(g) => SlotPlace::Inside(g.start(), g.end()),
+                        None => SlotPlace::Inside(m.start(), m.start()),
+                    }
+                };
+                let (cause, effect) = (place(Role::Cause), place(Role::Effect));
+                // The literal span excludes a glued slot captured at the start.
+                let start = match (cause, effect) {
+                    (SlotPlace::Inside(s, e), _) | (_, SlotPlace::Inside(s, e))
+                        if s == m.start() =>
+                    {
+                        e
+                    }
+                    _ => m.start(),
+                };
+                found.push(CueMatch {
+                    cue: ci,
+                    start,
+                    end: m.end(),
+                    cause,
+                    effect,
+                });
+            }
+        }
+        found.sort_by_key(|m| (m.start, std::cmp::Reverse(m.end - m.start), m.cue));
+        let mut kept: Vec<CueMatch> = Vec::new();
+        // Longest first, then drop anything overlapping a kept match.
+        let mut by_len = found.clone();
+        by_len.sort_by_key(|m| (std::cmp::Reverse(m.end - m.start), m.start, m.cue));
+        for m in by_len {
+            if !kept.iter().any(|k| m.start < k.end && k.start < m.end) {
+                kept.push(m);
+            }
+        }
+        kept.sort_by_key(|m| m.start);
+        kept
+    }
+
+    /// All cue matches in a sentence, using the prefilter on the sentence itself.
+    pub fn match_all(&self, sentence: &str) -> Vec<CueMatch> {
+        let hits = self.hits(sentence);
+        self.match_sentence(sentence, &self.candidates(&hits))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn set() -> CueSet {
+        CueSet::new(&PatternSet::builtin().unwrap()).unwrap()
+    }
+
+    #[test]
+    fn every_builtin_cue_compiles_and_has_anchors() {
+        let s = set();
+        for c in &s.cues {
+            assert!(!c.anchors.is_empty(), "{} has no anchor", c.spec.id);
+        }
+        assert!(s.literals().len() > 100);
+    }
+
+    #[test]
+    fn hits_are_whole_words() {
+        let s = set();
+        let text = "Because it rained. The causeway flooded; rain causes floods.";
+        let words: Vec<&str> = s.hits(text).iter().map(|h| &text[h.pos..]).collect();
+        assert!(words.iter().any(|w| w.starts_with("Because")));
+        assert!(words.iter().any(|w| w.starts_with("causes")));
+        assert!(!words.iter().any(|w| w.starts_with("causeway")));
+    }
+
+    #[test]
+    fn text_without_cues_has_no_hits() {
+        assert!(set()
+            .hits("The quick brown fox jumps over the lazy dog.")
+            .is_empty());
+    }
+
+    #[test]
+    fn longer_match_wins() {
+        let s = set();
+        let sentence = "The fire was caused by a spark.";
+        let ms = s.match_all(sentence);
+        assert_eq!(ms.len(), 1, "{ms:?}");
+        assert_eq!(ms[0].effect, SlotPlace::Before);
+        assert_eq!(ms[0].cause, SlotPlace::After);
+    }
+}

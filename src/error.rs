@@ -1,0 +1,66 @@
+//! Typed errors of the library. The binary wraps them with `anyhow` context; the library never
+//! prints and never exits.
+
+use std::path::PathBuf;
+
+/// Errors from loading and validating pattern files.
+#[derive(Debug, thiserror::Error)]
+pub enum PatternError {
+    #[error("{path}:{line}: {message}")]
+    Invalid {
+        path: PathBuf,
+        line: usize,
+        message: String,
+    },
+    #[error("cannot read {path}: {source}")]
+    Io {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+}
+
+/// Errors from reading one input file. They are per file: the run records them and goes on.
+#[derive(Debug, thiserror::Error)]
+pub enum ReadError {
+    #[error("cannot read: {0}")]
+    Io(#[from] std::io::Error),
+    #[error("binary file (skipped): {0}")]
+    Binary(String),
+    #[error("{0}")]
+    Malformed(String),
+    #[error("too large: {0}")]
+    TooLarge(String),
+}
+
+/// Errors from the claim store.
+#[derive(Debug, thiserror::Error)]
+pub enum StoreError {
+    #[error("no store at {0} (run `hearsay scan PATH...` first, or pass --store DIR)")]
+    Missing(PathBuf),
+    #[error("store {path}: {message}")]
+    Corrupt { path: PathBuf, message: String },
+    #[error("store {path}: {source}")]
+    Io {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+    #[error("search index: {0}")]
+    Index(#[from] tantivy::TantivyError),
+    #[error(
+        "store {path} has schema {found}, this hearsay reads {expected}; rescan into a new store"
+    )]
+    Version {
+        path: PathBuf,
+        found: u32,
+        expected: u32,
+    },
+}
+
+impl StoreError {
+    pub(crate) fn io(path: impl Into<PathBuf>, source: std::io::Error) -> Self {
+        StoreError::Io {
+            path: path.into(),
+            source,
+        }
+    }
+}

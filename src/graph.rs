@@ -1,0 +1,285 @@
+//! The claim graph: claims aggregated per variable and per ordered pair.
+//!
+//! Nodes are variables (alias-resolved keys); a directed edge cause → effect aggregates every
+//! causal claim between them: counts by polarity and modality, distinct documents and sentences,
+//! and the first and last claim in corpus order. Association claims are counted per unordered pair
+//! and never become causal edges. The graph is built from compact [`ClaimRow`]s, so it can be
+//! rebuilt from a store in milliseconds; full claim records are fetched only as evidence.
+
+use crate::model::{Claim, Kind, Modality, Polarity};
+use crate::normalize::Aliases;
+use petgraph::graph::{DiGraph, NodeIndex};
+use petgraph::visit::EdgeRef;
+use serde::{Deserialize, Serialize};
+use std::collections::{BTreeMap, BTreeSet, HashMap};
+
+/// Where a full claim record lives in the store.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ClaimRef {
+    pub segment: u32,
+    pub offset: u64,
+    pub len: u32,
+}
+
+/// The compact form of a claim that the graph is built from.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ClaimRow {
+    pub cause: String,
+    pub effect: String,
+    pub cause_text: String,
+    pub effect_text: String,
+    pub kind: Kind,
+    pub polarity: Polarity,
+    pub modality: Modality,
+    pub cue: String,
+    /// The document: its path, plus `#record` for many-documents-per-file formats.
+    pub doc: String,
+    pub line: u32,
+    /// Byte offset of the sentence in its document.
+    pub sentence: u64,
+    pub at: ClaimRef,
+}
+
+impl ClaimRow {
+    pub fn from_claim(c: &Claim, at: ClaimRef) -> ClaimRow {
+        ClaimRow {
+            cause: c.cause.key.clone(),
+            effect: c.effect.key.clone(),
+            cause_text: c.cause.text.clone(),
+            effect_text: c.effect.text.clone(),
+            kind: c.kind,
+            polarity: c.polarity,
+            modality: c.modality,
+            cue: c.cue.clone(),
+            doc: doc_id(&c.source.path, c.source.record.as_deref()),
+            line: c.source.line as u32,
+            sentence: c.source.start as u64,
+            at,
+        }
+    }
+}
+
+/// The document identity used for "distinct documents".
+pub fn doc_id(path: &str, record: Option<&str>) -> String {
+    match record {
+        Some(r) => format!("{path}#{r}"),
+        None => path.to_string(),
+    }
+}
+
+/// Which claims to aggregate.
+#[derive(Debug, Clone, Default)]
+pub struct Filter {
+    pub kind: Option<Kind>,
+    pub polarity: Option<Polarity>,
+    pub modality: Option<Modality>,
+}
+
+impl Filter {
+    pub fn accepts(&self, r: &ClaimRow) -> bool {
+        self.kind.is_none_or(|k| k == r.kind)
+            && self.polarity.is_none_or(|p| p == r.polarity)
+            && self.modality.is_none_or(|m| m == r.modality)
+    }
+}
+
+/// Counts of claims by polarity and modality.
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize)]
+pub struct Counts {
+    /// polarity → modality → count.
+    pub by: BTreeMap<Polarity, BTreeMap<Modality, usize>>,
+    pub total: usize,
+}
+
+impl Counts {
+    pub fn add(&mut self, p: Polarity, m: Modality) {
+        *self.by.entry(p).or_default().entry(m).or_default() += 1;
+        self.total += 1;
+    }
+    pub fn modality(&self, m: Modality) -> usize {
+        self.by
+            .values()
+            .map(|x| x.get(&m).copied().unwrap_or(0))
+            .sum()
+    }
+    pub fn polarity(&self, p: Polarity) -> usize {
+        self.by.get(&p).map(|x| x.values().sum()).unwrap_or(0)
+    }
+}
+
+/// A variable.
+#[derive(Debug, Clone, Default)]
+pub struct Variable {
+    pub key: String,
+    pub label: String,
+    pub mentions: usize,
+    pub docs: usize,
+}
+
+/// Everything known about claims between one ordered pair (or one unordered pair, for associations).
+#[derive(Debug, Clone, Default)]
+pub struct Relation {
+    pub counts: Counts,
+    pub docs: BTreeSet<u32>,
+    pub sentences: BTreeSet<(u32, u64)>,
+    /// Row indices, in corpus order.
+    pub rows: Vec<usize>,
+}
+
+impl Relation {
+    fn add(&mut self, row: usize, r: &ClaimRow, doc: u32) {
+        self.counts.add(r.polarity, r.modality);
+        self.docs.insert(doc);
+        self.sentences.insert((doc, r.sentence));
+        self.rows.push(row);
+    }
+    /// Claims that support the relation: all but the negated ones.
+    pub fn support(&self) -> usize {
+        self.counts.total - self.counts.modality(Modality::Negated)
+    }
+}
+
+/// The aggregated claim graph.
+#[derive(Debug, Default)]
+pub struct ClaimGraph {
+    pub graph: DiGraph<Variable, Relation>,
+    pub index: HashMap<String, NodeIndex>,
+    /// Association claims per unordered pair (smaller node index first).
+    pub associations: HashMap<(NodeIndex, NodeIndex), Relation>,
+    pub rows: Vec<ClaimRow>,
+    /// Document ids, indexed by the numbers in [`Relation::docs`].
+    pub docs: Vec<String>,
+}
+
+impl ClaimGraph {
+    /// Build the graph from rows, resolving keys through `aliases` and keeping rows the filter accepts.
+    pub fn build(rows: Vec<ClaimRow>, aliases: &Aliases, filter: &Filter) -> ClaimGraph {
+        let mut g = ClaimGraph::default();
+        let mut doc_ids: HashMap<String, u32> = HashMap::new();
+        let mut labels: HashMap<NodeIndex, HashMap<String, usize>> = HashMap::new();
+        let mut var_docs: HashMap<NodeIndex, BTreeSet<u32>> = HashMap::new();
+        let mut edges: HashMap<(NodeIndex, NodeIndex), Relation> = HashMap::new();
+        for mut r in rows.into_iter().filter(|r| filter.accepts(r)) {
+            r.cause = aliases.resolve(&r.cause).to_string();
+            r.effect = aliases.resolve(&r.effect).to_string();
+            if r.cause == r.effect {
+                continue;
+            }
+            let next = doc_ids.len() as u32;
+            let doc = *doc_ids.entry(r.doc.clone()).or_insert_with(|| {
+                g.docs.push(r.doc.clone());
+                next
+            });
+            let a = g.node(&r.cause);
+            let b = g.node(&r.effect);
+            for (n, text) in [(a, &r.cause_text), (b, &r.effect_text)] {
+                *labels
+                    .entry(n)
+                    .or_default()
+                    .entry(text.to_lowercase())
+                    .or_default() += 1;
+                g.graph[n].mentions += 1;
+                var_docs.entry(n).or_default().insert(doc);
+            }
+            let row = g.rows.len();
+            match r.kind {
+                Kind::Causal => edges.entry((a, b)).or_default().add(row, &r, doc),
+                Kind::Association => g
+                    .associations
+                    .entry((a.min(b), a.max(b)))
+                    .or_default()
+                    .add(row, &r, doc),
+            }
+            g.rows.push(r);
+        }
+        for (n, forms) in labels {
+            let mut forms: Vec<(String, usize)> = forms.into_iter().collect();
+            forms.sort_by(|x, y| y.1.cmp(&x.1).then_with(|| x.0.cmp(&y.0)));
+            g.graph[n].label = forms.into_iter().next().map(|f| f.0).unwrap_or_default();
+        }
+        for (n, d) in var_docs {
+            g.graph[n].docs = d.len();
+        }
+        let mut edges: Vec<_> = edges.into_iter().collect();
+        edges.sort_by_key(|((a, b), _)| (*a, *b));
+        for ((a, b), rel) in edges {
+            g.graph.add_edge(a, b, rel);
+        }
+        g
+    }
+
+    fn node(&mut self, key: &str) -> NodeIndex {
+        if let Some(&n) = self.index.get(key) {
+            return n;
+        }
+        let n = self.graph.add_node(Variable {
+            key: key.to_string(),
+            ..Variable::default()
+        });
+        self.index.insert(key.to_string(), n);
+        n
+    }
+
+    /// The causal relation from `a` to `b`, if any.
+    pub fn edge(&self, a: NodeIndex, b: NodeIndex) -> Option<&Relation> {
+        self.graph.find_edge(a, b).map(|e| &self.graph[e])
+    }
+
+    /// The association counts of an unordered pair.
+    pub fn association(&self, a: NodeIndex, b: NodeIndex) -> Option<&Relation> {
+        self.associations.get(&(a.min(b), a.max(b)))
+    }
+
+    /// Every causal edge as (cause, effect, relation).
+    pub fn edges(&self) -> impl Iterator<Item = (NodeIndex, NodeIndex, &Relation)> {
+        self.graph
+            .edge_references()
+            .map(|e| (e.source(), e.target(), e.weight()))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn row(c: &str, e: &str, kind: Kind, m: Modality, doc: &str) -> ClaimRow {
+        ClaimRow {
+            cause: c.into(),
+            effect: e.into(),
+            cause_text: c.into(),
+            effect_text: e.into(),
+            kind,
+            polarity: Polarity::Increase,
+            modality: m,
+            cue: "x".into(),
+            doc: doc.into(),
+            line: 1,
+            sentence: 0,
+            at: ClaimRef {
+                segment: 0,
+                offset: 0,
+                len: 0,
+            },
+        }
+    }
+
+    #[test]
+    fn aggregates_by_direction_and_keeps_associations_apart() {
+        let rows = vec![
+            row("a", "b", Kind::Causal, Modality::Asserted, "d1"),
+            row("a", "b", Kind::Causal, Modality::Hedged, "d2"),
+            row("a", "b", Kind::Causal, Modality::Negated, "d2"),
+            row("b", "a", Kind::Causal, Modality::Asserted, "d3"),
+            row("a", "c", Kind::Association, Modality::Asserted, "d1"),
+        ];
+        let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
+        let (a, b, c) = (g.index["a"], g.index["b"], g.index["c"]);
+        let ab = g.edge(a, b).unwrap();
+        assert_eq!((ab.counts.total, ab.docs.len(), ab.support()), (3, 2, 2));
+        assert_eq!(g.edge(b, a).unwrap().counts.total, 1);
+        assert!(g.edge(a, c).is_none());
+        assert_eq!(g.association(c, a).unwrap().counts.total, 1);
+        assert_eq!(g.graph[a].mentions, 5);
+        assert_eq!(g.graph[a].docs, 3);
+    }
+}

@@ -1,0 +1,129 @@
+//! Variable keys: how "the rising sea levels" and "rising sea level" become the same variable.
+//!
+//! A key is the lower-cased content words of a span, with determiners and stop words removed and
+//! each word stemmed (Porter2, from `rust-stemmers`), joined by single spaces. Aliases map keys onto
+//! keys, so an alias file written in surface forms works through the same normalisation. Keys are
+//! computed at extraction time and stored in the claim; aliases are applied when the graph is built,
+//! so changing an alias file needs no rescan.
+
+use crate::patterns::Lexicon;
+use rust_stemmers::{Algorithm, Stemmer};
+use std::collections::{HashMap, HashSet};
+
+/// Turns surface text into variable keys.
+pub struct Normalizer {
+    stemmer: Stemmer,
+    dropped: HashSet<String>,
+}
+
+impl std::fmt::Debug for Normalizer {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Normalizer")
+            .field("dropped", &self.dropped.len())
+            .finish()
+    }
+}
+
+impl Normalizer {
+    pub fn new(lexicon: &Lexicon) -> Self {
+        let mut dropped: HashSet<String> = lexicon.determiners.iter().cloned().collect();
+        dropped.extend(lexicon.stopwords.iter().cloned());
+        Normalizer {
+            stemmer: Stemmer::create(Algorithm::English),
+            dropped,
+        }
+    }
+
+    /// The words of `text` that a key keeps, lower-cased but not stemmed.
+    pub fn content_words<'a>(&'a self, text: &'a str) -> impl Iterator<Item = String> + 'a {
+        text.split(|c: char| !(c.is_alphanumeric() || c == '\'' || c == '’'))
+            .map(|w| w.trim_matches(|c| c == '\'' || c == '’'))
+            .filter(|w| !w.is_empty())
+            .map(str::to_lowercase)
+            .map(|w| {
+                w.strip_suffix("'s")
+                    .or_else(|| w.strip_suffix("’s"))
+                    .map(str::to_string)
+                    .unwrap_or(w)
+            })
+            .filter(move |w| !self.dropped.contains(w))
+    }
+
+    /// The variable key of `text`; empty when it has no content word.
+    pub fn key(&self, text: &str) -> String {
+        let mut out = String::with_capacity(text.len());
+        for w in self.content_words(text) {
+            if !out.is_empty() {
+                out.push(' ');
+            }
+            out.push_str(&self.stemmer.stem(&w));
+        }
+        out
+    }
+
+    /// The stemmed terms of a key or surface text, as the search index stores them.
+    pub fn terms(&self, text: &str) -> Vec<String> {
+        self.key(text)
+            .split(' ')
+            .filter(|t| !t.is_empty())
+            .map(str::to_string)
+            .collect()
+    }
+}
+
+/// A key → key mapping built from alias pairs in surface form.
+#[derive(Debug, Clone, Default)]
+pub struct Aliases {
+    map: HashMap<String, String>,
+}
+
+impl Aliases {
+    /// Build from (surface form, variable name) pairs; earlier pairs win.
+    pub fn new(normalizer: &Normalizer, pairs: &[(String, String)]) -> Self {
+        let mut map = HashMap::new();
+        for (from, to) in pairs {
+            let (f, t) = (normalizer.key(from), normalizer.key(to));
+            if !f.is_empty() && !t.is_empty() && f != t {
+                map.entry(f).or_insert(t);
+            }
+        }
+        Aliases { map }
+    }
+
+    /// The variable a key stands for.
+    pub fn resolve<'a>(&'a self, key: &'a str) -> &'a str {
+        self.map.get(key).map(String::as_str).unwrap_or(key)
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.map.is_empty()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::patterns::PatternSet;
+
+    fn norm() -> Normalizer {
+        Normalizer::new(&PatternSet::builtin().unwrap().lexicon)
+    }
+
+    #[test]
+    fn inflected_phrases_meet() {
+        let n = norm();
+        assert_eq!(n.key("the rising sea levels"), n.key("rising sea level"));
+        assert_eq!(n.key("Crayfish numbers"), n.key("crayfish number"));
+        assert_eq!(n.key("sea-level"), n.key("sea level"));
+        assert_eq!(n.key("the lake's algae"), n.key("lake algae"));
+        assert_eq!(n.key("the"), "");
+    }
+
+    #[test]
+    fn aliases_map_surface_forms() {
+        let n = norm();
+        let a = Aliases::new(&n, &[("algal blooms".into(), "algae bloom".into())]);
+        assert_eq!(a.resolve(&n.key("the algal bloom")), n.key("algae blooms"));
+        assert_eq!(a.resolve("other"), "other");
+    }
+}

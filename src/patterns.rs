@@ -1,0 +1,781 @@
+//! Loading, validating and expanding the pattern files in `patterns/`.
+//!
+//! Everything hearsay knows about how English states cause and effect is data: cue entries
+//! (`cues/*.toml`), the word lists used around a match (`lexicon.toml`) and irregular verb forms
+//! (`irregular-verbs.tsv`). This module turns those files into checked, typed values and reports
+//! any mistake as `file:line: reason`. It does no matching itself; `cues` compiles the result.
+//!
+//! The shipped files are compiled into the binary, so `hearsay` works from any directory;
+//! `--patterns DIR` loads a user's folder with the same layout instead.
+
+use crate::error::PatternError;
+use crate::model::{Kind, Modality, Polarity};
+use serde::Deserialize;
+use std::collections::{BTreeMap, HashMap, HashSet};
+use std::path::{Path, PathBuf};
+
+/// The built-in pattern files, embedded at compile time. A test checks that every file in
+/// `patterns/cues/` is listed here.
+pub const BUILTIN_CUE_FILES: &[(&str, &str)] = &[
+    (
+        "cues/causal-verbs.toml",
+        include_str!("../patterns/cues/causal-verbs.toml"),
+    ),
+    (
+        "cues/directional.toml",
+        include_str!("../patterns/cues/directional.toml"),
+    ),
+    (
+        "cues/connectives.toml",
+        include_str!("../patterns/cues/connectives.toml"),
+    ),
+    (
+        "cues/nominal-passive.toml",
+        include_str!("../patterns/cues/nominal-passive.toml"),
+    ),
+    (
+        "cues/association.toml",
+        include_str!("../patterns/cues/association.toml"),
+    ),
+    (
+        "cues/no-effect.toml",
+        include_str!("../patterns/cues/no-effect.toml"),
+    ),
+];
+const BUILTIN_LEXICON: &str = include_str!("../patterns/lexicon.toml");
+const BUILTIN_IRREGULAR: &str = include_str!("../patterns/irregular-verbs.tsv");
+const BUILTIN_ALIASES: &str = include_str!("../patterns/aliases.tsv");
+
+/// Which slot a pattern token stands for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Role {
+    Cause,
+    Effect,
+}
+
+/// One token of a cue's pattern string.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum PatternToken {
+    Slot(Role),
+    /// A literal word, with its accepted forms (one form unless the word was marked `~`).
+    Word {
+        forms: Vec<String>,
+    },
+    /// A literal glued by a hyphen to the word before it (`-induced`).
+    Glued {
+        forms: Vec<String>,
+    },
+    /// Optional punctuation.
+    Punct(char),
+}
+
+/// An example sentence with the claim it must give.
+#[derive(Debug, Clone)]
+pub struct Example {
+    pub text: String,
+    pub cause: String,
+    pub effect: String,
+    pub polarity: Option<Polarity>,
+    pub modality: Option<Modality>,
+}
+
+/// A validated cue entry, before compilation into a matcher.
+#[derive(Debug, Clone)]
+pub struct CueSpec {
+    pub id: String,
+    pub family: String,
+    pub pattern: String,
+    pub tokens: Vec<PatternToken>,
+    pub kind: Kind,
+    pub polarity: Polarity,
+    /// Slots are clauses (connectives), not noun phrases.
+    pub clause_spans: bool,
+    pub reject_after: Option<String>,
+    pub reject_before: Option<String>,
+    pub examples: Vec<Example>,
+    pub counter_examples: Vec<String>,
+    /// Where the entry was defined, for messages.
+    pub origin: (PathBuf, usize),
+}
+
+/// Word lists used around a cue match (see `patterns/lexicon.toml`).
+#[derive(Debug, Clone, Default)]
+pub struct Lexicon {
+    pub determiners: HashSet<String>,
+    pub clause_breaks: HashSet<String>,
+    pub relatives: HashSet<String>,
+    pub auxiliaries: HashSet<String>,
+    pub prepositions: HashSet<String>,
+    pub reporting_verbs: HashSet<String>,
+    pub max_words: usize,
+    pub fillers: HashSet<String>,
+    pub not_adverbs: HashSet<String>,
+    pub hedges: Vec<Vec<String>>,
+    pub negators: Vec<Vec<String>>,
+    pub conditionals: Vec<Vec<String>>,
+    pub sign_increase: HashSet<String>,
+    pub sign_decrease: HashSet<String>,
+    pub increase_nouns: HashSet<String>,
+    pub decrease_nouns: HashSet<String>,
+    pub change_links: HashSet<String>,
+    pub stopwords: HashSet<String>,
+}
+
+/// Everything loaded from one pattern folder.
+#[derive(Debug, Clone)]
+pub struct PatternSet {
+    pub cues: Vec<CueSpec>,
+    pub lexicon: Lexicon,
+    /// Surface form → variable name pairs from `aliases.tsv` (applied after the user's own).
+    pub aliases: Vec<(String, String)>,
+    /// Where the set came from, for messages: "built-in" or the folder.
+    pub origin: String,
+}
+
+impl PatternSet {
+    /// The patterns shipped with hearsay.
+    pub fn builtin() -> Result<PatternSet, PatternError> {
+        let irregular =
+            parse_irregular(Path::new("patterns/irregular-verbs.tsv"), BUILTIN_IRREGULAR)?;
+        let mut cues = Vec::new();
+        for (name, text) in BUILTIN_CUE_FILES {
+            cues.extend(parse_cue_file(
+                &Path::new("patterns").join(name),
+                text,
+                &irregular,
+            )?);
+        }
+        check_unique(&cues)?;
+        Ok(PatternSet {
+            cues,
+            lexicon: parse_lexicon(Path::new("patterns/lexicon.toml"), BUILTIN_LEXICON)?,
+            aliases: parse_aliases(Path::new("patterns/aliases.tsv"), BUILTIN_ALIASES)?,
+            origin: "built-in".into(),
+        })
+    }
+
+    /// A user's pattern folder with the same layout as `patterns/`. `lexicon.toml` and
+    /// `irregular-verbs.tsv` fall back to the built-in ones when the folder has none.
+    pub fn load_dir(dir: &Path) -> Result<PatternSet, PatternError> {
+        let read = |p: PathBuf| {
+            std::fs::read_to_string(&p).map_err(|source| PatternError::Io { path: p, source })
+        };
+        let irr_path = dir.join("irregular-verbs.tsv");
+        let irregular = if irr_path.exists() {
+            parse_irregular(&irr_path, &read(irr_path.clone())?)?
+        } else {
+            parse_irregular(Path::new("patterns/irregular-verbs.tsv"), BUILTIN_IRREGULAR)?
+        };
+        let cue_dir = dir.join("cues");
+        let mut files: Vec<PathBuf> = std::fs::read_dir(&cue_dir)
+            .map_err(|source| PatternError::Io {
+                path: cue_dir.clone(),
+                source,
+            })?
+            .filter_map(|e| e.ok().map(|e| e.path()))
+            .filter(|p| p.extension().is_some_and(|x| x == "toml"))
+            .collect();
+        files.sort();
+        if files.is_empty() {
+            return Err(PatternError::Invalid {
+                path: cue_dir,
+                line: 0,
+                message: "no .toml cue files".into(),
+            });
+        }
+        let mut cues = Vec::new();
+        for f in files {
+            let text = read(f.clone())?;
+            cues.extend(parse_cue_file(&f, &text, &irregular)?);
+        }
+        check_unique(&cues)?;
+        let lex_path = dir.join("lexicon.toml");
+        let lexicon = if lex_path.exists() {
+            parse_lexicon(&lex_path, &read(lex_path.clone())?)?
+        } else {
+            parse_lexicon(Path::new("patterns/lexicon.toml"), BUILTIN_LEXICON)?
+        };
+        let al_path = dir.join("aliases.tsv");
+        let aliases = if al_path.exists() {
+            parse_aliases(&al_path, &read(al_path.clone())?)?
+        } else {
+            Vec::new()
+        };
+        Ok(PatternSet {
+            cues,
+            lexicon,
+            aliases,
+            origin: dir.display().to_string(),
+        })
+    }
+
+    /// The built-in set, or the folder when one is given.
+    pub fn load(dir: Option<&Path>) -> Result<PatternSet, PatternError> {
+        match dir {
+            Some(d) => Self::load_dir(d),
+            None => Self::builtin(),
+        }
+    }
+}
+
+fn invalid(path: &Path, line: usize, message: impl Into<String>) -> PatternError {
+    PatternError::Invalid {
+        path: path.to_path_buf(),
+        line,
+        message: message.into(),
+    }
+}
+
+fn line_of(text: &str, offset: usize) -> usize {
+    text[..offset.min(text.len())]
+        .bytes()
+        .filter(|&b| b == b'\n')
+        .count()
+        + 1
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawFile {
+    #[serde(default)]
+    cue: Vec<toml::Spanned<RawCue>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCue {
+    id: String,
+    family: Option<String>,
+    pattern: String,
+    kind: String,
+    polarity: String,
+    spans: Option<String>,
+    reject_after: Option<String>,
+    reject_before: Option<String>,
+    #[serde(default)]
+    examples: Vec<RawExample>,
+    #[serde(default)]
+    counter_examples: Vec<String>,
+    #[allow(dead_code)]
+    note: Option<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawExample {
+    text: String,
+    cause: String,
+    effect: String,
+    polarity: Option<String>,
+    modality: Option<String>,
+}
+
+/// Parse one cue file. Every error names the file and the line of the offending entry.
+pub fn parse_cue_file(
+    path: &Path,
+    text: &str,
+    irregular: &Irregular,
+) -> Result<Vec<CueSpec>, PatternError> {
+    let raw: RawFile = toml::from_str(text).map_err(|e| {
+        let line = e.span().map(|s| line_of(text, s.start)).unwrap_or(0);
+        invalid(path, line, e.message().to_string())
+    })?;
+    let mut out = Vec::with_capacity(raw.cue.len());
+    for spanned in raw.cue {
+        let line = line_of(text, spanned.span().start);
+        let raw = spanned.into_inner();
+        let err = |m: String| invalid(path, line, format!("cue '{}': {m}", raw.id));
+        if raw.id.is_empty()
+            || !raw
+                .id
+                .chars()
+                .all(|c| c.is_ascii_lowercase() || c.is_ascii_digit() || c == '-' || c == '.')
+        {
+            return Err(err(
+                "id must be lowercase letters, digits, '-' or '.'".into()
+            ));
+        }
+        let kind: Kind = raw.kind.parse().map_err(err)?;
+        let polarity: Polarity = raw.polarity.parse().map_err(err)?;
+        let clause_spans = match raw.spans.as_deref() {
+            None | Some("phrase") => false,
+            Some("clause") => true,
+            Some(o) => {
+                return Err(err(format!(
+                    "spans must be \"phrase\" or \"clause\", not \"{o}\""
+                )))
+            }
+        };
+        let tokens = parse_pattern(&raw.pattern, irregular).map_err(err)?;
+        for (name, re) in [
+            ("reject_after", &raw.reject_after),
+            ("reject_before", &raw.reject_before),
+        ] {
+            if let Some(re) = re {
+                regex::Regex::new(re).map_err(|e| err(format!("{name}: invalid regex: {e}")))?;
+            }
+        }
+        if raw.examples.is_empty() {
+            return Err(err("needs at least one example".into()));
+        }
+        let mut examples = Vec::new();
+        for ex in raw.examples {
+            examples.push(Example {
+                polarity: ex
+                    .polarity
+                    .as_deref()
+                    .map(str::parse)
+                    .transpose()
+                    .map_err(err)?,
+                modality: ex
+                    .modality
+                    .as_deref()
+                    .map(str::parse)
+                    .transpose()
+                    .map_err(err)?,
+                text: ex.text,
+                cause: ex.cause,
+                effect: ex.effect,
+            });
+        }
+        out.push(CueSpec {
+            family: raw.family.unwrap_or_else(|| "other".into()),
+            id: raw.id,
+            pattern: raw.pattern,
+            tokens,
+            kind,
+            polarity,
+            clause_spans,
+            reject_after: raw.reject_after,
+            reject_before: raw.reject_before,
+            examples,
+            counter_examples: raw.counter_examples,
+            origin: (path.to_path_buf(), line),
+        });
+    }
+    Ok(out)
+}
+
+fn check_unique(cues: &[CueSpec]) -> Result<(), PatternError> {
+    let mut seen: HashMap<&str, &CueSpec> = HashMap::new();
+    for c in cues {
+        if let Some(first) = seen.insert(&c.id, c) {
+            return Err(invalid(
+                &c.origin.0,
+                c.origin.1,
+                format!(
+                    "duplicate cue id '{}' (first defined at {}:{})",
+                    c.id,
+                    first.origin.0.display(),
+                    first.origin.1
+                ),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Split a pattern string into tokens and check its shape.
+pub fn parse_pattern(pattern: &str, irregular: &Irregular) -> Result<Vec<PatternToken>, String> {
+    let mut tokens = Vec::new();
+    for word in pattern.split_whitespace() {
+        let tok = match word {
+            "CAUSE" => PatternToken::Slot(Role::Cause),
+            "EFFECT" => PatternToken::Slot(Role::Effect),
+            "," | ";" => PatternToken::Punct(word.chars().next().unwrap_or(',')),
+            w if w.starts_with('-') && w.len() > 1 => PatternToken::Glued {
+                forms: word_forms(&w[1..], irregular)?,
+            },
+            w => PatternToken::Word {
+                forms: word_forms(w, irregular)?,
+            },
+        };
+        tokens.push(tok);
+    }
+    let count = |r: Role| {
+        tokens
+            .iter()
+            .filter(|t| **t == PatternToken::Slot(r))
+            .count()
+    };
+    if count(Role::Cause) != 1 || count(Role::Effect) != 1 {
+        return Err(format!(
+            "pattern \"{pattern}\" must contain CAUSE and EFFECT exactly once each"
+        ));
+    }
+    if !tokens
+        .iter()
+        .any(|t| matches!(t, PatternToken::Word { .. } | PatternToken::Glued { .. }))
+    {
+        return Err(format!("pattern \"{pattern}\" has no literal word"));
+    }
+    for (i, t) in tokens.iter().enumerate() {
+        if matches!(t, PatternToken::Glued { .. })
+            && !matches!(tokens.get(i.wrapping_sub(1)), Some(PatternToken::Slot(_)))
+        {
+            return Err(format!(
+                "pattern \"{pattern}\": a '-word' must follow a slot"
+            ));
+        }
+        if let (PatternToken::Slot(_), Some(PatternToken::Slot(_))) = (t, tokens.get(i + 1)) {
+            return Err(format!(
+                "pattern \"{pattern}\": two slots need a literal between them"
+            ));
+        }
+    }
+    Ok(tokens)
+}
+
+fn word_forms(word: &str, irregular: &Irregular) -> Result<Vec<String>, String> {
+    let (base, inflect) = match word.strip_suffix('~') {
+        Some(b) => (b, true),
+        None => (word, false),
+    };
+    if base.is_empty()
+        || !base
+            .chars()
+            .all(|c| c.is_alphanumeric() || c == '-' || c == '\'')
+    {
+        return Err(format!(
+            "bad literal '{word}': use letters, digits, '-' or '\\''"
+        ));
+    }
+    if base.chars().any(|c| c.is_uppercase()) {
+        return Err(format!(
+            "literal '{word}' must be lower-case (CAUSE and EFFECT are the only upper-case tokens)"
+        ));
+    }
+    Ok(if inflect {
+        inflect_verb(base, irregular)
+    } else {
+        vec![base.to_string()]
+    })
+}
+
+/// Irregular verb forms: base → (past, past participle).
+pub type Irregular = HashMap<String, (Vec<String>, Vec<String>)>;
+
+/// Parse `irregular-verbs.tsv`: `base<TAB>past<TAB>participle`, with `/` between variants.
+pub fn parse_irregular(path: &Path, text: &str) -> Result<Irregular, PatternError> {
+    let mut map = Irregular::new();
+    for (i, line) in text.lines().enumerate() {
+        let line = line.trim();
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        let cols: Vec<&str> = line.split('\t').map(str::trim).collect();
+        if cols.len() != 3 || cols.iter().any(|c| c.is_empty()) {
+            return Err(invalid(
+                path,
+                i + 1,
+                "expected three tab-separated columns: base, past, past participle",
+            ));
+        }
+        let split = |s: &str| {
+            s.split('/')
+                .map(|x| x.trim().to_lowercase())
+                .collect::<Vec<_>>()
+        };
+        map.insert(cols[0].to_lowercase(), (split(cols[1]), split(cols[2])));
+    }
+    Ok(map)
+}
+
+fn is_vowel(c: u8) -> bool {
+    matches!(c, b'a' | b'e' | b'i' | b'o' | b'u')
+}
+
+/// The inflected forms of a verb: base, third person, past, participle and gerund.
+pub fn inflect_verb(base: &str, irregular: &Irregular) -> Vec<String> {
+    let b = base.as_bytes();
+    let n = b.len();
+    let last = b.last().copied().unwrap_or(b'x');
+    let mut forms = vec![base.to_string()];
+    // The two verbs whose present tense is irregular too.
+    match base {
+        "have" => forms.push("has".into()),
+        "be" => forms.extend(["is", "are", "am", "was", "were", "been", "being"].map(String::from)),
+        _ => {}
+    }
+    // Third person singular.
+    if base.ends_with('s')
+        || base.ends_with('x')
+        || base.ends_with('z')
+        || base.ends_with("ch")
+        || base.ends_with("sh")
+    {
+        forms.push(format!("{base}es"));
+    } else if last == b'y' && n > 1 && !is_vowel(b[n - 2]) {
+        forms.push(format!("{}ies", &base[..n - 1]));
+    } else if last == b'o' && n > 1 && !is_vowel(b[n - 2]) {
+        forms.push(format!("{base}es"));
+    } else {
+        forms.push(format!("{base}s"));
+    }
+    // A final consonant after a single vowel may double ("stop" → "stopped"); both spellings are
+    // kept, since a wrong one simply never occurs in text.
+    let cvc = n >= 3
+        && !is_vowel(last)
+        && !matches!(last, b'w' | b'x' | b'y')
+        && is_vowel(b[n - 2])
+        && !is_vowel(b[n - 3]);
+    let stems: Vec<String> = if cvc {
+        vec![base.to_string(), format!("{base}{}", last as char)]
+    } else {
+        vec![base.to_string()]
+    };
+    if let Some((past, part)) = irregular.get(base) {
+        forms.extend(past.iter().cloned());
+        forms.extend(part.iter().cloned());
+    } else if last == b'e' {
+        forms.push(format!("{base}d"));
+    } else if last == b'y' && n > 1 && !is_vowel(b[n - 2]) {
+        forms.push(format!("{}ied", &base[..n - 1]));
+    } else {
+        forms.extend(stems.iter().map(|s| format!("{s}ed")));
+    }
+    // Gerund.
+    if base.ends_with("ie") {
+        forms.push(format!("{}ying", &base[..n - 2]));
+    } else if last == b'e' && !base.ends_with("ee") && n > 2 {
+        forms.push(format!("{}ing", &base[..n - 1]));
+    } else {
+        forms.extend(stems.iter().map(|s| format!("{s}ing")));
+    }
+    let mut seen = HashSet::new();
+    forms.retain(|f| seen.insert(f.clone()));
+    forms
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawLexicon {
+    span: RawSpanLex,
+    verb_group: RawVerbGroup,
+    modality: RawModality,
+    sign: RawSign,
+    keys: RawKeys,
+}
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSpanLex {
+    determiners: Vec<String>,
+    clause_breaks: Vec<String>,
+    relatives: Vec<String>,
+    auxiliaries: Vec<String>,
+    prepositions: Vec<String>,
+    reporting_verbs: Vec<String>,
+    max_words: usize,
+}
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawVerbGroup {
+    fillers: Vec<String>,
+    #[serde(default)]
+    not_adverbs: Vec<String>,
+}
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawModality {
+    hedges: Vec<String>,
+    negators: Vec<String>,
+    conditionals: Vec<String>,
+}
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSign {
+    increase: Vec<String>,
+    decrease: Vec<String>,
+    increase_nouns: Vec<String>,
+    decrease_nouns: Vec<String>,
+    change_links: Vec<String>,
+}
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawKeys {
+    stopwords: Vec<String>,
+}
+
+/// Parse `lexicon.toml`.
+pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
+    let raw: RawLexicon = toml::from_str(text).map_err(|e| {
+        let line = e.span().map(|s| line_of(text, s.start)).unwrap_or(0);
+        invalid(path, line, e.message().to_string())
+    })?;
+    let set = |v: Vec<String>| {
+        v.into_iter()
+            .map(|s| s.to_lowercase())
+            .collect::<HashSet<_>>()
+    };
+    let phrases = |v: Vec<String>| {
+        v.into_iter()
+            .map(|s| {
+                s.to_lowercase()
+                    .split_whitespace()
+                    .map(str::to_string)
+                    .collect::<Vec<_>>()
+            })
+            .filter(|p| !p.is_empty())
+            .collect::<Vec<_>>()
+    };
+    if raw.span.max_words == 0 {
+        return Err(invalid(
+            path,
+            line_of(text, text.find("max_words").unwrap_or(0)),
+            "max_words must be at least 1",
+        ));
+    }
+    Ok(Lexicon {
+        determiners: set(raw.span.determiners),
+        clause_breaks: set(raw.span.clause_breaks),
+        relatives: set(raw.span.relatives),
+        auxiliaries: set(raw.span.auxiliaries),
+        prepositions: set(raw.span.prepositions),
+        reporting_verbs: set(raw.span.reporting_verbs),
+        max_words: raw.span.max_words,
+        fillers: set(raw.verb_group.fillers),
+        not_adverbs: set(raw.verb_group.not_adverbs),
+        hedges: phrases(raw.modality.hedges),
+        negators: phrases(raw.modality.negators),
+        conditionals: phrases(raw.modality.conditionals),
+        sign_increase: set(raw.sign.increase),
+        sign_decrease: set(raw.sign.decrease),
+        increase_nouns: set(raw.sign.increase_nouns),
+        decrease_nouns: set(raw.sign.decrease_nouns),
+        change_links: set(raw.sign.change_links),
+        stopwords: set(raw.keys.stopwords),
+    })
+}
+
+/// Parse an alias file: `surface form<TAB>variable name` per line, `#` comments.
+pub fn parse_aliases(path: &Path, text: &str) -> Result<Vec<(String, String)>, PatternError> {
+    let mut out = Vec::new();
+    for (i, line) in text.lines().enumerate() {
+        let t = line.trim();
+        if t.is_empty() || t.starts_with('#') {
+            continue;
+        }
+        let mut cols = t.splitn(2, '\t');
+        match (cols.next().map(str::trim), cols.next().map(str::trim)) {
+            (Some(a), Some(b)) if !a.is_empty() && !b.is_empty() => {
+                out.push((a.to_string(), b.to_string()))
+            }
+            _ => {
+                return Err(invalid(
+                    path,
+                    i + 1,
+                    "expected 'surface form<TAB>variable name'",
+                ))
+            }
+        }
+    }
+    Ok(out)
+}
+
+/// Load an alias file from disk.
+pub fn load_aliases(path: &Path) -> Result<Vec<(String, String)>, PatternError> {
+    let text = std::fs::read_to_string(path).map_err(|source| PatternError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    parse_aliases(path, &text)
+}
+
+/// Cue counts per family, for listings.
+pub fn families(cues: &[CueSpec]) -> BTreeMap<&str, usize> {
+    let mut m = BTreeMap::new();
+    for c in cues {
+        *m.entry(c.family.as_str()).or_insert(0) += 1;
+    }
+    m
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn irr() -> Irregular {
+        parse_irregular(Path::new("t"), "lead\tled\tled\ngive\tgave\tgiven\n").unwrap()
+    }
+
+    #[test]
+    fn inflects_regular_and_irregular_verbs() {
+        let i = irr();
+        assert_eq!(
+            inflect_verb("cause", &i),
+            ["cause", "causes", "caused", "causing"]
+        );
+        assert_eq!(
+            inflect_verb("lead", &i),
+            ["lead", "leads", "led", "leading"]
+        );
+        assert!(inflect_verb("stop", &i).contains(&"stopped".to_string()));
+        assert!(inflect_verb("worry", &i).contains(&"worries".to_string()));
+        assert!(inflect_verb("worry", &i).contains(&"worried".to_string()));
+        assert!(inflect_verb("reduce", &i).contains(&"reducing".to_string()));
+        assert!(inflect_verb("give", &i).contains(&"given".to_string()));
+        assert!(inflect_verb("increase", &i).contains(&"increases".to_string()));
+    }
+
+    #[test]
+    fn malformed_cue_file_names_file_and_line() {
+        let text = "[[cue]]\nid = \"ok\"\npattern = \"CAUSE cause~ EFFECT\"\nkind = \"causal\"\npolarity = \"unsigned\"\nexamples = [{text=\"a causes b\", cause=\"a\", effect=\"b\"}]\n\n[[cue]]\nid = \"bad\"\npattern = \"CAUSE raise~ EFFECT\"\nkind = \"causal\"\npolarity = \"upward\"\nexamples = [{text=\"a raises b\", cause=\"a\", effect=\"b\"}]\n";
+        let err = parse_cue_file(Path::new("x.toml"), text, &irr())
+            .unwrap_err()
+            .to_string();
+        assert!(
+            err.starts_with("x.toml:8: cue 'bad': unknown polarity 'upward'"),
+            "{err}"
+        );
+    }
+
+    #[test]
+    fn toml_syntax_error_has_line() {
+        let err = parse_cue_file(
+            Path::new("y.toml"),
+            "[[cue]]\nid = \"a\"\npattern = \n",
+            &irr(),
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(err.starts_with("y.toml:3:"), "{err}");
+    }
+
+    #[test]
+    fn pattern_shape_is_checked() {
+        let i = irr();
+        assert!(parse_pattern("CAUSE cause~ EFFECT", &i).is_ok());
+        assert!(parse_pattern("CAUSE EFFECT", &i).is_err());
+        assert!(parse_pattern("CAUSE cause~", &i).is_err());
+        assert!(parse_pattern("cause~ -induced CAUSE EFFECT", &i).is_err());
+        assert!(parse_pattern("CAUSE Cause EFFECT", &i).is_err());
+        assert!(parse_pattern("CAUSE -induced EFFECT", &i).is_ok());
+    }
+
+    #[test]
+    fn builtin_patterns_load() {
+        let set = PatternSet::builtin().expect("built-in patterns are valid");
+        assert!(set.cues.len() >= 120, "only {} cues", set.cues.len());
+    }
+
+    #[test]
+    fn every_cue_file_is_builtin() {
+        let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("patterns/cues");
+        for e in std::fs::read_dir(dir).unwrap() {
+            let name = format!("cues/{}", e.unwrap().file_name().to_string_lossy());
+            assert!(
+                BUILTIN_CUE_FILES.iter().any(|(n, _)| *n == name),
+                "{name} is not listed in BUILTIN_CUE_FILES"
+            );
+        }
+    }
+
+    #[test]
+    fn aliases_need_two_columns() {
+        assert!(parse_aliases(Path::new("a.tsv"), "# c\nsea rise\tsea level rise\n").is_ok());
+        let e = parse_aliases(Path::new("a.tsv"), "ok\tfine\nbroken line\n")
+            .unwrap_err()
+            .to_string();
+        assert!(e.starts_with("a.tsv:2:"), "{e}");
+    }
+}

@@ -1,0 +1,208 @@
+//! The per-document pipeline: document → sentences → cue matches → claims.
+//!
+//! This is the one place where the stages are chained, so `scan`, `extract`, `merge` and `eval`
+//! all produce the same claims from the same text. Its shape follows the cost model: the cue
+//! prefilter runs over the whole document first, and only the paragraph-like blocks around its
+//! hits are split into sentences and matched. A document without a cue word costs one
+//! Aho-Corasick pass. Sentence indexing (for `scan`) splits the whole document separately.
+
+use crate::claims::{Attempt, Extractor, Origin, SentenceRef};
+use crate::corpus::Document;
+use crate::model::Claim;
+use crate::sentences::{self, SentenceSpan};
+
+/// The largest block around a hit that is split into sentences, on each side of it.
+const BLOCK_CAP: usize = 4096;
+
+/// Byte offsets of line starts, for turning offsets into line and column.
+#[derive(Debug, Clone)]
+pub struct LineIndex {
+    starts: Vec<usize>,
+}
+
+impl LineIndex {
+    pub fn new(text: &str) -> Self {
+        let mut starts = vec![0];
+        starts.extend(memchr::memchr_iter(b'\n', text.as_bytes()).map(|i| i + 1));
+        LineIndex { starts }
+    }
+
+    /// 1-based line and column (in characters) of a byte offset.
+    pub fn line_col(&self, text: &str, offset: usize) -> (usize, usize) {
+        let line = self.starts.partition_point(|&s| s <= offset).max(1);
+        let ls = self.starts[line - 1];
+        let col = text.get(ls..offset).map(|s| s.chars().count()).unwrap_or(0) + 1;
+        (line, col)
+    }
+}
+
+/// Extract every claim of a document, in document order.
+pub fn document_claims(ex: &Extractor, doc: &Document) -> Vec<Claim> {
+    let mut out = Vec::new();
+    run(ex, doc, &mut out, None);
+    out
+}
+
+/// Like [`document_claims`], also returning every cue attempt (for `explain`).
+pub fn document_attempts(ex: &Extractor, doc: &Document) -> (Vec<Claim>, Vec<Attempt>) {
+    let mut out = Vec::new();
+    let mut trace = Vec::new();
+    run(ex, doc, &mut out, Some(&mut trace));
+    (out, trace)
+}
+
+fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&mut Vec<Attempt>>) {
+    let text = doc.text.as_str();
+    let hits = ex.cues.hits(text);
+    if hits.is_empty() {
+        return;
+    }
+    let lines = LineIndex::new(text);
+    let mut h = 0;
+    while h < hits.len() {
+        let (bs, be) =
+            sentences::block_around(text, hits[h].pos, doc.lines_are_paragraphs, BLOCK_CAP);
+        let mut h_end = h;
+        while h_end < hits.len() && hits[h_end].pos < be {
+            h_end += 1;
+        }
+        let block_hits = &hits[h..h_end.max(h + 1)];
+        let spans = sentences::split_region(text, bs, be);
+        let mut k = 0;
+        for (si, s) in spans.iter().enumerate() {
+            // Hits inside this sentence.
+            while k < block_hits.len() && block_hits[k].pos < s.start {
+                k += 1;
+            }
+            let mut k2 = k;
+            while k2 < block_hits.len() && block_hits[k2].pos < s.end {
+                k2 += 1;
+            }
+            if k2 == k {
+                continue;
+            }
+            let candidates = ex.cues.candidates(&block_hits[k..k2]);
+            let sent = SentenceRef {
+                text: &text[s.start..s.end],
+                offset: s.start,
+            };
+            let prev = si.checked_sub(1).map(|p| SentenceRef {
+                text: &text[spans[p].start..spans[p].end],
+                offset: spans[p].start,
+            });
+            let (line, column) = lines.line_col(text, s.start);
+            let origin = Origin {
+                path: &doc.path,
+                line,
+                column,
+                page: doc.page_of(s.start),
+                record: doc.record.as_deref(),
+            };
+            ex.extract(sent, prev, &origin, &candidates, out, trace.as_deref_mut());
+            k = k2;
+        }
+        h = h_end.max(h + 1);
+    }
+}
+
+/// A sentence for the search index.
+#[derive(Debug, Clone)]
+pub struct IndexedSentence<'a> {
+    pub text: &'a str,
+    pub start: usize,
+    pub line: usize,
+}
+
+/// Every sentence of a document, with its line, for the search index.
+pub fn document_sentences(doc: &Document) -> Vec<IndexedSentence<'_>> {
+    let lines = LineIndex::new(&doc.text);
+    let spans = if doc.lines_are_paragraphs {
+        // One paragraph a line: split each line alone, so that a heading never joins the next line.
+        let mut v = Vec::new();
+        let mut start = 0;
+        for line in doc.text.split_inclusive('\n') {
+            v.extend(sentences::split_region(
+                &doc.text,
+                start,
+                start + line.len(),
+            ));
+            start += line.len();
+        }
+        v
+    } else {
+        sentences::split(&doc.text)
+    };
+    spans
+        .into_iter()
+        .map(|SentenceSpan { start, end }| IndexedSentence {
+            text: &doc.text[start..end],
+            start,
+            line: lines.line_col(&doc.text, start).0,
+        })
+        .collect()
+}
+
+/// Extract claims from one sentence given as a string (for `explain` and examples).
+pub fn sentence_attempts(ex: &Extractor, text: &str) -> (Vec<Claim>, Vec<Attempt>) {
+    let doc = Document {
+        path: "<sentence>".into(),
+        record: None,
+        text: text.to_string(),
+        page_starts: Vec::new(),
+        lines_are_paragraphs: false,
+    };
+    document_attempts(ex, &doc)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::patterns::PatternSet;
+
+    fn doc(text: &str) -> Document {
+        Document {
+            path: "d.txt".into(),
+            record: None,
+            text: text.into(),
+            page_starts: vec![],
+            lines_are_paragraphs: false,
+        }
+    }
+
+    #[test]
+    fn line_and_column_are_one_based() {
+        let t = "ab\ncdé f\n";
+        let li = LineIndex::new(t);
+        assert_eq!(li.line_col(t, 0), (1, 1));
+        assert_eq!(li.line_col(t, 3), (2, 1));
+        assert_eq!(li.line_col(t, t.find('f').unwrap()), (2, 5));
+    }
+
+    #[test]
+    fn claims_carry_document_offsets_and_lines() {
+        let ex = Extractor::new(&PatternSet::builtin().unwrap()).unwrap();
+        let d = doc("Intro line.\n\nHeavy rain causes flooding. Nothing here.\n");
+        let cs = document_claims(&ex, &d);
+        assert_eq!(cs.len(), 1);
+        let c = &cs[0];
+        assert_eq!(&d.text[c.cause.start..c.cause.end], "Heavy rain");
+        assert_eq!(&d.text[c.effect.start..c.effect.end], "flooding");
+        assert_eq!((c.source.line, c.source.column), (3, 1));
+        assert_eq!(
+            &d.text[c.source.start..c.source.end],
+            "Heavy rain causes flooding."
+        );
+    }
+
+    #[test]
+    fn sentence_opening_connective_takes_previous_sentence() {
+        let ex = Extractor::new(&PatternSet::builtin().unwrap()).unwrap();
+        let cs = document_claims(
+            &ex,
+            &doc("The dam failed. As a result, the valley flooded."),
+        );
+        assert_eq!(cs.len(), 1, "{cs:#?}");
+        assert!(cs[0].cross_sentence);
+        assert_eq!(cs[0].cause.text, "dam failed");
+    }
+}

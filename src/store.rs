@@ -1,0 +1,580 @@
+//! The claim store: what `scan` writes and every query command reads.
+//!
+//! Layout of a store directory (`.hearsay/` by default):
+//!
+//! ```text
+//! manifest.json      the one file that says what the store holds (written last, atomically)
+//! seg-NNNNNN.jsonl   full claim records, one JSON object a line (the documented schema)
+//! seg-NNNNNN.rows    the same claims in compact form (postcard), for rebuilding the graph fast
+//! index/             a tantivy index with one entry per sentence, for search and co-mentions
+//! aliases.tsv        the alias file given to `scan --aliases`, if any
+//! lock               held while a scan writes
+//! ```
+//!
+//! Segments are immutable: a re-scan writes one new segment for the files that changed and keeps
+//! pointing at the old segments for the rest. The manifest is replaced by an atomic rename after
+//! everything it refers to is on disk, so a scan killed at any point leaves the previous manifest,
+//! and with it the previous complete store, in force. The search index commits before the manifest;
+//! if a scan dies between the two, the next scan re-indexes the files the manifest does not know.
+
+use crate::corpus::Skipped;
+use crate::error::StoreError;
+use crate::graph::{ClaimRef, ClaimRow};
+use crate::model::Claim;
+use serde::{Deserialize, Serialize};
+use std::collections::{BTreeMap, BTreeSet, HashMap};
+use std::fs::{self, File};
+use std::io::{BufWriter, Read, Seek, SeekFrom, Write};
+use std::path::{Path, PathBuf};
+use tantivy::collector::{Count, TopDocs};
+use tantivy::query::{BooleanQuery, Occur, Query, TermQuery};
+use tantivy::schema::{
+    Field, IndexRecordOption, Schema, TextFieldIndexing, TextOptions, Value, STORED, STRING,
+};
+use tantivy::tokenizer::{Language, LowerCaser, SimpleTokenizer, Stemmer, TextAnalyzer};
+use tantivy::{doc, Index, IndexReader, IndexWriter, TantivyDocument, Term};
+
+/// Version of the store layout. Bump on any incompatible change.
+pub const STORE_VERSION: u32 = 1;
+const TOKENIZER: &str = "hearsay_en";
+
+/// One input file as the store knows it.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct FileEntry {
+    pub path: String,
+    pub size: u64,
+    /// Modification time in nanoseconds since the epoch, for the cheap "unchanged" check.
+    pub mtime_ns: u128,
+    /// BLAKE3 of the content, for the exact one.
+    pub hash: String,
+    pub documents: u64,
+    pub sentences: u64,
+    pub claims: u64,
+    /// Which segment holds this file's claims, and which rows of it.
+    pub segment: u32,
+    pub rows: (u64, u64),
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
+}
+
+/// What the store holds.
+#[derive(Debug, Clone, Default, Serialize, Deserialize)]
+pub struct Manifest {
+    pub store_version: u32,
+    pub claim_schema: u32,
+    pub generation: u64,
+    pub hearsay_version: String,
+    pub patterns: String,
+    pub files: Vec<FileEntry>,
+    /// Files the last scan passed over, with reasons.
+    pub skipped: Vec<Skipped>,
+    /// Files the last scan could not read, with reasons.
+    pub failed: Vec<Skipped>,
+}
+
+impl Manifest {
+    pub fn segments(&self) -> BTreeSet<u32> {
+        self.files
+            .iter()
+            .filter(|f| f.claims > 0)
+            .map(|f| f.segment)
+            .collect()
+    }
+    pub fn totals(&self) -> (u64, u64, u64) {
+        self.files.iter().fold((0, 0, 0), |(d, s, c), f| {
+            (d + f.documents, s + f.sentences, c + f.claims)
+        })
+    }
+}
+
+/// A store opened for reading.
+pub struct Store {
+    pub dir: PathBuf,
+    pub manifest: Manifest,
+    index: Option<(Index, IndexReader, Fields)>,
+}
+
+#[derive(Clone, Copy)]
+struct Fields {
+    path: Field,
+    text: Field,
+    line: Field,
+    start: Field,
+}
+
+fn schema() -> (Schema, Fields) {
+    let mut b = Schema::builder();
+    let text_opts = TextOptions::default()
+        .set_indexing_options(
+            TextFieldIndexing::default()
+                .set_tokenizer(TOKENIZER)
+                .set_index_option(IndexRecordOption::Basic),
+        )
+        .set_stored();
+    let path = b.add_text_field("path", STRING | STORED);
+    let text = b.add_text_field("text", text_opts);
+    let line = b.add_u64_field("line", STORED);
+    let start = b.add_u64_field("start", STORED);
+    (
+        b.build(),
+        Fields {
+            path,
+            text,
+            line,
+            start,
+        },
+    )
+}
+
+fn register_tokenizer(index: &Index) {
+    let analyzer = TextAnalyzer::builder(SimpleTokenizer::default())
+        .filter(LowerCaser)
+        .filter(Stemmer::new(Language::English))
+        .build();
+    index.tokenizers().register(TOKENIZER, analyzer);
+}
+
+fn open_index(dir: &Path, create: bool) -> Result<Index, StoreError> {
+    let idx_dir = dir.join("index");
+    let exists = idx_dir.join("meta.json").exists();
+    let index = if exists {
+        Index::open_in_dir(&idx_dir)?
+    } else if create {
+        fs::create_dir_all(&idx_dir).map_err(|e| StoreError::io(&idx_dir, e))?;
+        Index::create_in_dir(&idx_dir, schema().0)?
+    } else {
+        return Err(StoreError::Corrupt {
+            path: idx_dir,
+            message: "search index missing".into(),
+        });
+    };
+    register_tokenizer(&index);
+    Ok(index)
+}
+
+fn seg_name(seg: u32, ext: &str) -> String {
+    format!("seg-{seg:06}.{ext}")
+}
+
+/// Write `bytes` to `path` atomically: a temporary file, fsync, rename.
+fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), StoreError> {
+    let tmp = path.with_extension("tmp");
+    let mut f = File::create(&tmp).map_err(|e| StoreError::io(&tmp, e))?;
+    f.write_all(bytes)
+        .and_then(|_| f.sync_all())
+        .map_err(|e| StoreError::io(&tmp, e))?;
+    fs::rename(&tmp, path).map_err(|e| StoreError::io(path, e))?;
+    if let Some(parent) = path.parent() {
+        if let Ok(d) = File::open(parent) {
+            let _ = d.sync_all();
+        }
+    }
+    Ok(())
+}
+
+impl Store {
+    /// Open an existing store.
+    pub fn open(dir: &Path) -> Result<Store, StoreError> {
+        let mpath = dir.join("manifest.json");
+        if !mpath.exists() {
+            return Err(StoreError::Missing(dir.to_path_buf()));
+        }
+        let text = fs::read_to_string(&mpath).map_err(|e| StoreError::io(&mpath, e))?;
+        let manifest: Manifest = serde_json::from_str(&text).map_err(|e| StoreError::Corrupt {
+            path: mpath.clone(),
+            message: e.to_string(),
+        })?;
+        if manifest.store_version != STORE_VERSION {
+            return Err(StoreError::Version {
+                path: dir.to_path_buf(),
+                found: manifest.store_version,
+                expected: STORE_VERSION,
+            });
+        }
+        Ok(Store {
+            dir: dir.to_path_buf(),
+            manifest,
+            index: None,
+        })
+    }
+
+    /// The compact rows of every live claim, in manifest (corpus) order.
+    pub fn rows(&self) -> Result<Vec<ClaimRow>, StoreError> {
+        let mut by_seg: HashMap<u32, Vec<ClaimRow>> = HashMap::new();
+        for seg in self.manifest.segments() {
+            let p = self.dir.join(seg_name(seg, "rows"));
+            let bytes = fs::read(&p).map_err(|e| StoreError::io(&p, e))?;
+            let rows: Vec<ClaimRow> =
+                postcard::from_bytes(&bytes).map_err(|e| StoreError::Corrupt {
+                    path: p.clone(),
+                    message: e.to_string(),
+                })?;
+            by_seg.insert(seg, rows);
+        }
+        let mut out = Vec::new();
+        for f in &self.manifest.files {
+            if f.claims == 0 {
+                continue;
+            }
+            let rows = by_seg.get(&f.segment).ok_or_else(|| StoreError::Corrupt {
+                path: self.dir.clone(),
+                message: format!("segment {} missing", f.segment),
+            })?;
+            let (a, b) = (f.rows.0 as usize, f.rows.1 as usize);
+            let slice = rows.get(a..b).ok_or_else(|| StoreError::Corrupt {
+                path: self.dir.clone(),
+                message: format!("rows {a}..{b} out of range for {}", f.path),
+            })?;
+            out.extend_from_slice(slice);
+        }
+        Ok(out)
+    }
+
+    /// The full claim record a row points at.
+    pub fn claim(&self, at: ClaimRef) -> Result<Claim, StoreError> {
+        let p = self.dir.join(seg_name(at.segment, "jsonl"));
+        let mut f = File::open(&p).map_err(|e| StoreError::io(&p, e))?;
+        f.seek(SeekFrom::Start(at.offset))
+            .map_err(|e| StoreError::io(&p, e))?;
+        let mut buf = vec![0; at.len as usize];
+        f.read_exact(&mut buf).map_err(|e| StoreError::io(&p, e))?;
+        serde_json::from_slice(&buf).map_err(|e| StoreError::Corrupt {
+            path: p,
+            message: e.to_string(),
+        })
+    }
+
+    /// Every live claim, streamed in corpus order.
+    pub fn for_each_claim(&self, mut f: impl FnMut(Claim) -> bool) -> Result<(), StoreError> {
+        for r in self.rows()? {
+            if !f(self.claim(r.at)?) {
+                break;
+            }
+        }
+        Ok(())
+    }
+
+    fn index(&mut self) -> Result<&(Index, IndexReader, Fields), StoreError> {
+        if self.index.is_none() {
+            let index = open_index(&self.dir, false)?;
+            let reader = index.reader()?;
+            let f = schema().1;
+            let s = index.schema();
+            let fields = Fields {
+                path: s.get_field("path").unwrap_or(f.path),
+                text: s.get_field("text").unwrap_or(f.text),
+                line: s.get_field("line").unwrap_or(f.line),
+                start: s.get_field("start").unwrap_or(f.start),
+            };
+            self.index = Some((index, reader, fields));
+        }
+        self.index.as_ref().ok_or_else(|| StoreError::Corrupt {
+            path: self.dir.clone(),
+            message: "index".into(),
+        })
+    }
+
+    fn terms_query(fields: &Fields, groups: &[&[String]]) -> Option<Box<dyn Query>> {
+        let mut clauses: Vec<(Occur, Box<dyn Query>)> = Vec::new();
+        for g in groups {
+            if g.is_empty() {
+                return None;
+            }
+            for t in *g {
+                let term = Term::from_field_text(fields.text, t);
+                clauses.push((
+                    Occur::Must,
+                    Box::new(TermQuery::new(term, IndexRecordOption::Basic)),
+                ));
+            }
+        }
+        Some(Box::new(BooleanQuery::new(clauses)))
+    }
+
+    /// Sentences that contain every term of each group (terms are stemmed keys' words).
+    pub fn sentences_with(
+        &mut self,
+        groups: &[&[String]],
+        limit: usize,
+    ) -> Result<(usize, Vec<IndexedHit>), StoreError> {
+        let (_, reader, fields) = self.index()?;
+        let fields = *fields;
+        let Some(q) = Self::terms_query(&fields, groups) else {
+            return Ok((0, Vec::new()));
+        };
+        let searcher = reader.searcher();
+        let (count, top) = searcher.search(
+            &q,
+            &(Count, TopDocs::with_limit(limit.max(1)).order_by_score()),
+        )?;
+        let mut hits = Vec::new();
+        for (_, addr) in top.into_iter().take(limit) {
+            let d: TantivyDocument = searcher.doc(addr)?;
+            let s = |f: Field| {
+                d.get_first(f)
+                    .and_then(|v| v.as_str())
+                    .unwrap_or("")
+                    .to_string()
+            };
+            let n = |f: Field| d.get_first(f).and_then(|v| v.as_u64()).unwrap_or(0);
+            hits.push(IndexedHit {
+                path: s(fields.path),
+                text: s(fields.text),
+                line: n(fields.line),
+                start: n(fields.start),
+            });
+        }
+        Ok((count, hits))
+    }
+
+    /// All (document, sentence start) pairs of sentences naming every term of each group.
+    pub fn sentence_ids_with(
+        &mut self,
+        groups: &[&[String]],
+    ) -> Result<BTreeSet<(String, u64)>, StoreError> {
+        let (count, _) = self.sentences_with(groups, 0)?;
+        let (_, hits) = self.sentences_with(groups, count)?;
+        Ok(hits.into_iter().map(|h| (h.path, h.start)).collect())
+    }
+}
+
+/// A sentence found in the search index.
+#[derive(Debug, Clone, Serialize)]
+pub struct IndexedHit {
+    pub path: String,
+    pub text: String,
+    pub line: u64,
+    pub start: u64,
+}
+
+/// The result of reading one changed file, ready to be written.
+#[derive(Debug, Default)]
+pub struct FileResult {
+    pub entry: Option<FileEntry>,
+    pub claims: Vec<Claim>,
+    /// (document id, line, start, text) of every sentence, for the index.
+    pub sentences: Vec<(String, u64, u64, String)>,
+}
+
+/// A scan's writer: holds the lock, collects new segments and index entries, commits at the end.
+pub struct StoreWriter {
+    dir: PathBuf,
+    _lock: File,
+    pub old: Manifest,
+    segment: u32,
+    jsonl: Option<BufWriter<File>>,
+    rows: Vec<ClaimRow>,
+    offset: u64,
+    index_writer: IndexWriter,
+    fields: Fields,
+    entries: BTreeMap<String, FileEntry>,
+    removed: BTreeSet<String>,
+}
+
+impl StoreWriter {
+    /// Open or create the store at `dir` for writing, taking its lock.
+    pub fn open(dir: &Path, heap_bytes: usize) -> Result<StoreWriter, StoreError> {
+        fs::create_dir_all(dir).map_err(|e| StoreError::io(dir, e))?;
+        let lock_path = dir.join("lock");
+        let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
+        lock.try_lock().map_err(|_| StoreError::Corrupt {
+            path: dir.to_path_buf(),
+            message: "another scan is writing this store".into(),
+        })?;
+        let old = match Store::open(dir) {
+            Ok(s) => s.manifest,
+            Err(StoreError::Missing(_)) => Manifest::default(),
+            Err(e) => return Err(e),
+        };
+        let index = open_index(dir, true)?;
+        let index_writer: IndexWriter = index.writer(heap_bytes.max(15_000_000))?;
+        let s = index.schema();
+        let f = schema().1;
+        let fields = Fields {
+            path: s.get_field("path").unwrap_or(f.path),
+            text: s.get_field("text").unwrap_or(f.text),
+            line: s.get_field("line").unwrap_or(f.line),
+            start: s.get_field("start").unwrap_or(f.start),
+        };
+        // A new segment number above every one on disk (live or left by a killed scan).
+        let mut segment = old.segments().iter().max().copied().unwrap_or(0) + 1;
+        if let Ok(rd) = fs::read_dir(dir) {
+            for e in rd.flatten() {
+                let name = e.file_name().to_string_lossy().into_owned();
+                if let Some(n) = name
+                    .strip_prefix("seg-")
+                    .and_then(|r| r.split('.').next())
+                    .and_then(|n| n.parse::<u32>().ok())
+                {
+                    segment = segment.max(n + 1);
+                }
+            }
+        }
+        let entries = old
+            .files
+            .iter()
+            .map(|f| (f.path.clone(), f.clone()))
+            .collect();
+        Ok(StoreWriter {
+            dir: dir.to_path_buf(),
+            _lock: lock,
+            old,
+            segment,
+            jsonl: None,
+            rows: Vec::new(),
+            offset: 0,
+            index_writer,
+            fields,
+            entries,
+            removed: BTreeSet::new(),
+        })
+    }
+
+    /// The entry the store has for a path.
+    pub fn known(&self, path: &str) -> Option<&FileEntry> {
+        self.old.files.iter().find(|f| f.path == path)
+    }
+
+    /// Keep a file's entry with new metadata (its content was unchanged).
+    pub fn touch(&mut self, entry: FileEntry) {
+        self.entries.insert(entry.path.clone(), entry);
+    }
+
+    /// Forget a file that is gone.
+    pub fn remove(&mut self, path: &str) -> Result<(), StoreError> {
+        self.entries.remove(path);
+        self.removed.insert(path.to_string());
+        self.index_writer
+            .delete_term(Term::from_field_text(self.fields.path, path));
+        Ok(())
+    }
+
+    /// Replace one file's claims and sentences.
+    pub fn put(&mut self, result: FileResult) -> Result<(), StoreError> {
+        let Some(mut entry) = result.entry else {
+            return Ok(());
+        };
+        // Documents of a file are indexed under their document id; delete by file path and by
+        // each id the file had.
+        self.index_writer
+            .delete_term(Term::from_field_text(self.fields.path, &entry.path));
+        let mut ids: BTreeSet<&str> = BTreeSet::new();
+        for (id, _, _, _) in &result.sentences {
+            ids.insert(id);
+        }
+        for id in &ids {
+            if *id != entry.path {
+                self.index_writer
+                    .delete_term(Term::from_field_text(self.fields.path, id));
+            }
+        }
+        if self.jsonl.is_none() && !result.claims.is_empty() {
+            let p = self.dir.join(seg_name(self.segment, "jsonl"));
+            self.jsonl = Some(BufWriter::new(
+                File::create(&p).map_err(|e| StoreError::io(&p, e))?,
+            ));
+        }
+        let first = self.rows.len() as u64;
+        if let Some(w) = self.jsonl.as_mut() {
+            for c in &result.claims {
+                let mut line = serde_json::to_vec(c).map_err(|e| StoreError::Corrupt {
+                    path: self.dir.clone(),
+                    message: e.to_string(),
+                })?;
+                line.push(b'\n');
+                w.write_all(&line)
+                    .map_err(|e| StoreError::io(&self.dir, e))?;
+                let at = ClaimRef {
+                    segment: self.segment,
+                    offset: self.offset,
+                    len: (line.len() - 1) as u32,
+                };
+                self.offset += line.len() as u64;
+                self.rows.push(ClaimRow::from_claim(c, at));
+            }
+        }
+        entry.segment = if result.claims.is_empty() {
+            0
+        } else {
+            self.segment
+        };
+        entry.rows = (first, self.rows.len() as u64);
+        entry.claims = result.claims.len() as u64;
+        for (id, line, start, text) in result.sentences {
+            self.index_writer
+                .add_document(doc!(self.fields.path => id, self.fields.text => text, self.fields.line => line, self.fields.start => start))?;
+        }
+        self.removed.remove(&entry.path);
+        self.entries.insert(entry.path.clone(), entry);
+        Ok(())
+    }
+
+    /// Make everything durable and switch the store to the new manifest. Returns it.
+    pub fn commit(
+        mut self,
+        patterns: &str,
+        skipped: Vec<Skipped>,
+        failed: Vec<Skipped>,
+    ) -> Result<Manifest, StoreError> {
+        if let Some(mut w) = self.jsonl.take() {
+            w.flush().map_err(|e| StoreError::io(&self.dir, e))?;
+            w.get_ref()
+                .sync_all()
+                .map_err(|e| StoreError::io(&self.dir, e))?;
+            let bytes = postcard::to_stdvec(&self.rows).map_err(|e| StoreError::Corrupt {
+                path: self.dir.clone(),
+                message: e.to_string(),
+            })?;
+            write_atomic(&self.dir.join(seg_name(self.segment, "rows")), &bytes)?;
+        }
+        let generation = self.old.generation + 1;
+        let mut prepared = self.index_writer.prepare_commit()?;
+        prepared.set_payload(&generation.to_string());
+        prepared.commit()?;
+        let manifest = Manifest {
+            store_version: STORE_VERSION,
+            claim_schema: crate::model::SCHEMA_VERSION,
+            generation,
+            hearsay_version: env!("CARGO_PKG_VERSION").to_string(),
+            patterns: patterns.to_string(),
+            files: self.entries.into_values().collect(),
+            skipped,
+            failed,
+        };
+        let json = serde_json::to_vec_pretty(&manifest).map_err(|e| StoreError::Corrupt {
+            path: self.dir.clone(),
+            message: e.to_string(),
+        })?;
+        write_atomic(&self.dir.join("manifest.json"), &json)?;
+        // Segments nothing refers to any more (and leftovers of killed scans) can go.
+        let live = manifest.segments();
+        if let Ok(rd) = fs::read_dir(&self.dir) {
+            for e in rd.flatten() {
+                let name = e.file_name().to_string_lossy().into_owned();
+                if let Some(n) = name
+                    .strip_prefix("seg-")
+                    .and_then(|r| r.split('.').next())
+                    .and_then(|n| n.parse::<u32>().ok())
+                {
+                    if !live.contains(&n) {
+                        let _ = fs::remove_file(e.path());
+                    }
+                }
+            }
+        }
+        Ok(manifest)
+    }
+
+    /// Discard a failed scan: nothing is committed, the previous store stays.
+    pub fn abandon(mut self) {
+        let _ = self.index_writer.rollback();
+    }
+}
+
+/// The index terms of a variable key (keys are already stemmed: split, do not stem again).
+pub fn key_terms(key: &str) -> Vec<String> {
+    key.split(' ')
+        .filter(|t| !t.is_empty())
+        .map(str::to_string)
+        .collect()
+}

@@ -1,0 +1,73 @@
+//! Helpers shared by the integration tests: running the real binary, temporary stores, and
+//! locating the shared datasets.
+
+#![allow(dead_code)]
+
+use assert_cmd::Command;
+use std::path::{Path, PathBuf};
+
+pub fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// The `hearsay` binary, run from the repository root.
+pub fn hearsay() -> Command {
+    let mut c = Command::cargo_bin("hearsay").expect("binary is built");
+    c.current_dir(root()).env_remove("HEARSAY_STORE");
+    c
+}
+
+/// The shared datasets folder (`../shared/data` beside the repository, or `$HEARSAY_SHARED_DATA`).
+/// A test that needs it fails when it is missing, unless `HEARSAY_SKIP_EXTERNAL=1` is set, in
+/// which case it returns `None` and the test says it was skipped.
+pub fn shared_data(rel: &str) -> Option<PathBuf> {
+    let base = std::env::var_os("HEARSAY_SHARED_DATA")
+        .map(PathBuf::from)
+        .unwrap_or_else(|| root().join("../shared/data"));
+    let p = base.join(rel);
+    if p.exists() {
+        return Some(p);
+    }
+    if std::env::var("HEARSAY_SKIP_EXTERNAL").is_ok_and(|v| v == "1") {
+        eprintln!("SKIPPED: {} is not available", p.display());
+        return None;
+    }
+    panic!("external dataset {} not found (set HEARSAY_SHARED_DATA, or HEARSAY_SKIP_EXTERNAL=1 to skip)", p.display());
+}
+
+/// Run hearsay with JSON output and parse stdout as JSON Lines.
+pub fn json_lines(args: &[&str], store: &Path) -> Vec<serde_json::Value> {
+    let out = hearsay()
+        .arg("--store")
+        .arg(store)
+        .arg("--format")
+        .arg("json")
+        .args(args)
+        .output()
+        .expect("runs");
+    assert!(
+        out.status.success(),
+        "hearsay {args:?} failed: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    String::from_utf8(out.stdout)
+        .expect("utf-8")
+        .lines()
+        .filter(|l| !l.trim().is_empty())
+        .map(|l| serde_json::from_str(l).expect("json line"))
+        .collect()
+}
+
+/// Copy a folder tree.
+pub fn copy_tree(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).unwrap();
+    for e in std::fs::read_dir(from).unwrap() {
+        let e = e.unwrap();
+        let dest = to.join(e.file_name());
+        if e.file_type().unwrap().is_dir() {
+            copy_tree(&e.path(), &dest);
+        } else {
+            std::fs::copy(e.path(), dest).unwrap();
+        }
+    }
+}

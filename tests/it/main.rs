@@ -1,0 +1,7 @@
+//! Integration tests: the real `hearsay` binary over the demo corpus, temporary stores and the
+//! shared external datasets. One binary, topic modules.
+
+mod common;
+mod external;
+mod store;
+mod subcommands;

@@ -1,0 +1,136 @@
+//! The store: incremental re-scans, deletions, and surviving a scan killed mid-way.
+
+use crate::common::*;
+use std::process::Stdio;
+use std::time::Duration;
+
+fn scan(corpus: &std::path::Path, store: &std::path::Path) -> serde_json::Value {
+    let v = json_lines(&["scan", corpus.to_str().unwrap()], store);
+    v.into_iter().next().expect("a summary line")
+}
+
+#[test]
+fn second_scan_with_nothing_changed_reads_no_file() {
+    let tmp = tempfile::tempdir().unwrap();
+    let store = tmp.path().join("store");
+    let first = scan(&root().join("corpora-demo"), &store);
+    assert!(first["files_read"].as_u64().unwrap() >= 25, "{first}");
+    let claims = first["claims"].as_u64().unwrap();
+    assert!(claims > 0);
+    let manifest_before = std::fs::read(store.join("manifest.json")).unwrap();
+    let second = scan(&root().join("corpora-demo"), &store);
+    assert_eq!(second["files_read"], 0, "{second}");
+    assert_eq!(second["files_unchanged"], first["files_read"]);
+    assert_eq!(second["claims"].as_u64().unwrap(), claims);
+    assert_eq!(
+        std::fs::read(store.join("manifest.json")).unwrap(),
+        manifest_before,
+        "an unchanged scan rewrites nothing"
+    );
+}
+
+#[test]
+fn rescan_rereads_changed_files_and_drops_deleted_ones() {
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    std::fs::write(corpus.join("a.txt"), "Heavy rain causes flooding.\n").unwrap();
+    std::fs::write(corpus.join("b.txt"), "Drought reduces crop yields.\n").unwrap();
+    std::fs::write(corpus.join("c.txt"), "Wind erosion lowers soil depth.\n").unwrap();
+    let store = tmp.path().join("store");
+    let first = scan(&corpus, &store);
+    assert_eq!(first["claims"], 3, "{first}");
+    // Same size, new content: the hash decides.
+    std::thread::sleep(Duration::from_millis(20));
+    std::fs::write(corpus.join("a.txt"), "Heavy rain causes mudslides.\n").unwrap();
+    std::fs::remove_file(corpus.join("c.txt")).unwrap();
+    let second = scan(&corpus, &store);
+    assert_eq!(
+        (
+            second["files_read"].as_u64(),
+            second["files_removed"].as_u64(),
+            second["claims"].as_u64()
+        ),
+        (Some(1), Some(1), Some(2)),
+        "{second}"
+    );
+    let claims = json_lines(&["claims"], &store);
+    let effects: Vec<&str> = claims
+        .iter()
+        .map(|c| c["effect"]["text"].as_str().unwrap())
+        .collect();
+    assert_eq!(effects, ["mudslides", "crop yields"]);
+    // The sentence index follows: the old sentence no longer counts as a co-mention.
+    let pair = json_lines(&["pair", "heavy rain", "flooding"], &store);
+    assert_eq!(pair[0]["forward"]["claims"], 0);
+    assert_eq!(pair[0]["co_mentions"], 0);
+}
+
+fn big_corpus(dir: &std::path::Path, files: usize) {
+    std::fs::create_dir_all(dir).unwrap();
+    let para = "Heavy rain causes flooding in the valley. Drought reduces crop yields, which in turn raises food prices. \
+                The committee met on Tuesday and discussed the budget at length without a decision. ";
+    for i in 0..files {
+        std::fs::write(dir.join(format!("doc{i:04}.txt")), para.repeat(200)).unwrap();
+    }
+}
+
+#[test]
+fn a_scan_killed_mid_way_leaves_the_last_complete_store() {
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    big_corpus(&corpus, 40);
+    let store = tmp.path().join("store");
+    let first = scan(&corpus, &store);
+    let claims = first["claims"].as_u64().unwrap();
+    assert!(claims > 1000);
+    let pair_before = json_lines(&["pair", "heavy rain", "flooding"], &store);
+    // Change every file, then kill scans at several points.
+    for (round, delay) in [30u64, 120, 300, 600].into_iter().enumerate() {
+        for i in 0..40 {
+            std::fs::write(
+                corpus.join(format!("doc{i:04}.txt")),
+                format!("Round {round} note {i}. Soil erosion lowers yields. ").repeat(300),
+            )
+            .unwrap();
+        }
+        let mut child = std::process::Command::new(assert_cmd::cargo::cargo_bin("hearsay"))
+            .args([
+                "--quiet",
+                "--store",
+                store.to_str().unwrap(),
+                "scan",
+                corpus.to_str().unwrap(),
+            ])
+            .stdout(Stdio::null())
+            .stderr(Stdio::null())
+            .spawn()
+            .unwrap();
+        std::thread::sleep(Duration::from_millis(delay));
+        let _ = child.kill(); // SIGKILL
+        let status = child.wait().unwrap();
+        // Whether the scan finished or died, the store must answer, and answer consistently: the
+        // claims it lists are the ones its manifest counts, and they are either all old or all new.
+        let pair = json_lines(&["pair", "heavy rain", "flooding"], &store);
+        let listed = json_lines(&["claims"], &store).len() as u64;
+        let manifest: serde_json::Value =
+            serde_json::from_slice(&std::fs::read(store.join("manifest.json")).unwrap()).unwrap();
+        let counted: u64 = manifest["files"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|f| f["claims"].as_u64().unwrap())
+            .sum();
+        assert_eq!(listed, counted, "round {round}");
+        let old =
+            pair[0]["forward"]["claims"] == pair_before[0]["forward"]["claims"] && listed == claims;
+        let new = pair[0]["forward"]["claims"] == 0;
+        assert!(old || new, "round {round} ({status}): store is neither the old nor a new one: {pair:?}, {listed} claims");
+    }
+    // And a final scan brings it up to date.
+    let last = scan(&corpus, &store);
+    assert_eq!(
+        json_lines(&["claims"], &store).len() as u64,
+        last["claims"].as_u64().unwrap()
+    );
+}
