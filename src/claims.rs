@@ -9,7 +9,7 @@
 //! sees one sentence (and the one before it) and does no I/O.
 
 use crate::cues::{CueMatch, CueSet, SlotPlace};
-use crate::model::{Claim, Kind, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
+use crate::model::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::normalize::Normalizer;
 use crate::patterns::{Lexicon, PatternSet};
 use regex::Regex;
@@ -503,33 +503,77 @@ impl Extractor {
             }
         }
         let sentence_text = collapse(sent.text);
-        for ((m, &(ca, cb)), nu) in matches.iter().zip(&cue_tokens).zip(noun_uses) {
-            let mut notes = Vec::new();
-            let result = if let Some(why) = nu {
-                Err(why)
-            } else {
-                self.claim_for(
-                    m,
-                    (ca, cb),
-                    &toks,
-                    &blocked,
-                    sent,
-                    prev,
-                    origin,
-                    &sentence_text,
-                    &mut notes,
-                )
-            };
-            if let Ok(c) = &result {
-                out.push(c.clone());
+        let run = |blocked: &[bool],
+                   notes_out: &mut Vec<Vec<String>>|
+         -> Vec<Result<Vec<Claim>, String>> {
+            notes_out.clear();
+            matches
+                .iter()
+                .zip(&cue_tokens)
+                .zip(&noun_uses)
+                .map(|((m, &(ca, cb)), nu)| {
+                    let mut notes = Vec::new();
+                    let r = match nu {
+                        Some(why) => Err(why.clone()),
+                        None => self.claim_for(
+                            m,
+                            (ca, cb),
+                            &toks,
+                            blocked,
+                            sent,
+                            prev,
+                            origin,
+                            &sentence_text,
+                            &mut notes,
+                        ),
+                    };
+                    notes_out.push(notes);
+                    r
+                })
+                .collect()
+        };
+        let mut notes = Vec::new();
+        let mut results = run(&blocked, &mut notes);
+        // A cue that gave no claim ("exploding fuel." read as the verb "fuel") must not cut the
+        // spans of the others: unblock its words and decide again.
+        let failed: Vec<usize> = results
+            .iter()
+            .enumerate()
+            .filter(|(i, r)| r.is_err() && noun_uses[*i].is_none())
+            .map(|(i, _)| i)
+            .collect();
+        if !failed.is_empty() {
+            for &i in &failed {
+                let (a, b) = cue_tokens[i];
+                blocked[a..b].iter_mut().for_each(|x| *x = false);
+            }
+            results = run(&blocked, &mut notes);
+        }
+        for ((m, result), notes) in matches.iter().zip(results).zip(notes) {
+            if let Ok(cs) = &result {
+                out.extend(cs.iter().cloned());
             }
             if let Some(t) = trace.as_deref_mut() {
-                t.push(Attempt {
-                    cue: self.cues.cues[m.cue].spec.id.clone(),
-                    matched: collapse(&sent.text[m.start..m.end]),
-                    result,
-                    notes,
-                });
+                let cue = self.cues.cues[m.cue].spec.id.clone();
+                let matched = collapse(&sent.text[m.start..m.end]);
+                match result {
+                    Ok(cs) => {
+                        for c in cs {
+                            t.push(Attempt {
+                                cue: cue.clone(),
+                                matched: matched.clone(),
+                                result: Ok(c),
+                                notes: notes.clone(),
+                            });
+                        }
+                    }
+                    Err(e) => t.push(Attempt {
+                        cue,
+                        matched,
+                        result: Err(e),
+                        notes,
+                    }),
+                }
             }
         }
     }
@@ -554,9 +598,7 @@ impl Extractor {
                 ));
             }
         }
-        let Some(before) = ca.checked_sub(1).map(|i| &toks[i].lower) else {
-            return None;
-        };
+        let before = ca.checked_sub(1).map(|i| &toks[i].lower)?;
         if self.lexicon.determiners.contains(before)
             || (self.lexicon.prepositions.contains(before) && before != "to")
         {
@@ -579,17 +621,20 @@ impl Extractor {
         origin: &Origin<'_>,
         sentence_text: &str,
         notes: &mut Vec<String>,
-    ) -> Result<Claim, String> {
+    ) -> Result<Vec<Claim>, String> {
         let cue = &self.cues.cues[m.cue];
         let spec = &cue.spec;
         let clause = spec.clause_spans;
         let mut cross_sentence = false;
+        let last_literal = toks[cb.saturating_sub(1).min(toks.len().saturating_sub(1))]
+            .lower
+            .clone();
         let pick = |place: SlotPlace,
                     effect_side: bool,
                     notes: &mut Vec<String>|
-         -> Result<Option<Chosen>, String> {
-            Ok(match place {
-                SlotPlace::Inside(s, e) => self.choose_bytes(sent, s, e),
+         -> (Option<Chosen>, Vec<Chosen>) {
+            match place {
+                SlotPlace::Inside(s, e) => (self.choose_bytes(sent, s, e), Vec::new()),
                 SlotPlace::After => {
                     let mut span = if clause {
                         self.clause_forward(toks, cb)
@@ -600,7 +645,22 @@ impl Extractor {
                         // "stress-induced insomnia": the modified noun is the word right after.
                         span.to = span.to.min(span.from + 1);
                     }
-                    self.choose(toks, sent, span, effect_side)
+                    let extra = if clause || cue.glued_last {
+                        Vec::new()
+                    } else {
+                        self.conjuncts_forward(toks, span, blocked, &last_literal)
+                    };
+                    let extra: Vec<Chosen> = extra
+                        .into_iter()
+                        .filter_map(|sp| self.choose(toks, sent, sp, effect_side))
+                        .collect();
+                    if !extra.is_empty() {
+                        notes.push(format!(
+                            "{} more coordinated slot(s) after the cue",
+                            extra.len()
+                        ));
+                    }
+                    (self.choose(toks, sent, span, effect_side), extra)
                 }
                 SlotPlace::Before => {
                     let span = if clause {
@@ -608,12 +668,27 @@ impl Extractor {
                     } else {
                         self.walk_back(toks, ca, blocked, notes)
                     };
-                    self.choose(toks, sent, span, effect_side)
+                    let extra = if clause || span.is_empty() {
+                        Vec::new()
+                    } else {
+                        self.conjuncts_back(toks, span, blocked)
+                    };
+                    let extra: Vec<Chosen> = extra
+                        .into_iter()
+                        .filter_map(|sp| self.choose(toks, sent, sp, effect_side))
+                        .collect();
+                    if !extra.is_empty() {
+                        notes.push(format!(
+                            "{} more coordinated slot(s) before the cue",
+                            extra.len()
+                        ));
+                    }
+                    (self.choose(toks, sent, span, effect_side), extra)
                 }
-            })
+            }
         };
-        let mut cause = pick(m.cause, false, notes)?;
-        let mut effect = pick(m.effect, true, notes)?;
+        let (mut cause, cause_extra) = pick(m.cause, false, notes);
+        let (mut effect, effect_extra) = pick(m.effect, true, notes);
         // An empty slot before a cue that opens the sentence: "Because X, Y." takes the clause after
         // the comma; "As a result, Y." takes the previous sentence.
         let before_slot_empty = match (m.cause, m.effect) {
@@ -670,6 +745,54 @@ impl Extractor {
         }
         let cause = cause.ok_or("no cause span found")?;
         let effect = effect.ok_or("no effect span found")?;
+        let mut modality = self.modality(toks, ca, sent.text, notes);
+        let polarity = spec.polarity;
+        if polarity == Polarity::None && modality != Modality::Question {
+            modality = Modality::Negated;
+        }
+        let causes: Vec<Chosen> = std::iter::once(cause).chain(cause_extra).collect();
+        let effects: Vec<Chosen> = std::iter::once(effect).chain(effect_extra).collect();
+        let mut claims = Vec::new();
+        let mut first_err = None;
+        for c in &causes {
+            for e in &effects {
+                match self.build_claim(
+                    c,
+                    e,
+                    spec,
+                    modality,
+                    cross_sentence,
+                    sent,
+                    origin,
+                    sentence_text,
+                    notes,
+                ) {
+                    Ok(claim) => claims.push(claim),
+                    Err(why) => {
+                        first_err.get_or_insert(why);
+                    }
+                }
+            }
+        }
+        if claims.is_empty() {
+            return Err(first_err.unwrap_or_else(|| "no claim".into()));
+        }
+        Ok(claims)
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn build_claim(
+        &self,
+        cause: &Chosen,
+        effect: &Chosen,
+        spec: &crate::patterns::CueSpec,
+        modality: Modality,
+        cross_sentence: bool,
+        sent: SentenceRef<'_>,
+        origin: &Origin<'_>,
+        sentence_text: &str,
+        notes: &mut Vec<String>,
+    ) -> Result<Claim, String> {
         if cause.start < effect.end && effect.start < cause.end && !cross_sentence {
             return Err("cause and effect spans overlap".into());
         }
@@ -686,15 +809,12 @@ impl Extractor {
                 "cause and effect are the same variable (\"{ckey}\")"
             ));
         }
-        let mut modality = self.modality(toks, ca, sent.text, notes);
+        let mut modality = modality;
         if effect.negated && modality != Modality::Question {
             notes.push("the effect is denied (\"no ...\")".into());
             modality = Modality::Negated;
         }
         let mut polarity = spec.polarity;
-        if polarity == Polarity::None && modality != Modality::Question {
-            modality = Modality::Negated;
-        }
         if let (Polarity::Unsigned, Some(s)) = (polarity, effect.sign) {
             notes.push(format!("the effect's sign word makes it an {s}"));
             polarity = s;
@@ -702,23 +822,19 @@ impl Extractor {
         Ok(Claim {
             schema: SCHEMA_VERSION,
             cause: Slot {
-                text: cause.text,
+                text: cause.text.clone(),
                 key: ckey,
                 start: cause.start,
                 end: cause.end,
             },
             effect: Slot {
-                text: effect.text,
+                text: effect.text.clone(),
                 key: ekey,
                 start: effect.start,
                 end: effect.end,
             },
             kind: spec.kind,
-            polarity: if spec.kind == Kind::Association && polarity == Polarity::None {
-                Polarity::None
-            } else {
-                polarity
-            },
+            polarity,
             modality,
             cue: spec.id.clone(),
             sentence: sentence_text.to_string(),
@@ -733,6 +849,101 @@ impl Extractor {
             },
             cross_sentence,
         })
+    }
+
+    /// "Heat, wind and smoke cause delays": the noun phrases coordinated before a slot's span.
+    /// The link next to the span must be "and"/"or"; commas may join further ones.
+    fn conjuncts_back(&self, toks: &[Token], span: Span, blocked: &[bool]) -> Vec<Span> {
+        let mut out = Vec::new();
+        let mut from = span.from;
+        while from > 0 && self.lexicon.determiners.contains(&toks[from - 1].lower) {
+            from -= 1;
+        }
+        let mut first = true;
+        while out.len() < 4 && from > 0 {
+            let mut i = from;
+            let mut saw_conj = false;
+            while i > 0 && matches!(toks[i - 1].lower.as_str(), "and" | "or" | ",") && from - i < 2
+            {
+                saw_conj |= toks[i - 1].lower != ",";
+                i -= 1;
+            }
+            if i == from || (first && !saw_conj) || blocked[i..from].iter().any(|&b| b) {
+                break;
+            }
+            let end = i;
+            while i > 0
+                && end - i < self.lexicon.max_words
+                && !blocked[i - 1]
+                && !self.np_boundary(&toks[i - 1])
+            {
+                i -= 1;
+            }
+            if i == end
+                || (i > 0
+                    && (blocked[i - 1] || self.lexicon.auxiliaries.contains(&toks[i - 1].lower)))
+            {
+                break;
+            }
+            let np = self.strip_determiners(toks, Span { from: i, to: end });
+            if np.is_empty() {
+                break;
+            }
+            out.push(np);
+            from = i;
+            first = false;
+        }
+        out
+    }
+
+    /// "X causes delays and cancellations": the noun phrases coordinated after a slot's span.
+    fn conjuncts_forward(
+        &self,
+        toks: &[Token],
+        span: Span,
+        blocked: &[bool],
+        cue_last: &str,
+    ) -> Vec<Span> {
+        let mut out: Vec<(Span, bool)> = Vec::new();
+        let mut j = span.to;
+        while out.len() < 4 && j < toks.len() {
+            let mut k = j;
+            let mut saw_conj = false;
+            while k < toks.len()
+                && matches!(toks[k].lower.as_str(), "and" | "or" | ",")
+                && k - j < 2
+            {
+                saw_conj |= toks[k].lower != ",";
+                k += 1;
+            }
+            if k == j || blocked[j..k].iter().any(|&b| b) {
+                break;
+            }
+            // "caused by X or by Y": the cue's preposition may be repeated.
+            if k < toks.len()
+                && toks[k].lower == cue_last
+                && self.lexicon.prepositions.contains(cue_last)
+            {
+                k += 1;
+            }
+            let np = self.walk_forward(toks, k, blocked);
+            let np = self.strip_determiners(toks, np);
+            if np.is_empty() {
+                break;
+            }
+            if np.to < toks.len()
+                && (blocked[np.to] || self.lexicon.auxiliaries.contains(&toks[np.to].lower))
+            {
+                break;
+            }
+            out.push((np, saw_conj));
+            j = np.to;
+        }
+        // A list needs an "and"/"or": drop trailing comma-only conjuncts.
+        while out.last().is_some_and(|(_, conj)| !conj) {
+            out.pop();
+        }
+        out.into_iter().map(|(s, _)| s).collect()
     }
 }
 

@@ -134,7 +134,7 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
                 }
                 inner.push(*r);
             }
-            PatternToken::Word { forms } => {
+            PatternToken::Word { forms, .. } => {
                 if i == first {
                     re.push_str("\\b");
                 } else {
@@ -163,7 +163,7 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
     let anchor_forms = toks
         .iter()
         .filter_map(|t| match t {
-            PatternToken::Word { forms } | PatternToken::Glued { forms } => Some(forms),
+            PatternToken::Word { forms, .. } | PatternToken::Glued { forms } => Some(forms),
             _ => None,
         })
         .max_by_key(|forms| forms.iter().map(|f| f.len()).min().unwrap_or(0))
@@ -194,7 +194,7 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
             })
             .transpose()
     };
-    let verb_first = matches!(&toks[first], PatternToken::Word { forms } if forms.len() > 1);
+    let verb_first = matches!(&toks[first], PatternToken::Word { verb: true, .. });
     let glued_last = matches!(toks[last], PatternToken::Glued { .. });
     Ok(CompiledCue {
         glued_last,

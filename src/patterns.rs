@@ -57,9 +57,11 @@ pub enum Role {
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub enum PatternToken {
     Slot(Role),
-    /// A literal word, with its accepted forms (one form unless the word was marked `~`).
+    /// A literal word, with its accepted forms (one form unless the word was marked `~` or `+`);
+    /// `verb` is true for `word~`.
     Word {
         forms: Vec<String>,
+        verb: bool,
     },
     /// A literal glued by a hyphen to the word before it (`-induced`).
     Glued {
@@ -388,6 +390,7 @@ pub fn parse_pattern(pattern: &str, irregular: &Irregular) -> Result<Vec<Pattern
             },
             w => PatternToken::Word {
                 forms: word_forms(w, irregular)?,
+                verb: w.ends_with('~'),
             },
         };
         tokens.push(tok);
@@ -427,6 +430,23 @@ pub fn parse_pattern(pattern: &str, irregular: &Irregular) -> Result<Vec<Pattern
 }
 
 fn word_forms(word: &str, irregular: &Irregular) -> Result<Vec<String>, String> {
+    if let Some(base) = word.strip_suffix('+') {
+        // A noun with its plural.
+        let forms = word_forms(base, irregular)?;
+        let b = base.as_bytes();
+        let plural = if base.ends_with('s')
+            || base.ends_with('x')
+            || base.ends_with("ch")
+            || base.ends_with("sh")
+        {
+            format!("{base}es")
+        } else if b.len() > 1 && b[b.len() - 1] == b'y' && !is_vowel(b[b.len() - 2]) {
+            format!("{}ies", &base[..base.len() - 1])
+        } else {
+            format!("{base}s")
+        };
+        return Ok(forms.into_iter().chain(std::iter::once(plural)).collect());
+    }
     let (base, inflect) = match word.strip_suffix('~') {
         Some(b) => (b, true),
         None => (word, false),

@@ -197,7 +197,7 @@ fn is_heading(line: &str) -> bool {
         && line[hashes..]
             .chars()
             .next()
-            .map_or(true, char::is_whitespace)
+            .is_none_or(char::is_whitespace)
 }
 
 /// A Markdown list marker: "- ", "* ", "+ ", "• ", or 1-9 digits then "." or ")" and a space.
