@@ -23,6 +23,8 @@ pub struct Token {
     pub end: usize,
     pub lower: String,
     pub word: bool,
+    /// The token starts with an upper-case letter.
+    pub capital: bool,
 }
 
 fn token_regex() -> &'static Regex {
@@ -45,6 +47,7 @@ pub fn tokenize(sentence: &str) -> Vec<Token> {
                 end: m.end(),
                 lower: s.to_lowercase().replace('’', "'"),
                 word,
+                capital: s.chars().next().is_some_and(char::is_uppercase),
             }
         })
         .collect()
@@ -582,6 +585,11 @@ impl Extractor {
     /// increase in", "the increased risk"): not this cue.
     fn noun_use(&self, m: &CueMatch, toks: &[Token], ca: usize) -> Option<String> {
         let cue = &self.cues.cues[m.cue];
+        // A capitalised cue word after a word inside the sentence is part of a name ("Foster
+        // City", "Lead Author").
+        if ca > 0 && toks[ca].capital && toks[ca - 1].word {
+            return Some("capitalised inside the sentence: part of a name, not a statement".into());
+        }
         if cue.left.is_none() || cue.spec.clause_spans || !cue.verb_first {
             return None;
         }

@@ -40,7 +40,7 @@ const HEADERS: &[&str] = &[
 
 pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
     let loaded = g.graph(&a.filter.to_filter())?;
-    let norm = &loaded.ex.normalizer;
+    let norm = &loaded.normalizer;
     let key = |s: &Option<String>| {
         s.as_ref()
             .map(|s| loaded.aliases.resolve(&norm.key(s)).to_string())

@@ -14,7 +14,7 @@ use anyhow::{Context, Result};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use hearsay::claims::Extractor;
 use hearsay::graph::{ClaimGraph, Filter};
-use hearsay::normalize::Aliases;
+use hearsay::normalize::{Aliases, Normalizer};
 use hearsay::patterns::{self as pat, PatternSet};
 use hearsay::store::Store;
 use hearsay::{Kind, Modality, Polarity};
@@ -194,14 +194,15 @@ impl Global {
     /// Open the store and build its graph.
     pub fn graph(&self, filter: &Filter) -> Result<Loaded> {
         let store = self.open_store()?;
-        let ex = self.extractor()?;
+        // Queries need only the normaliser: compiling the cues would cost more than the query.
         let set = self.pattern_set()?;
-        let aliases = Aliases::new(&ex.normalizer, &self.alias_pairs(&set)?);
+        let normalizer = Normalizer::new(&set.lexicon);
+        let aliases = Aliases::new(&normalizer, &self.alias_pairs(&set)?);
         let rows = store.rows().context("cannot read the store's claims")?;
         let graph = ClaimGraph::build(rows, &aliases, filter);
         Ok(Loaded {
             store,
-            ex,
+            normalizer,
             aliases,
             graph,
         })
@@ -217,7 +218,7 @@ impl Global {
 /// A store with its graph, ready for queries.
 pub struct Loaded {
     pub store: Store,
-    pub ex: Extractor,
+    pub normalizer: Normalizer,
     pub aliases: Aliases,
     pub graph: ClaimGraph,
 }

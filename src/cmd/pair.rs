@@ -33,8 +33,8 @@ pub struct PairArgs {
 
 pub fn run(g: &Global, a: &PairArgs) -> Result<ExitCode> {
     let mut loaded = g.graph(&a.filter.to_filter())?;
-    let x = report::lookup(&loaded.graph, &loaded.ex.normalizer, &loaded.aliases, &a.x);
-    let y = report::lookup(&loaded.graph, &loaded.ex.normalizer, &loaded.aliases, &a.y);
+    let x = report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, &a.x);
+    let y = report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, &a.y);
     let co_mentions = {
         let (xt, yt) = (key_terms(&x.0.key), key_terms(&y.0.key));
         if xt.is_empty() || yt.is_empty() || x.0.key == y.0.key {
