@@ -8,7 +8,12 @@
 //! aborts: the caller records them and goes on with the next file.
 
 use crate::error::ReadError;
-use std::io::Read;
+use crate::readers::html::HtmlReader;
+use crate::readers::jsonl::JsonlReader;
+use crate::readers::markdown::MarkdownReader;
+use crate::readers::pdf::PdfReader;
+use crate::readers::text::TextReader;
+use std::io::{BufRead, Read};
 use std::path::{Path, PathBuf};
 
 /// One document's text with what provenance needs.
@@ -18,7 +23,8 @@ pub struct Document {
     pub path: String,
     /// A record id within the file, for many-documents-per-file formats.
     pub record: Option<String>,
-    /// The decoded text. Claim offsets are bytes into this string.
+    /// The text the reader produced (markup and page furniture removed). Claim offsets are
+    /// bytes into this string, which equals the file only for plain text.
     pub text: String,
     /// Byte offsets at which pages 2, 3, ... start (empty for unpaged formats).
     pub page_starts: Vec<usize>,
@@ -61,6 +67,48 @@ pub struct Skipped {
 /// Something a reader noticed that the user should know (lossy decoding, say).
 pub type Warnings = Vec<String>;
 
+/// Which reader to use: found from the content and extension, or forced.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum InputFormat {
+    #[default]
+    Auto,
+    Text,
+    Markdown,
+    Html,
+    Pdf,
+    Jsonl,
+}
+
+/// Options every reader may consult.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ReadOptions {
+    /// The format to read every input as; `Auto` sniffs.
+    pub format: InputFormat,
+    /// JSON Lines: the field holding a record's text.
+    pub text_field: String,
+    /// JSON Lines: the field holding a record's id (else the line number is used).
+    pub id_field: String,
+    /// The most bytes a compressed file may expand to.
+    pub max_decompressed: u64,
+    /// JSON Lines: the longest record read; longer ones are skipped with a warning.
+    pub max_record: usize,
+    /// PDF: stop at the references or bibliography heading.
+    pub cut_references: bool,
+}
+
+impl Default for ReadOptions {
+    fn default() -> Self {
+        ReadOptions {
+            format: InputFormat::Auto,
+            text_field: "text".into(),
+            id_field: "id".into(),
+            max_decompressed: 4 << 30,
+            max_record: 64 << 20,
+            cut_references: true,
+        }
+    }
+}
+
 /// Turns one file's bytes into documents.
 pub trait Reader: Send + Sync {
     /// A short name for messages ("text", "markdown").
@@ -70,116 +118,304 @@ pub trait Reader: Send + Sync {
         &self,
         label: &str,
         bytes: &[u8],
+        opts: &ReadOptions,
         warnings: &mut Warnings,
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError>;
+    /// Read from a stream. Formats that can be read piecewise (JSON Lines) override this so a
+    /// file is never held whole; the default reads up to [`MAX_FILE_BYTES`] and calls `read`.
+    fn read_stream(
+        &self,
+        label: &str,
+        src: &mut dyn BufRead,
+        opts: &ReadOptions,
+        warnings: &mut Warnings,
+        emit: &mut dyn FnMut(Document),
+    ) -> Result<(), ReadError> {
+        let mut buf = Vec::new();
+        src.take(MAX_FILE_BYTES + 1).read_to_end(&mut buf)?;
+        if buf.len() as u64 > MAX_FILE_BYTES {
+            return Err(ReadError::TooLarge(format!("over {MAX_FILE_BYTES} bytes")));
+        }
+        self.read(label, &buf, opts, warnings, emit)
+    }
 }
 
-/// Plain text, UTF-8 (invalid sequences are replaced, with a warning).
-#[derive(Debug, Default)]
-pub struct TextReader;
+static TEXT: TextReader = TextReader;
+static MARKDOWN: MarkdownReader = MarkdownReader;
+static HTML: HtmlReader = HtmlReader;
+static PDF: PdfReader = PdfReader;
+static JSONL: JsonlReader = JsonlReader;
 
-/// Markdown, read as text for now (its markup words rarely matter to cues).
-#[derive(Debug, Default)]
-pub struct MarkdownReader;
-
-fn looks_binary(bytes: &[u8]) -> bool {
-    let head = &bytes[..bytes.len().min(8192)];
-    if head.contains(&0) {
-        return true;
+fn reader_of(f: InputFormat) -> &'static dyn Reader {
+    match f {
+        InputFormat::Auto | InputFormat::Text => &TEXT,
+        InputFormat::Markdown => &MARKDOWN,
+        InputFormat::Html => &HTML,
+        InputFormat::Pdf => &PDF,
+        InputFormat::Jsonl => &JSONL,
     }
-    let control = head
-        .iter()
-        .filter(|&&b| b < 0x09 || (0x0e..0x20).contains(&b))
-        .count();
-    control * 10 > head.len().max(1)
 }
 
-/// Decode bytes as UTF-8, replacing invalid sequences and warning when it had to.
-pub fn decode_text(
-    label: &str,
-    bytes: &[u8],
-    warnings: &mut Warnings,
-) -> Result<String, ReadError> {
-    if looks_binary(bytes) {
-        return Err(ReadError::Binary(format!(
-            "{label} holds NUL or control bytes"
-        )));
+/// The file name's extension(s), lower-cased, with a compression suffix split off.
+fn extensions(path: &Path) -> (Option<String>, Option<String>) {
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().to_ascii_lowercase())
+        .unwrap_or_default();
+    let mut parts = name.rsplit('.');
+    let last = parts.next().map(str::to_string);
+    if name.contains('.') {
+        if let Some(l @ ("gz" | "zst")) = last.as_deref() {
+            let inner = if name.matches('.').count() >= 2 {
+                parts.next().map(str::to_string)
+            } else {
+                None
+            };
+            return (inner, Some(l.to_string()));
+        }
+        return (last, None);
     }
-    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
-    match std::str::from_utf8(bytes) {
-        Ok(s) => Ok(s.to_string()),
-        Err(_) => {
-            warnings.push(format!(
-                "{label}: invalid UTF-8, decoded with replacement characters"
-            ));
-            Ok(String::from_utf8_lossy(bytes).into_owned())
+    (None, None)
+}
+
+/// The format an extension names, if any.
+pub fn format_by_extension(path: &Path) -> Option<InputFormat> {
+    let (ext, _) = extensions(path);
+    match ext.as_deref()? {
+        "txt" | "text" => Some(InputFormat::Text),
+        "md" | "markdown" => Some(InputFormat::Markdown),
+        "html" | "htm" | "xhtml" => Some(InputFormat::Html),
+        "pdf" => Some(InputFormat::Pdf),
+        "jsonl" | "ndjson" => Some(InputFormat::Jsonl),
+        _ => None,
+    }
+}
+
+/// Choose a format: strong content signs (a PDF header, an HTML doctype or root tag) win, then
+/// the extension, then weak signs (a first line that is a JSON object), then text.
+pub fn sniff(head: &[u8], path: &Path) -> InputFormat {
+    let trimmed = {
+        let h = head.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(head);
+        let start = h.iter().position(|b| !b.is_ascii_whitespace()).unwrap_or(h.len());
+        &h[start..]
+    };
+    if trimmed.starts_with(b"%PDF-") {
+        return InputFormat::Pdf;
+    }
+    let lower: Vec<u8> = trimmed.iter().take(512).map(u8::to_ascii_lowercase).collect();
+    if lower.starts_with(b"<!doctype html") || lower.starts_with(b"<html") {
+        return InputFormat::Html;
+    }
+    if let Some(f) = format_by_extension(path) {
+        return f;
+    }
+    if trimmed.starts_with(b"{") {
+        let first = trimmed.split(|&b| b == b'\n').next().unwrap_or(trimmed);
+        if serde_json::from_slice::<serde_json::Value>(first).is_ok_and(|v| v.is_object()) {
+            return InputFormat::Jsonl;
         }
     }
+    InputFormat::Text
 }
 
-impl Reader for TextReader {
-    fn name(&self) -> &'static str {
-        "text"
-    }
-    fn read(
-        &self,
-        label: &str,
-        bytes: &[u8],
-        warnings: &mut Warnings,
-        emit: &mut dyn FnMut(Document),
-    ) -> Result<(), ReadError> {
-        let text = decode_text(label, bytes, warnings)?;
-        // A file whose lines are long and seldom blank holds one paragraph per line.
-        let lines = text.lines().count().max(1);
-        let blank = text.lines().filter(|l| l.trim().is_empty()).count();
-        let lines_are_paragraphs = text.len() / lines > 200 && blank * 10 < lines;
-        emit(Document {
-            path: label.to_string(),
-            record: None,
-            text,
-            page_starts: Vec::new(),
-            lines_are_paragraphs,
-        });
-        Ok(())
-    }
+/// Whether a folder walk reads this file: a known extension, possibly compressed.
+pub fn is_known_file(path: &Path) -> bool {
+    format_by_extension(path).is_some()
 }
 
-impl Reader for MarkdownReader {
-    fn name(&self) -> &'static str {
-        "markdown"
+/// Stops a decompressor after `cap` bytes: the defence against decompression bombs.
+struct Capped<R> {
+    inner: R,
+    left: u64,
+    cap: u64,
+}
+
+#[derive(Debug)]
+struct CapExceeded(u64);
+
+impl std::fmt::Display for CapExceeded {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "decompresses to more than {} bytes (raise the cap with --max-decompressed)",
+            self.0
+        )
     }
-    fn read(
-        &self,
-        label: &str,
-        bytes: &[u8],
-        warnings: &mut Warnings,
-        emit: &mut dyn FnMut(Document),
-    ) -> Result<(), ReadError> {
-        let text = decode_text(label, bytes, warnings)?;
-        emit(Document {
-            path: label.to_string(),
-            record: None,
-            text,
-            page_starts: Vec::new(),
-            lines_are_paragraphs: false,
-        });
-        Ok(())
+}
+impl std::error::Error for CapExceeded {}
+
+impl<R: Read> Read for Capped<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        if self.left == 0 {
+            // One byte past the cap tells "exactly at the cap" from "over it".
+            let mut probe = [0u8; 1];
+            return match self.inner.read(&mut probe)? {
+                0 => Ok(0),
+                _ => Err(std::io::Error::other(CapExceeded(self.cap))),
+            };
+        }
+        let want = buf.len().min(self.left.min(usize::MAX as u64) as usize);
+        let n = self.inner.read(&mut buf[..want])?;
+        self.left -= n as u64;
+        Ok(n)
     }
 }
 
-/// The reader for a file, by extension; `None` for formats hearsay does not read.
-pub fn reader_for(path: &Path) -> Option<&'static dyn Reader> {
-    static TEXT: TextReader = TextReader;
-    static MD: MarkdownReader = MarkdownReader;
-    let ext = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .map(str::to_ascii_lowercase);
-    match ext.as_deref() {
-        Some("txt" | "text") => Some(&TEXT),
-        Some("md" | "markdown") => Some(&MD),
-        _ => None,
+fn capped<R: Read>(inner: R, cap: u64) -> Capped<R> {
+    Capped {
+        inner,
+        left: cap,
+        cap,
+    }
+}
+
+/// An I/O error from reading, with decompression trouble named as such.
+fn read_error(e: std::io::Error, compressed: bool) -> ReadError {
+    if let Some(c) = e.get_ref().and_then(|i| i.downcast_ref::<CapExceeded>()) {
+        return ReadError::TooLarge(c.to_string());
+    }
+    if compressed && e.kind() != std::io::ErrorKind::PermissionDenied {
+        return ReadError::Malformed(format!("corrupt or truncated compressed data: {e}"));
+    }
+    ReadError::Io(e)
+}
+
+/// Read documents from a stream: undo gzip or zstd compression (found by magic bytes), choose
+/// the reader, and hand it the stream. `path` supplies the extension.
+pub fn read_from(
+    label: &str,
+    path: &Path,
+    src: &mut dyn BufRead,
+    opts: &ReadOptions,
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+) -> Result<(), ReadError> {
+    let head = src.fill_buf()?;
+    let gz = head.starts_with(&[0x1f, 0x8b]);
+    let zst = head.starts_with(&[0x28, 0xb5, 0x2f, 0xfd]);
+    let mut inner: Box<dyn BufRead + '_> = if gz {
+        Box::new(std::io::BufReader::with_capacity(
+            1 << 16,
+            capped(flate2::bufread::MultiGzDecoder::new(src), opts.max_decompressed),
+        ))
+    } else if zst {
+        let d = zstd::stream::read::Decoder::with_buffer(src).map_err(|e| read_error(e, true))?;
+        Box::new(std::io::BufReader::with_capacity(
+            1 << 16,
+            capped(d, opts.max_decompressed),
+        ))
+    } else {
+        Box::new(src)
+    };
+    let compressed = gz || zst;
+    let head = inner.fill_buf().map_err(|e| read_error(e, compressed))?;
+    let format = match opts.format {
+        InputFormat::Auto => sniff(head, path),
+        f => f,
+    };
+    let reader = reader_of(format);
+    let mut err = None;
+    let mut guarded = ErrorSlot {
+        inner: &mut inner,
+        err: &mut err,
+    };
+    let r = reader.read_stream(label, &mut guarded, opts, warnings, emit);
+    match (r, err) {
+        (Err(_), Some(e)) => Err(read_error(e, compressed)),
+        (r, _) => r,
+    }
+}
+
+/// Keeps the first I/O error a reader saw, so it can be reported with its real cause (a
+/// decompression cap, a truncated archive) rather than as the reader's own.
+struct ErrorSlot<'a, 'b> {
+    inner: &'a mut Box<dyn BufRead + 'b>,
+    err: &'a mut Option<std::io::Error>,
+}
+
+impl ErrorSlot<'_, '_> {
+    fn keep(&mut self, e: std::io::Error) -> std::io::Error {
+        let copy = std::io::Error::new(e.kind(), e.to_string());
+        if self.err.is_none() {
+            *self.err = Some(e);
+        }
+        copy
+    }
+}
+
+impl Read for ErrorSlot<'_, '_> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        self.inner.read(buf).map_err(|e| self.keep(e))
+    }
+}
+
+impl BufRead for ErrorSlot<'_, '_> {
+    fn fill_buf(&mut self) -> std::io::Result<&[u8]> {
+        // Borrow juggling: probe first, then return the buffer.
+        if let Err(e) = self.inner.fill_buf() {
+            return Err(self.keep(e));
+        }
+        self.inner.fill_buf()
+    }
+    fn consume(&mut self, n: usize) {
+        self.inner.consume(n)
+    }
+}
+
+/// Read one input into documents, pushed to `emit` as they are read. Files are streamed;
+/// standard input is read whole (capped) first. The reader runs under `catch_unwind`: a panic
+/// costs its file, not the run.
+pub fn read_input(
+    input: &Input,
+    opts: &ReadOptions,
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+) -> Result<(), ReadError> {
+    if input.is_stdin() {
+        let bytes = read_bytes(input)?;
+        return read_bytes_into(input, &bytes, opts, warnings, emit);
+    }
+    let f = std::fs::File::open(&input.path)?;
+    let mut src = std::io::BufReader::with_capacity(1 << 16, f);
+    guarded(input, opts, || {
+        read_from(&input.label, &input.path, &mut src, opts, warnings, emit)
+    })
+}
+
+/// Read documents from bytes already in memory (standard input, tests).
+pub fn read_bytes_into(
+    input: &Input,
+    bytes: &[u8],
+    opts: &ReadOptions,
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+) -> Result<(), ReadError> {
+    let mut src = bytes;
+    guarded(input, opts, || {
+        read_from(&input.label, &input.path, &mut src, opts, warnings, emit)
+    })
+}
+
+fn guarded(
+    input: &Input,
+    opts: &ReadOptions,
+    f: impl FnOnce() -> Result<(), ReadError>,
+) -> Result<(), ReadError> {
+    // A reader that panics on hostile input costs its file, not the run.
+    match std::panic::catch_unwind(std::panic::AssertUnwindSafe(f)) {
+        Ok(r) => r,
+        Err(_) => {
+            let name = match opts.format {
+                InputFormat::Auto => format_by_extension(&input.path)
+                    .map(|f| reader_of(f).name())
+                    .unwrap_or("text"),
+                f => reader_of(f).name(),
+            };
+            Err(ReadError::Malformed(format!(
+                "the {name} reader failed on this file (malformed input)"
+            )))
+        }
     }
 }
 
@@ -227,7 +463,7 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
                                 continue;
                             }
                             let label = e.path().to_string_lossy().into_owned();
-                            if reader_for(e.path()).is_some() {
+                            if is_known_file(e.path()) {
                                 inputs.push(Input {
                                     path: e.path().to_path_buf(),
                                     label,
@@ -271,45 +507,9 @@ pub fn read_bytes(input: &Input) -> Result<Vec<u8>, ReadError> {
     Ok(buf)
 }
 
-/// Read one input into documents with the reader its extension picks (text for stdin and
-/// unknown extensions given by name).
-pub fn read_documents(
-    input: &Input,
-    bytes: &[u8],
-    warnings: &mut Warnings,
-) -> Result<Vec<Document>, ReadError> {
-    static TEXT: TextReader = TextReader;
-    let reader = reader_for(&input.path).unwrap_or(&TEXT);
-    let mut docs = Vec::new();
-    // A reader that panics on hostile input costs its file, not the run.
-    let result = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-        reader.read(&input.label, bytes, warnings, &mut |d| docs.push(d))
-    }));
-    match result {
-        Ok(r) => r.map(|()| docs),
-        Err(_) => Err(ReadError::Malformed(format!(
-            "the {} reader failed on this file",
-            reader.name()
-        ))),
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn binary_is_refused_and_bad_utf8_warns() {
-        let mut w = Vec::new();
-        assert!(matches!(
-            decode_text("b.txt", b"abc\0def", &mut w),
-            Err(ReadError::Binary(_))
-        ));
-        let s = decode_text("u.txt", b"caf\xe9 causes joy", &mut w).unwrap();
-        assert!(s.contains('\u{FFFD}'));
-        assert_eq!(w.len(), 1);
-        assert!(w[0].starts_with("u.txt"));
-    }
 
     #[test]
     fn pages_are_found_by_offset() {

@@ -28,6 +28,8 @@ pub enum ReadError {
     Binary(String),
     #[error("{0}")]
     Malformed(String),
+    #[error("no text: {0}")]
+    NoText(String),
     #[error("too large: {0}")]
     TooLarge(String),
 }

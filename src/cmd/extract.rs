@@ -31,6 +31,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     let started = Instant::now();
     check_paths(&a.paths)?;
     let ex = g.extractor()?;
+    let opts = g.read.options();
     let (inputs, skipped) = corpus::discover(&a.paths);
     for s in &skipped {
         if a.paths.iter().any(|p| p == &s.path) {
@@ -41,7 +42,8 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     let (mut claims, mut failed, mut bytes) = (0usize, 0usize, 0usize);
     let chunk = rayon::current_num_threads() * 4;
     for group in inputs.chunks(chunk.max(1)) {
-        let results: Vec<Extracted> = group.par_iter().map(|i| one(&ex, i)).collect();
+        let results: Vec<Extracted> =
+            group.par_iter().map(|i| one(&ex, &opts, i)).collect();
         for (input, (r, warnings)) in group.iter().zip(results) {
             for w in warnings {
                 g.warn(&w);
@@ -81,22 +83,30 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
 
 type Extracted = (Result<(String, usize, usize), String>, Vec<String>);
 
-fn one(ex: &hearsay::claims::Extractor, input: &Input) -> Extracted {
+fn one(ex: &hearsay::claims::Extractor, opts: &corpus::ReadOptions, input: &Input) -> Extracted {
     let mut warnings = Vec::new();
     let r = (|| {
-        let bytes = corpus::read_bytes(input).map_err(|e| e.to_string())?;
-        let docs =
-            corpus::read_documents(input, &bytes, &mut warnings).map_err(|e| e.to_string())?;
         let mut text = String::new();
-        let mut n = 0;
-        for d in &docs {
-            for c in pipeline::document_claims(ex, d) {
-                text.push_str(&serde_json::to_string(&c).map_err(|e| e.to_string())?);
-                text.push('\n');
-                n += 1;
+        let (mut n, mut b) = (0, 0);
+        let mut failed = None;
+        corpus::read_input(input, opts, &mut warnings, &mut |d| {
+            b += d.text.len();
+            for c in pipeline::document_claims(ex, &d) {
+                match serde_json::to_string(&c) {
+                    Ok(j) => {
+                        text.push_str(&j);
+                        text.push('\n');
+                        n += 1;
+                    }
+                    Err(e) => failed = Some(e.to_string()),
+                }
             }
+        })
+        .map_err(|e| e.to_string())?;
+        if let Some(e) = failed {
+            return Err(e);
         }
-        Ok((text, n, bytes.len()))
+        Ok((text, n, b))
     })();
     (r, warnings)
 }

@@ -71,6 +71,8 @@ pub struct Global {
     /// Worker threads (default: all cores).
     #[arg(long, short = 'j', global = true, value_name = "N")]
     pub threads: Option<usize>,
+    #[command(flatten)]
+    pub read: ReadArgs,
 }
 
 #[derive(Subcommand, Debug)]
@@ -334,4 +336,74 @@ pub fn check_paths(paths: &[String]) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// How input files are read (the corpus stage's options).
+#[derive(Args, Debug, Clone)]
+pub struct ReadArgs {
+    /// Read every input as this format instead of sniffing content and extension.
+    #[arg(long, global = true, value_enum, default_value_t = InputFormatArg::Auto)]
+    pub input_format: InputFormatArg,
+    /// JSON Lines: the field that holds a record's text.
+    #[arg(long, global = true, default_value = "text", value_name = "FIELD")]
+    pub text_field: String,
+    /// JSON Lines: the field that holds a record's id (records without it use the line number).
+    #[arg(long, global = true, default_value = "id", value_name = "FIELD")]
+    pub id_field: String,
+    /// Most bytes a .gz or .zst file may expand to (suffixes K, M, G: powers of 1024).
+    #[arg(long, global = true, default_value = "4G", value_parser = parse_size, value_name = "SIZE")]
+    pub max_decompressed: u64,
+    /// JSON Lines: longest record read; longer records are skipped with a warning.
+    #[arg(long, global = true, default_value = "64M", value_parser = parse_size, value_name = "SIZE")]
+    pub max_record: u64,
+    /// PDF: keep the text after a "References" or "Bibliography" heading.
+    #[arg(long, global = true)]
+    pub keep_references: bool,
+}
+
+#[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
+pub enum InputFormatArg {
+    Auto,
+    Text,
+    Markdown,
+    Html,
+    Pdf,
+    Jsonl,
+}
+
+impl ReadArgs {
+    pub fn options(&self) -> hearsay::corpus::ReadOptions {
+        use hearsay::corpus::InputFormat as F;
+        hearsay::corpus::ReadOptions {
+            format: match self.input_format {
+                InputFormatArg::Auto => F::Auto,
+                InputFormatArg::Text => F::Text,
+                InputFormatArg::Markdown => F::Markdown,
+                InputFormatArg::Html => F::Html,
+                InputFormatArg::Pdf => F::Pdf,
+                InputFormatArg::Jsonl => F::Jsonl,
+            },
+            text_field: self.text_field.clone(),
+            id_field: self.id_field.clone(),
+            max_decompressed: self.max_decompressed,
+            max_record: usize::try_from(self.max_record).unwrap_or(usize::MAX),
+            cut_references: !self.keep_references,
+        }
+    }
+}
+
+/// A byte count with an optional K, M or G suffix (powers of 1024).
+fn parse_size(s: &str) -> Result<u64, String> {
+    let t = s.trim();
+    let (num, mult) = match t.char_indices().last() {
+        Some((i, 'k' | 'K')) => (&t[..i], 1u64 << 10),
+        Some((i, 'm' | 'M')) => (&t[..i], 1 << 20),
+        Some((i, 'g' | 'G')) => (&t[..i], 1 << 30),
+        _ => (t, 1),
+    };
+    num.trim()
+        .parse::<u64>()
+        .ok()
+        .and_then(|n| n.checked_mul(mult))
+        .ok_or_else(|| format!("not a size: {s:?} (use e.g. 4096, 64K, 500M, 4G)"))
 }

@@ -69,7 +69,12 @@ fn mtime_ns(m: &std::fs::Metadata) -> u128 {
         .unwrap_or(0)
 }
 
-fn process(ex: &Extractor, input: &Input, known: Option<&FileEntry>) -> Outcome {
+fn process(
+    ex: &Extractor,
+    opts: &corpus::ReadOptions,
+    input: &Input,
+    known: Option<&FileEntry>,
+) -> Outcome {
     let fail = |reason: String| {
         Outcome::Failed(Skipped {
             path: input.label.clone(),
@@ -89,11 +94,26 @@ fn process(ex: &Extractor, input: &Input, known: Option<&FileEntry>) -> Outcome 
             return Outcome::Unchanged(k.clone());
         }
     }
-    let bytes = match corpus::read_bytes(input) {
-        Ok(b) => b,
-        Err(e) => return fail(e.to_string()),
+    // Files are hashed by streaming them, and read again only when the content changed, so
+    // no file is held whole for the hash. Standard input can be read once only.
+    let stdin_bytes = if input.is_stdin() {
+        match corpus::read_bytes(input) {
+            Ok(b) => Some(b),
+            Err(e) => return fail(e.to_string()),
+        }
+    } else {
+        None
     };
-    let hash = blake3::hash(&bytes).to_hex().to_string();
+    let hash = match &stdin_bytes {
+        Some(b) => blake3::hash(b),
+        None => match std::fs::File::open(&input.path)
+            .and_then(|f| blake3::Hasher::new().update_reader(f).map(|h| h.finalize()))
+        {
+            Ok(h) => h,
+            Err(e) => return fail(format!("cannot read: {e}")),
+        },
+    };
+    let hash = hash.to_hex().to_string();
     if let Some(k) = known {
         if k.hash == hash {
             return Outcome::Unchanged(FileEntry {
@@ -104,31 +124,38 @@ fn process(ex: &Extractor, input: &Input, known: Option<&FileEntry>) -> Outcome 
         }
     }
     let mut warnings = Vec::new();
-    let docs = match corpus::read_documents(input, &bytes, &mut warnings) {
-        Ok(d) => d,
-        Err(e) => return fail(e.to_string()),
-    };
-    drop(bytes);
     let mut result = FileResult::default();
-    for d in &docs {
-        result.claims.extend(pipeline::document_claims(ex, d));
+    let (mut documents, mut text_bytes) = (0u64, 0u64);
+    // Each document is taken through the pipeline as soon as it is read, so a JSON Lines dump
+    // costs the memory of one record plus its results.
+    let mut take = |d: corpus::Document| {
+        documents += 1;
+        text_bytes += d.text.len() as u64;
+        result.claims.extend(pipeline::document_claims(ex, &d));
         let id = doc_id(&d.path, d.record.as_deref());
-        for s in pipeline::document_sentences(d) {
+        for s in pipeline::document_sentences(&d) {
             result
                 .sentences
                 .push((id.clone(), s.line as u64, s.start as u64, collapse(s.text)));
         }
+    };
+    let read = match &stdin_bytes {
+        Some(b) => corpus::read_bytes_into(input, b, opts, &mut warnings, &mut take),
+        None => corpus::read_input(input, opts, &mut warnings, &mut take),
+    };
+    if let Err(e) = read {
+        return fail(e.to_string());
     }
     result.entry = Some(FileEntry {
         path: input.label.clone(),
         size: if input.is_stdin() {
-            docs.iter().map(|d| d.text.len() as u64).sum()
+            text_bytes
         } else {
             size
         },
         mtime_ns: mtime,
         hash,
-        documents: docs.len() as u64,
+        documents,
         sentences: result.sentences.len() as u64,
         claims: 0,
         segment: 0,
@@ -143,6 +170,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     check_paths(&a.paths)?;
     let set = g.pattern_set()?;
     let ex = g.extractor()?;
+    let opts = g.read.options();
     let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
         .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
     if let Some(al) = &g.aliases {
@@ -179,7 +207,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         let outcomes: Vec<Outcome> = chunk
             .par_iter()
             .zip(known.par_iter())
-            .map(|(i, k)| process(&ex, i, k.as_ref()))
+            .map(|(i, k)| process(&ex, &opts, i, k.as_ref()))
             .collect();
         for o in outcomes {
             match o {

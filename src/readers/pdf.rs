@@ -1,0 +1,210 @@
+//! PDF via pdf-extract: the text of each page in content order, cleaned into paragraphs.
+//!
+//! Cleaning, in order: lines that repeat at the top or bottom of many pages (running headers
+//! and footers, with digits masked so "Page 3" matches "Page 4") and bare page numbers are
+//! dropped; lines are joined into paragraphs (a blank line, or a short line ending a sentence,
+//! ends one); a hyphen at a line end before a lower-case letter is undone ("regu-" + "lation");
+//! the text stops at a line that is only "References", "Bibliography" or the like, unless
+//! `--keep-references` is given. `page_starts` records where each page's text begins, so claims
+//! carry their page. A PDF without extractable text (a scan) is an error saying so.
+
+use crate::corpus::{Document, ReadOptions, Reader, Warnings};
+use crate::error::ReadError;
+use std::collections::HashMap;
+
+/// PDF files.
+#[derive(Debug, Default)]
+pub struct PdfReader;
+
+/// How many lines at each end of a page are looked at for running headers and footers.
+const EDGE_LINES: usize = 3;
+
+fn mask_digits(s: &str) -> String {
+    s.chars()
+        .map(|c| if c.is_ascii_digit() { '#' } else { c })
+        .filter(|c| !c.is_whitespace())
+        .collect()
+}
+
+fn is_page_number(s: &str) -> bool {
+    let t = s.trim().trim_start_matches("Page").trim_start_matches("page").trim();
+    !t.is_empty()
+        && t.len() <= 12
+        && t.chars().all(|c| c.is_ascii_digit() || " /of-–".contains(c))
+        && t.chars().any(|c| c.is_ascii_digit())
+}
+
+fn is_references_heading(s: &str) -> bool {
+    let t = s
+        .trim()
+        .trim_start_matches(|c: char| c.is_ascii_digit() || c == '.' || c.is_whitespace())
+        .trim_end_matches(':')
+        .to_lowercase();
+    matches!(
+        t.as_str(),
+        "references" | "bibliography" | "works cited" | "literature cited" | "references and notes"
+    )
+}
+
+/// Lines (digit-masked) that sit at a page edge on at least half of the pages (and two).
+fn running_lines(pages: &[Vec<&str>]) -> HashMap<String, usize> {
+    let mut seen: HashMap<String, usize> = HashMap::new();
+    for lines in pages {
+        let n = lines.len();
+        let mut edge: Vec<String> = lines
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| *i < EDGE_LINES || *i + EDGE_LINES >= n)
+            .map(|(_, l)| mask_digits(l))
+            .filter(|l| !l.is_empty())
+            .collect();
+        edge.sort();
+        edge.dedup();
+        for l in edge {
+            *seen.entry(l).or_default() += 1;
+        }
+    }
+    let need = (pages.len() / 2).max(2);
+    seen.retain(|_, c| *c >= need);
+    seen
+}
+
+/// Clean page texts into one text with the byte offset of each page after the first.
+pub fn clean_pages(pages: &[String], cut_references: bool) -> (String, Vec<usize>) {
+    let split: Vec<Vec<&str>> = pages
+        .iter()
+        .map(|p| p.lines().map(str::trim).filter(|l| !l.is_empty()).collect())
+        .collect();
+    let running = running_lines(&split);
+    let mut out = String::new();
+    let mut starts = Vec::new();
+    'pages: for (pi, lines) in pages.iter().enumerate() {
+        let mut pending = pi > 0;
+        let n = split[pi].len();
+        let mut idx = 0usize;
+        let mut para = String::new();
+        for raw in lines.lines() {
+            let line = raw.trim();
+            if line.is_empty() {
+                push_para(&mut out, &mut para, &mut pending, &mut starts);
+                continue;
+            }
+            let at_edge = idx < EDGE_LINES || idx + EDGE_LINES >= n;
+            idx += 1;
+            if is_page_number(line) || (at_edge && running.contains_key(&mask_digits(line))) {
+                continue;
+            }
+            if cut_references && is_references_heading(line) && !out.is_empty() {
+                push_para(&mut out, &mut para, &mut pending, &mut starts);
+                break 'pages;
+            }
+            join_line(&mut para, line);
+        }
+        push_para(&mut out, &mut para, &mut pending, &mut starts);
+        if pending {
+            // A page without body text starts where the next text will.
+            starts.push(out.len());
+        }
+    }
+    while starts.last().is_some_and(|&s| s >= out.len() && !out.is_empty()) {
+        starts.pop();
+    }
+    (out, starts)
+}
+
+fn join_line(para: &mut String, line: &str) {
+    if para.is_empty() {
+        para.push_str(line);
+        return;
+    }
+    let next_lower = line.chars().next().is_some_and(char::is_lowercase);
+    let hyphenated = para.ends_with('-')
+        && para[..para.len() - 1]
+            .chars()
+            .next_back()
+            .is_some_and(char::is_alphabetic);
+    if hyphenated && next_lower {
+        para.pop();
+    } else {
+        para.push(' ');
+    }
+    para.push_str(line);
+}
+
+fn push_para(out: &mut String, para: &mut String, pending: &mut bool, starts: &mut Vec<usize>) {
+    if para.is_empty() {
+        return;
+    }
+    if !out.is_empty() {
+        out.push_str("\n\n");
+    }
+    if *pending {
+        starts.push(out.len());
+        *pending = false;
+    }
+    out.push_str(para);
+    para.clear();
+}
+
+impl Reader for PdfReader {
+    fn name(&self) -> &'static str {
+        "pdf"
+    }
+    fn read(
+        &self,
+        label: &str,
+        bytes: &[u8],
+        opts: &ReadOptions,
+        _warnings: &mut Warnings,
+        emit: &mut dyn FnMut(Document),
+    ) -> Result<(), ReadError> {
+        let pages = pdf_extract::extract_text_from_mem_by_pages(bytes)
+            .map_err(|e| ReadError::Malformed(format!("cannot read this PDF: {e}")))?;
+        if pages.iter().all(|p| p.trim().is_empty()) {
+            return Err(ReadError::NoText(format!(
+                "{} page(s) and no extractable text (a scanned PDF?)",
+                pages.len()
+            )));
+        }
+        let (text, page_starts) = clean_pages(&pages, opts.cut_references);
+        emit(Document {
+            path: label.to_string(),
+            record: None,
+            text,
+            page_starts,
+            lines_are_paragraphs: false,
+        });
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn headers_numbers_hyphens_and_references() {
+        let pages = vec![
+            "Journal of Lakes 12\nWarm water raises the regu-\nlation of algae.\n\n1\n".to_string(),
+            "Journal of Lakes 13\nRain causes floods.\nReferences\nA. Author 2020.\n2\n".to_string(),
+        ];
+        let (t, starts) = clean_pages(&pages, true);
+        assert_eq!(t, "Warm water raises the regulation of algae.\n\nRain causes floods.");
+        assert_eq!(starts, vec![t.find("Rain").unwrap()]);
+        let (t, _) = clean_pages(&pages, false);
+        assert!(t.contains("A. Author"));
+    }
+
+    #[test]
+    fn malformed_pdf_is_an_error_not_a_panic() {
+        let mut w = Vec::new();
+        let r = PdfReader.read(
+            "x.pdf",
+            b"%PDF-1.4\n1 0 obj << /Type /Catalog >> endobj\ntrailer <<>>\n%%EOF",
+            &ReadOptions::default(),
+            &mut w,
+            &mut |_| {},
+        );
+        assert!(r.is_err());
+    }
+}
