@@ -14,6 +14,7 @@ pub mod corpus;
 pub mod cues;
 pub mod error;
 pub mod eval;
+pub mod gold;
 pub mod graph;
 pub mod model;
 pub mod normalize;
@@ -21,6 +22,7 @@ pub mod patterns;
 pub mod pipeline;
 pub mod report;
 pub mod sentences;
+pub mod spaneval;
 pub mod store;
 
 pub use model::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};
