@@ -24,5 +24,6 @@ pub mod report;
 pub mod sentences;
 pub mod spaneval;
 pub mod store;
+pub mod tagger;
 
 pub use model::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};

@@ -167,3 +167,30 @@ fn eval_errors_list_each_false_positive_and_negative() {
     assert_eq!(fp["sentence"], "Dust causes coughing.");
     assert_eq!(fp["pair"]["cause"], "Dust");
 }
+
+/// Source: UD English-EWT test split (CC BY-SA 4.0), ../shared/data/pos-treebank/SOURCE.txt and
+/// ud-english-ewt/SOURCE.txt; Penn Treebank tags (XPOS column). The model was trained on the
+/// EWT train split and GUM, never on this file.
+#[test]
+fn tagger_accuracy_on_ewt_test() {
+    let Some(test) = shared_data("pos-treebank/ud-english-ewt/en_ewt-ud-test.conllu") else {
+        return;
+    };
+    let gold = hearsay::tagger::read_conllu(&std::fs::read_to_string(test).unwrap());
+    let acc = hearsay::tagger::accuracy(hearsay::tagger::Tagger::load_builtin(), &gold);
+    let tokens: usize = gold.iter().map(Vec::len).sum();
+    eprintln!("tagger on EWT test: accuracy {acc:.4} over {tokens} tokens");
+    assert!(tokens > 20_000);
+    assert!(acc >= 0.935, "tagger accuracy {acc} fell under 0.935");
+}
+
+/// The shipped model stays small and says where it came from.
+#[test]
+fn tagger_model_is_small_and_has_its_notice() {
+    let size = std::fs::metadata(root().join("patterns/tagger.model"))
+        .unwrap()
+        .len();
+    assert!(size < 5_000_000, "patterns/tagger.model is {size} bytes");
+    let notice = std::fs::read_to_string(root().join("patterns/tagger.NOTICE")).unwrap();
+    assert!(notice.contains("CC BY-SA 4.0") && notice.contains("CC BY 4.0"));
+}
