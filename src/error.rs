@@ -66,3 +66,29 @@ impl StoreError {
         }
     }
 }
+
+/// Errors from reading labelled (gold) data for `eval`.
+#[derive(Debug, thiserror::Error)]
+pub enum GoldError {
+    #[error("{path}:{line}: {message}")]
+    Invalid {
+        path: String,
+        line: usize,
+        message: String,
+    },
+    #[error("cannot read {path}: {source}")]
+    Io {
+        path: String,
+        source: std::io::Error,
+    },
+}
+
+impl GoldError {
+    pub(crate) fn invalid(path: &str, line: usize, message: impl Into<String>) -> Self {
+        GoldError::Invalid {
+            path: path.to_string(),
+            line,
+            message: message.into(),
+        }
+    }
+}

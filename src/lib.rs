@@ -14,6 +14,7 @@ pub mod corpus;
 pub mod cues;
 pub mod error;
 pub mod eval;
+pub mod gold;
 pub mod graph;
 pub mod model;
 pub mod normalize;
@@ -22,6 +23,8 @@ pub mod pipeline;
 pub mod readers;
 pub mod report;
 pub mod sentences;
+pub mod spaneval;
 pub mod store;
+pub mod tagger;
 
 pub use model::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};

@@ -1,17 +1,23 @@
 //! `hearsay eval --gold FILE --format F`: precision, recall and F1 against labelled data.
 
-use super::{Format, Global, Table};
+use super::{escape, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::eval;
+use hearsay::{eval, gold, spaneval};
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 #[derive(ValueEnum, Debug, Clone, Copy)]
 pub enum GoldFormat {
     /// SemEval-2010 Task 8 (numbered sentences with <e1>/<e2> tags and a relation label).
     Semeval2010,
+    /// BECAUSE brat standoff: `.txt` + `.ann` pairs (FILE is one `.ann`/`.txt` or a folder).
+    Because,
+    /// Causal News Corpus CSV: subtask 2 (text_w_pairs with <ARG0>/<ARG1>) or subtask 1 (label).
+    Cnc,
+    /// hearsay's JSON Lines gold format (see docs/quality.md).
+    Jsonl,
 }
 
 #[derive(Args, Debug)]
@@ -21,10 +27,12 @@ contains the gold cause nominal and its effect span contains the gold effect nom
 right direction, and each span is at most 6 words longer than its nominal. Sentences labelled \
 Cause-Effect are positives; every other sentence is a negative for its marked pair. A claim for \
 the marked pair on a negative is a false positive; a claim in the wrong direction on a positive \
-is both a false positive and a false negative."
+is both a false positive and a false negative.
+
+Matching rule (because, cnc, jsonl): a claim matches a gold claim when the token-overlap F1 of the spans is at least 0.5 on both the cause and the effect (words only, compared by position); matching is one-to-one, best first. Unmatched claims are false positives, unmatched gold claims false negatives. Polarity, modality and kind accuracy are counted on matched claims whose gold gives them; BECAUSE sign accuracy counts Facilitate = increase/unsigned, Inhibit = decrease/prevent. CNC subtask 1 files are scored per sentence: a sentence is predicted causal when a causal claim is found in it."
 )]
 pub struct EvalArgs {
-    /// The labelled file.
+    /// The labelled file (for `because`, a folder of .txt/.ann pairs is also accepted).
     #[arg(long, value_name = "FILE")]
     pub gold: PathBuf,
     /// Its format.
@@ -37,18 +45,201 @@ pub struct EvalArgs {
 
 pub fn run(g: &Global, a: &EvalArgs) -> Result<ExitCode> {
     let ex = g.extractor()?;
-    let text = std::fs::read_to_string(&a.gold)
-        .with_context(|| format!("cannot read {}", a.gold.display()))?;
-    let items = match a.gold_format {
-        GoldFormat::Semeval2010 => {
-            eval::parse_semeval(&text).map_err(|e| anyhow::anyhow!("{}: {e}", a.gold.display()))?
-        }
+    let docs = match a.gold_format {
+        GoldFormat::Semeval2010 => return run_semeval(g, a, &ex),
+        GoldFormat::Because => read_because(&a.gold)?,
+        GoldFormat::Cnc => gold::parse_cnc(&a.gold.display().to_string(), &read(&a.gold)?)?,
+        GoldFormat::Jsonl => gold::parse_jsonl(&a.gold.display().to_string(), &read(&a.gold)?)?,
     };
-    let (scores, scored) = eval::score_pairs(&ex, &items);
+    let (report, errors) = spaneval::score_spans(&ex, &docs);
     let mut out = std::io::stdout().lock();
     if g.format() == Format::Json {
-        serde_json::to_writer(&mut out, &scores)?;
-        out.write_all(b"\n")?;
+        writeln!(out, "{}", serde_json::to_string(&report)?)?;
+        if a.errors {
+            for e in &errors {
+                writeln!(out, "{}", serde_json::to_string(e)?)?;
+            }
+        }
+        return Ok(ExitCode::SUCCESS);
+    }
+    print_span_report(&mut out, &report)?;
+    if a.errors {
+        for e in &errors {
+            writeln!(
+                out,
+                "\n{} {}: {}",
+                escape(&e.id),
+                e.outcome,
+                escape(&e.sentence)
+            )?;
+            let side = if e.outcome == "false_negative" {
+                "gold:     "
+            } else {
+                "predicted:"
+            };
+            writeln!(out, "  {side} {}", pair(&e.pair))?;
+            let other = if e.outcome == "false_negative" {
+                "predicted:"
+            } else {
+                "gold:     "
+            };
+            for p in &e.nearby {
+                writeln!(out, "  {other} {}", pair(p))?;
+            }
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn pair(p: &spaneval::PairText) -> String {
+    let mut s = format!("{} -> {}", escape(&p.cause), escape(&p.effect));
+    if let Some(c) = &p.cue {
+        s.push_str(&format!("  [{}]", escape(c)));
+    }
+    s
+}
+
+fn read(p: &Path) -> Result<String> {
+    std::fs::read_to_string(p).with_context(|| format!("cannot read {}", p.display()))
+}
+
+/// A BECAUSE folder (every `.ann` with its `.txt`) or one document given by either file.
+fn read_because(p: &Path) -> Result<Vec<gold::GoldDoc>> {
+    let mut anns: Vec<PathBuf> = if p.is_dir() {
+        std::fs::read_dir(p)
+            .with_context(|| format!("cannot read {}", p.display()))?
+            .filter_map(|e| e.ok().map(|e| e.path()))
+            .filter(|q| q.extension().is_some_and(|x| x == "ann"))
+            .collect()
+    } else {
+        vec![p.with_extension("ann")]
+    };
+    anns.sort();
+    if anns.is_empty() {
+        anyhow::bail!("{}: no .ann files", p.display());
+    }
+    let mut docs = Vec::new();
+    for ann in anns {
+        let txt = ann.with_extension("txt");
+        let id = ann
+            .file_stem()
+            .map(|s| s.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        docs.push(gold::parse_because(&id, &read(&txt)?, &read(&ann)?)?);
+    }
+    Ok(docs)
+}
+
+fn ratio3(x: f64) -> String {
+    format!("{x:.3}")
+}
+
+fn print_span_report(out: &mut impl Write, r: &spaneval::SpanReport) -> Result<()> {
+    if let Some(s) = &r.sentence_level {
+        let mut t = Table::new(&[
+            "sentences",
+            "causal",
+            "tp",
+            "fp",
+            "fn",
+            "precision",
+            "recall",
+            "f1",
+            "accuracy",
+        ]);
+        t.row(vec![
+            s.sentences.to_string(),
+            s.causal.to_string(),
+            s.prf.tp.to_string(),
+            s.prf.fp.to_string(),
+            s.prf.fn_.to_string(),
+            ratio3(s.prf.precision),
+            ratio3(s.prf.recall),
+            ratio3(s.prf.f1),
+            ratio3(s.accuracy),
+        ]);
+        t.print(out)?;
+        return Ok(());
+    }
+    let mut t = Table::new(&[
+        "documents",
+        "gold",
+        "predicted",
+        "tp",
+        "fp",
+        "fn",
+        "precision",
+        "recall",
+        "f1",
+    ]);
+    t.row(vec![
+        r.documents.to_string(),
+        r.gold_claims.to_string(),
+        r.predicted_claims.to_string(),
+        r.prf.tp.to_string(),
+        r.prf.fp.to_string(),
+        r.prf.fn_.to_string(),
+        ratio3(r.prf.precision),
+        ratio3(r.prf.recall),
+        ratio3(r.prf.f1),
+    ]);
+    t.print(out)?;
+    writeln!(out)?;
+    let mut acc = Table::new(&["on matched claims", "correct", "labelled", "accuracy"]);
+    for (name, a) in [
+        ("kind", &r.kind_accuracy),
+        ("polarity", &r.polarity_accuracy),
+        ("modality", &r.modality_accuracy),
+        ("sign (BECAUSE)", &r.sign_accuracy),
+    ] {
+        if a.labelled > 0 {
+            acc.row(vec![
+                name.to_string(),
+                a.correct.to_string(),
+                a.labelled.to_string(),
+                ratio3(a.accuracy),
+            ]);
+        }
+    }
+    acc.print(out)?;
+    for (name, m) in [
+        ("cue", &r.by_cue),
+        ("kind", &r.by_kind),
+        ("polarity", &r.by_polarity),
+        ("modality", &r.by_modality),
+    ] {
+        writeln!(out)?;
+        // A missed claim has no cue, so the cue table has no false negatives or recall.
+        let by_cue = name == "cue";
+        let heads: &[&str] = if by_cue {
+            &[name, "tp", "fp", "precision"]
+        } else {
+            &[name, "tp", "fp", "fn (by gold label)", "precision"]
+        };
+        let mut t = Table::new(heads);
+        let mut rows: Vec<_> = m.iter().collect();
+        rows.sort_by_key(|(_, p)| std::cmp::Reverse(p.tp + p.fp + p.fn_));
+        for (k, p) in rows {
+            let mut row = vec![escape(k), p.tp.to_string(), p.fp.to_string()];
+            if !by_cue {
+                row.push(p.fn_.to_string());
+            }
+            row.push(ratio3(p.precision));
+            t.row(row);
+        }
+        t.print(out)?;
+    }
+    Ok(())
+}
+
+fn run_semeval(g: &Global, a: &EvalArgs, ex: &hearsay::claims::Extractor) -> Result<ExitCode> {
+    let text = read(&a.gold)?;
+    let items =
+        eval::parse_semeval(&text).map_err(|e| anyhow::anyhow!("{}: {e}", a.gold.display()))?;
+    let (scores, scored) = eval::score_pairs(ex, &items);
+    let mut out = std::io::stdout().lock();
+    if g.format() == Format::Json {
+        writeln!(out, "{}", serde_json::to_string(&scores)?)?;
         if a.errors {
             for s in scored.iter().filter(|s| {
                 !matches!(
@@ -56,8 +247,7 @@ pub fn run(g: &Global, a: &EvalArgs) -> Result<ExitCode> {
                     eval::Outcome::TruePositive | eval::Outcome::TrueNegative
                 )
             }) {
-                serde_json::to_writer(&mut out, s)?;
-                out.write_all(b"\n")?;
+                writeln!(out, "{}", serde_json::to_string(s)?)?;
             }
         }
         return Ok(ExitCode::SUCCESS);

@@ -9,6 +9,7 @@ mod pair;
 mod patterns;
 mod scan;
 mod top;
+mod train_tagger;
 
 use anyhow::{Context, Result};
 use clap::{Args, Parser, Subcommand, ValueEnum};
@@ -91,6 +92,8 @@ pub enum Command {
     Explain(explain::ExplainArgs),
     /// Score extraction against labelled data: precision, recall and F1.
     Eval(eval::EvalArgs),
+    /// Train the part-of-speech tagger from CoNLL-U treebanks (writes patterns/tagger.model).
+    TrainTagger(train_tagger::TrainTaggerArgs),
     /// Check or list cue patterns.
     Patterns(patterns::PatternsArgs),
 }
@@ -146,6 +149,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Claims(a) => claims::run(g, a),
         Command::Explain(a) => explain::run(g, a),
         Command::Eval(a) => eval::run(g, a),
+        Command::TrainTagger(a) => train_tagger::run(g, a),
         Command::Patterns(a) => patterns::run(g, a),
     }
 }

@@ -3,5 +3,6 @@
 
 mod common;
 mod external;
+mod quality;
 mod store;
 mod subcommands;

@@ -1,0 +1,449 @@
+//! Scoring extraction against span-annotated gold data ([`crate::gold`]).
+//!
+//! The rule: a predicted claim *matches* a gold claim of the same document when the token-overlap
+//! F1 of its cause span with the gold cause is at least [`MIN_OVERLAP_F1`], and the same holds
+//! for the effects. Tokens are the words of [`crate::claims::tokenize`] (punctuation left out),
+//! compared by position. Each gold claim is matched to at most one prediction and each
+//! prediction to at most one gold claim; pairs are taken best first (by the smaller of the two
+//! F1 scores), so a greedy assignment is stable and cheap. Unmatched predictions are false
+//! positives, unmatched gold claims false negatives.
+//!
+//! Sentence-level data (gold with `causal` labels and no spans) is scored per text instead: a
+//! text is predicted causal when at least one causal claim is found in it.
+
+use crate::claims::{tokenize, Extractor};
+use crate::corpus::Document;
+use crate::eval::GoldSpan;
+use crate::gold::{GoldClaim, GoldDoc};
+use crate::model::{Claim, Kind};
+use crate::pipeline;
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// The least token-overlap F1 on each side for a match.
+pub const MIN_OVERLAP_F1: f64 = 0.5;
+
+/// True positives, false positives and false negatives, with the ratios.
+#[derive(Debug, Clone, Default, Serialize, PartialEq)]
+pub struct Prf {
+    pub tp: usize,
+    pub fp: usize,
+    #[serde(rename = "fn")]
+    pub fn_: usize,
+    pub precision: f64,
+    pub recall: f64,
+    pub f1: f64,
+}
+
+impl Prf {
+    fn finish(&mut self) {
+        self.precision = ratio(self.tp, self.tp + self.fp);
+        self.recall = ratio(self.tp, self.tp + self.fn_);
+        self.f1 = if self.precision + self.recall > 0.0 {
+            2.0 * self.precision * self.recall / (self.precision + self.recall)
+        } else {
+            0.0
+        };
+    }
+}
+
+/// Correct out of labelled, on matched claims.
+#[derive(Debug, Clone, Default, Serialize, PartialEq)]
+pub struct Accuracy {
+    pub correct: usize,
+    pub labelled: usize,
+    pub accuracy: f64,
+}
+
+impl Accuracy {
+    fn add(&mut self, ok: bool) {
+        self.labelled += 1;
+        self.correct += usize::from(ok);
+    }
+    fn finish(&mut self) {
+        self.accuracy = ratio(self.correct, self.labelled);
+    }
+}
+
+/// Sentence-level scores (causal or not), for data labelled per sentence.
+#[derive(Debug, Clone, Default, Serialize, PartialEq)]
+pub struct SentenceScores {
+    pub sentences: usize,
+    pub causal: usize,
+    #[serde(flatten)]
+    pub prf: Prf,
+    pub accuracy: f64,
+}
+
+/// Everything `eval` reports for span-annotated data.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct SpanReport {
+    pub documents: usize,
+    pub gold_claims: usize,
+    pub predicted_claims: usize,
+    #[serde(flatten)]
+    pub prf: Prf,
+    /// The rule used, in words.
+    pub rule: String,
+    pub by_cue: BTreeMap<String, Prf>,
+    pub by_kind: BTreeMap<String, Prf>,
+    pub by_polarity: BTreeMap<String, Prf>,
+    pub by_modality: BTreeMap<String, Prf>,
+    /// Accuracy on matched claims whose gold gives the value.
+    pub kind_accuracy: Accuracy,
+    pub polarity_accuracy: Accuracy,
+    pub modality_accuracy: Accuracy,
+    /// BECAUSE sign (Facilitate = increase/unsigned, Inhibit = decrease/prevent).
+    pub sign_accuracy: Accuracy,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sentence_level: Option<SentenceScores>,
+}
+
+/// A cause–effect pair as text, for error listings.
+#[derive(Debug, Clone, Serialize)]
+pub struct PairText {
+    pub cause: String,
+    pub effect: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cue: Option<String>,
+}
+
+/// One false positive or false negative.
+#[derive(Debug, Clone, Serialize)]
+pub struct SpanError {
+    pub id: String,
+    /// `false_positive` or `false_negative`.
+    pub outcome: &'static str,
+    pub sentence: String,
+    /// The gold pair (false negative) or the predicted one (false positive).
+    pub pair: PairText,
+    /// For a false negative, what was predicted in the same sentence; for a false positive, the
+    /// gold pairs of that sentence.
+    pub nearby: Vec<PairText>,
+}
+
+fn ratio(a: usize, b: usize) -> f64 {
+    if b == 0 {
+        0.0
+    } else {
+        a as f64 / b as f64
+    }
+}
+
+/// Word-token ranges of a text, by start offset.
+struct Words(Vec<(usize, usize)>);
+
+impl Words {
+    fn new(text: &str) -> Self {
+        Words(
+            tokenize(text)
+                .into_iter()
+                .filter(|t| t.word)
+                .map(|t| (t.start, t.end))
+                .collect(),
+        )
+    }
+    /// Indices of the words overlapping a byte range.
+    fn within(&self, s: usize, e: usize) -> std::ops::Range<usize> {
+        let a = self.0.partition_point(|&(_, we)| we <= s);
+        let b = self.0.partition_point(|&(ws, _)| ws < e);
+        a..b.max(a)
+    }
+}
+
+/// Token-overlap F1 of two ranges of word indices.
+pub fn overlap_f1(a: std::ops::Range<usize>, b: std::ops::Range<usize>) -> f64 {
+    let inter = a.end.min(b.end).saturating_sub(a.start.max(b.start));
+    let total = a.len() + b.len();
+    if total == 0 {
+        0.0
+    } else {
+        2.0 * inter as f64 / total as f64
+    }
+}
+
+fn doc_claims(ex: &Extractor, d: &GoldDoc) -> Vec<Claim> {
+    let doc = Document {
+        path: d.id.clone(),
+        record: None,
+        text: d.text.clone(),
+        page_starts: Vec::new(),
+        lines_are_paragraphs: d.lines_are_paragraphs,
+    };
+    pipeline::document_claims(ex, &doc)
+}
+
+/// The sentence of a document around a byte offset.
+fn sentence_at(text: &str, sentences: &[crate::sentences::SentenceSpan], at: usize) -> String {
+    sentences
+        .iter()
+        .find(|s| s.start <= at && at < s.end)
+        .map(|s| crate::claims::collapse(&text[s.start..s.end]))
+        .unwrap_or_else(|| crate::claims::collapse(text))
+}
+
+fn gold_text(text: &str, g: &GoldClaim) -> PairText {
+    let t = |s: GoldSpan| text.get(s.start..s.end).unwrap_or("").to_string();
+    PairText {
+        cause: t(g.cause),
+        effect: t(g.effect),
+        cue: g.label.clone(),
+    }
+}
+
+fn pred_text(c: &Claim) -> PairText {
+    PairText {
+        cause: c.cause.text.clone(),
+        effect: c.effect.text.clone(),
+        cue: Some(c.cue.clone()),
+    }
+}
+
+/// Score extraction on span-annotated documents; also return every error.
+pub fn score_spans(ex: &Extractor, docs: &[GoldDoc]) -> (SpanReport, Vec<SpanError>) {
+    let mut r = SpanReport {
+        documents: docs.len(),
+        rule: format!(
+            "token-overlap F1 >= {MIN_OVERLAP_F1} on both cause and effect, one-to-one, best first"
+        ),
+        ..SpanReport::default()
+    };
+    let mut errors = Vec::new();
+    let mut sent = SentenceScores::default();
+    let mut sentence_labels = false;
+    for d in docs {
+        let claims = doc_claims(ex, d);
+        if let Some(gold_causal) = d.causal {
+            sentence_labels = true;
+            sent.sentences += 1;
+            sent.causal += usize::from(gold_causal);
+            let predicted = claims.iter().any(|c| c.kind == Kind::Causal);
+            match (predicted, gold_causal) {
+                (true, true) => sent.prf.tp += 1,
+                (true, false) => sent.prf.fp += 1,
+                (false, true) => sent.prf.fn_ += 1,
+                (false, false) => {}
+            }
+            if predicted != gold_causal {
+                let pairs: Vec<PairText> = claims.iter().map(pred_text).collect();
+                errors.push(SpanError {
+                    id: d.id.clone(),
+                    outcome: if predicted {
+                        "false_positive"
+                    } else {
+                        "false_negative"
+                    },
+                    sentence: crate::claims::collapse(&d.text),
+                    pair: pairs.first().cloned().unwrap_or(PairText {
+                        cause: String::new(),
+                        effect: String::new(),
+                        cue: None,
+                    }),
+                    nearby: pairs.into_iter().skip(1).collect(),
+                });
+            }
+            continue;
+        }
+        r.gold_claims += d.claims.len();
+        r.predicted_claims += claims.len();
+        let words = Words::new(&d.text);
+        // Claims carry document offsets, and a gold document is the whole text, so they agree.
+        let mut candidates: Vec<(f64, usize, usize)> = Vec::new();
+        for (gi, g) in d.claims.iter().enumerate() {
+            let gc = words.within(g.cause.start, g.cause.end);
+            let ge = words.within(g.effect.start, g.effect.end);
+            for (pi, c) in claims.iter().enumerate() {
+                let fc = overlap_f1(gc.clone(), words.within(c.cause.start, c.cause.end));
+                let fe = overlap_f1(ge.clone(), words.within(c.effect.start, c.effect.end));
+                let m = fc.min(fe);
+                if m >= MIN_OVERLAP_F1 {
+                    candidates.push((m, gi, pi));
+                }
+            }
+        }
+        candidates.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
+        let mut gold_match = vec![None; d.claims.len()];
+        let mut pred_used = vec![false; claims.len()];
+        for (_, gi, pi) in candidates {
+            if gold_match[gi].is_none() && !pred_used[pi] {
+                gold_match[gi] = Some(pi);
+                pred_used[pi] = true;
+            }
+        }
+        let spans = if errors_wanted_for(d) {
+            crate::sentences::split(&d.text)
+        } else {
+            Vec::new()
+        };
+        for (gi, g) in d.claims.iter().enumerate() {
+            match gold_match[gi] {
+                Some(pi) => {
+                    let c = &claims[pi];
+                    r.prf.tp += 1;
+                    bump(&mut r.by_cue, &c.cue, |p| p.tp += 1);
+                    bump(&mut r.by_kind, c.kind.as_str(), |p| p.tp += 1);
+                    bump(&mut r.by_polarity, c.polarity.as_str(), |p| p.tp += 1);
+                    bump(&mut r.by_modality, c.modality.as_str(), |p| p.tp += 1);
+                    if let Some(k) = g.kind {
+                        r.kind_accuracy.add(k == c.kind);
+                    }
+                    if let Some(p) = g.polarity {
+                        r.polarity_accuracy.add(p == c.polarity);
+                    }
+                    if let Some(m) = g.modality {
+                        r.modality_accuracy.add(m == c.modality);
+                    }
+                    if let Some(s) = g.sign {
+                        r.sign_accuracy.add(s.agrees(c.polarity));
+                    }
+                }
+                None => {
+                    r.prf.fn_ += 1;
+                    let kind = g.kind.map_or("unlabelled", Kind::as_str);
+                    bump(&mut r.by_kind, kind, |p| p.fn_ += 1);
+                    let pol = g.polarity.map_or("unlabelled", |p| p.as_str());
+                    bump(&mut r.by_polarity, pol, |p| p.fn_ += 1);
+                    let m = g.modality.map_or("unlabelled", |m| m.as_str());
+                    bump(&mut r.by_modality, m, |p| p.fn_ += 1);
+                    let at = g.cause.start.min(g.effect.start);
+                    let s = sentence_at(&d.text, &spans, at);
+                    let nearby = claims
+                        .iter()
+                        .filter(|c| c.source.start <= at && at < c.source.end)
+                        .map(pred_text)
+                        .collect();
+                    errors.push(SpanError {
+                        id: d.id.clone(),
+                        outcome: "false_negative",
+                        sentence: s,
+                        pair: gold_text(&d.text, g),
+                        nearby,
+                    });
+                }
+            }
+        }
+        for (pi, c) in claims.iter().enumerate() {
+            if pred_used[pi] {
+                continue;
+            }
+            r.prf.fp += 1;
+            bump(&mut r.by_cue, &c.cue, |p| p.fp += 1);
+            bump(&mut r.by_kind, c.kind.as_str(), |p| p.fp += 1);
+            bump(&mut r.by_polarity, c.polarity.as_str(), |p| p.fp += 1);
+            bump(&mut r.by_modality, c.modality.as_str(), |p| p.fp += 1);
+            let nearby = d
+                .claims
+                .iter()
+                .filter(|g| {
+                    let at = g.cause.start.min(g.effect.start);
+                    c.source.start <= at && at < c.source.end
+                })
+                .map(|g| gold_text(&d.text, g))
+                .collect();
+            errors.push(SpanError {
+                id: d.id.clone(),
+                outcome: "false_positive",
+                sentence: c.sentence.clone(),
+                pair: pred_text(c),
+                nearby,
+            });
+        }
+    }
+    r.prf.finish();
+    for m in [
+        &mut r.by_cue,
+        &mut r.by_kind,
+        &mut r.by_polarity,
+        &mut r.by_modality,
+    ] {
+        m.values_mut().for_each(Prf::finish);
+    }
+    for a in [
+        &mut r.kind_accuracy,
+        &mut r.polarity_accuracy,
+        &mut r.modality_accuracy,
+        &mut r.sign_accuracy,
+    ] {
+        a.finish();
+    }
+    if sentence_labels {
+        sent.prf.finish();
+        sent.accuracy = ratio(sent.sentences - sent.prf.fp - sent.prf.fn_, sent.sentences);
+        r.sentence_level = Some(sent);
+    }
+    (r, errors)
+}
+
+/// Documents longer than one sentence need the splitter to name an error's sentence.
+fn errors_wanted_for(d: &GoldDoc) -> bool {
+    d.text.len() > 400
+}
+
+fn bump(m: &mut BTreeMap<String, Prf>, key: &str, f: impl FnOnce(&mut Prf)) {
+    f(m.entry(key.to_string()).or_default());
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::gold::{parse_because, parse_cnc, parse_jsonl, Sign};
+    use crate::patterns::PatternSet;
+
+    fn ex() -> Extractor {
+        Extractor::new(&PatternSet::builtin().unwrap()).unwrap()
+    }
+
+    #[test]
+    fn overlap_f1_counts_shared_words() {
+        assert_eq!(overlap_f1(0..2, 0..2), 1.0);
+        assert_eq!(overlap_f1(0..4, 2..4), 2.0 * 2.0 / 6.0);
+        assert_eq!(overlap_f1(0..2, 3..5), 0.0);
+    }
+
+    #[test]
+    fn jsonl_gold_scores_a_match_and_a_false_positive() {
+        let gold = "# invented\n{\"sentence\": \"Heavy rain causes flooding.\", \"claims\": [{\"cause\": \"Heavy rain\", \"effect\": \"flooding\", \"polarity\": \"increase\", \"modality\": \"asserted\"}]}\n{\"sentence\": \"Smoking causes cancer.\", \"claims\": []}\n";
+        let docs = parse_jsonl("g.jsonl", gold).unwrap();
+        assert_eq!(docs.len(), 2);
+        let (r, errors) = score_spans(&ex(), &docs);
+        assert_eq!((r.prf.tp, r.prf.fp, r.prf.fn_), (1, 1, 0), "{r:#?}");
+        assert_eq!(r.modality_accuracy.labelled, 1);
+        assert_eq!(errors.len(), 1);
+        assert_eq!(errors[0].outcome, "false_positive");
+    }
+
+    #[test]
+    fn jsonl_rejects_a_span_not_in_the_sentence() {
+        let e = parse_jsonl(
+            "g",
+            "{\"sentence\": \"a b\", \"claims\": [{\"cause\": \"x\", \"effect\": \"b\"}]}",
+        )
+        .unwrap_err();
+        assert!(e.to_string().contains("g:1"), "{e}");
+    }
+
+    #[test]
+    fn because_standoff_gives_spans_and_sign() {
+        let text = "Tariffs reduce trade. Rain causes floods.";
+        let ann = "T1\tArgument 0 7\tTariffs\nT2\tArgument 15 20\ttrade\nT3\tConsequence 8 14\treduce\nE1\tConsequence:T3 Cause:T1 Effect:T2\nA1\tDegree E1 Inhibit\nT4\tArgument 22 26\tRain\nT5\tArgument 34 40\tfloods\nT6\tConsequence 27 33\tcauses\nE2\tConsequence:T6 Cause:T4 Effect:T5\n";
+        let d = parse_because("x", text, ann).unwrap();
+        assert_eq!(d.claims.len(), 2);
+        assert_eq!(d.claims[0].sign, Some(Sign::Inhibit));
+        assert_eq!(d.claims[1].sign, Some(Sign::Facilitate));
+        assert_eq!(
+            &text[d.claims[1].effect.start..d.claims[1].effect.end],
+            "floods"
+        );
+    }
+
+    #[test]
+    fn cnc_rows_of_one_sentence_are_grouped() {
+        let csv = "corpus,doc_id,sent_id,eg_id,index,text,text_w_pairs,seq_label,pair_label,context,num_sents\ncnc,d1,1,0,i0,\"A B\",\"<ARG0>Rain</ARG0> <SIG0>caused</SIG0> <ARG1>floods</ARG1> .\",1,1,,1\ncnc,d1,1,1,i1,\"A B\",\"<ARG1>Rain</ARG1> caused <ARG0>x</ARG0> .\",1,1,,1\n";
+        let docs = parse_cnc("c.csv", csv).unwrap();
+        assert_eq!(docs.len(), 1);
+        assert_eq!(docs[0].text, "Rain caused floods .");
+        assert_eq!(docs[0].claims.len(), 2);
+        let c = &docs[0].claims[0];
+        assert_eq!(&docs[0].text[c.cause.start..c.cause.end], "Rain");
+    }
+}
