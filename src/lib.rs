@@ -19,6 +19,7 @@ pub mod model;
 pub mod normalize;
 pub mod patterns;
 pub mod pipeline;
+pub mod questions;
 pub mod report;
 pub mod sentences;
 pub mod store;

@@ -7,6 +7,7 @@ mod explain;
 mod extract;
 mod pair;
 mod patterns;
+mod questions;
 mod scan;
 mod top;
 
@@ -91,6 +92,8 @@ pub enum Command {
     Eval(eval::EvalArgs),
     /// Check or list cue patterns.
     Patterns(patterns::PatternsArgs),
+    /// Write the question set for a variable list: every ordered pair in every wording.
+    Questions(questions::QuestionsArgs),
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -145,6 +148,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Explain(a) => explain::run(g, a),
         Command::Eval(a) => eval::run(g, a),
         Command::Patterns(a) => patterns::run(g, a),
+        Command::Questions(a) => questions::run(g, a),
     }
 }
 
