@@ -405,7 +405,7 @@ mod tests {
         let e =
             pairs_from_vars(&n, Path::new("v"), "boat traffic\nthe boat traffic\n").unwrap_err();
         assert!(e.to_string().starts_with("v:2:"), "{e}");
-        let e = pairs_from_list(&n, Path::new("p"), "a\tb\nno tab here\n").unwrap_err();
+        let e = pairs_from_list(&n, Path::new("p"), "boat\tfish\nno tab here\n").unwrap_err();
         assert!(e.to_string().starts_with("p:2:"), "{e}");
         let ok = pairs_from_list(&n, Path::new("p"), "boat traffic\talgae blooms\n").unwrap();
         assert_eq!(ok.len(), 1);
