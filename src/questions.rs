@@ -359,7 +359,7 @@ mod tests {
             ),
             ("[[wording]]\nid = \"a\"\nfamily = \"sign\"\ntext = \"{x} {y}\"\n", 1, "needs sign"),
             ("[[wording]]\nid = \"a\"\nfamily = \"directed\"\ntext = \"{x} {y} {z}\"\n", 1, "only the placeholders"),
-            ("[[wording]]\nid = \"a\"\nfamliy = \"directed\"\n", 1, "famliy"),
+            ("[[wording]]\nid = \"a\"\nfamliy = \"directed\"\n", 3, "famliy"),
         ];
         for (text, line, needle) in cases {
             let e = parse_wordings(Path::new("q.toml"), text)
