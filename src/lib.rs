@@ -22,6 +22,7 @@ pub mod pipeline;
 pub mod questions;
 pub mod report;
 pub mod sentences;
+pub mod stats;
 pub mod store;
 
 pub use model::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};
