@@ -92,3 +92,30 @@ impl GoldError {
         }
     }
 }
+
+/// Errors from user-supplied data files other than patterns: variable and pair lists, answer
+/// files. Every message names the file and the line (or record) at fault.
+#[derive(Debug, thiserror::Error)]
+pub enum InputError {
+    #[error("{path}:{line}: {message}")]
+    Invalid {
+        path: PathBuf,
+        line: usize,
+        message: String,
+    },
+    #[error("cannot read {path}: {source}")]
+    Io {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+}
+
+impl InputError {
+    pub(crate) fn invalid(path: &std::path::Path, line: usize, message: impl Into<String>) -> Self {
+        InputError::Invalid {
+            path: path.to_path_buf(),
+            line,
+            message: message.into(),
+        }
+    }
+}

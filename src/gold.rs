@@ -174,10 +174,12 @@ pub fn parse_because(id: &str, text: &str, ann: &str) -> Result<GoldDoc, GoldErr
 
 /// The text reader's rule (see `corpus`): long lines, seldom blank, hold one paragraph each.
 fn lines_are_paragraphs(text: &str) -> bool {
-    use crate::corpus::{Reader, TextReader};
+    use crate::corpus::Reader;
+    use crate::readers::text::TextReader;
     let mut found = false;
     let mut warnings = Vec::new();
-    let read = TextReader.read("gold", text.as_bytes(), &mut warnings, &mut |d| {
+    let opts = crate::corpus::ReadOptions::default();
+    let read = TextReader.read("gold", text.as_bytes(), &opts, &mut warnings, &mut |d: crate::corpus::Document| {
         found = d.lines_are_paragraphs;
     });
     read.is_ok() && found

@@ -20,10 +20,12 @@ pub mod model;
 pub mod normalize;
 pub mod patterns;
 pub mod pipeline;
+pub mod questions;
 pub mod readers;
 pub mod report;
 pub mod sentences;
 pub mod spaneval;
+pub mod stats;
 pub mod store;
 pub mod tagger;
 

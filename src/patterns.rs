@@ -228,7 +228,7 @@ fn invalid(path: &Path, line: usize, message: impl Into<String>) -> PatternError
     }
 }
 
-fn line_of(text: &str, offset: usize) -> usize {
+pub(crate) fn line_of(text: &str, offset: usize) -> usize {
     text[..offset.min(text.len())]
         .bytes()
         .filter(|&b| b == b'\n')

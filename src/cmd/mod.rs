@@ -7,6 +7,7 @@ mod explain;
 mod extract;
 mod pair;
 mod patterns;
+mod questions;
 mod scan;
 mod top;
 mod train_tagger;
@@ -96,6 +97,8 @@ pub enum Command {
     TrainTagger(train_tagger::TrainTaggerArgs),
     /// Check or list cue patterns.
     Patterns(patterns::PatternsArgs),
+    /// Write the question set for a variable list: every ordered pair in every wording.
+    Questions(questions::QuestionsArgs),
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -151,6 +154,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Eval(a) => eval::run(g, a),
         Command::TrainTagger(a) => train_tagger::run(g, a),
         Command::Patterns(a) => patterns::run(g, a),
+        Command::Questions(a) => questions::run(g, a),
     }
 }
 

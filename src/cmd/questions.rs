@@ -1,0 +1,83 @@
+//! `hearsay questions`: the question set for a variable or pair list.
+
+use super::{write_rows, Global};
+use anyhow::{Context, Result};
+use clap::Args;
+use hearsay::normalize::Normalizer;
+use hearsay::questions::{self as q, Named, Question};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "Every ordered pair (x, y) is crossed with every wording of patterns/questions.toml \
+(directed \"Does x cause y?\", reversed \"Is y an effect of x?\", symmetric \"Is there a causal \
+relationship between x and y?\"; sign wordings with --sign). n variables give n·(n−1) pairs.\n\n\
+The id is stable: a hash of the family, the wording id and both variable keys. Add an `answer` \
+column (yes, no, unsure, or a probability of yes) and a `model` column, then run \
+`hearsay compare FILE`."
+)]
+#[command(group(clap::ArgGroup::new("input").required(true).args(["vars", "pairs"])))]
+pub struct QuestionsArgs {
+    /// A variable list: one name per line; every ordered pair is asked.
+    #[arg(long, value_name = "FILE")]
+    pub vars: Option<PathBuf>,
+    /// A pair list: `x<TAB>y` per line; only these ordered pairs are asked.
+    #[arg(long, value_name = "FILE")]
+    pub pairs: Option<PathBuf>,
+    /// Use the wordings in FILE (same format as patterns/questions.toml) instead of the built-in ones.
+    #[arg(long, value_name = "FILE")]
+    pub questions: Option<PathBuf>,
+    /// Also write the sign wordings ("Does x increase y?").
+    #[arg(long)]
+    pub sign: bool,
+}
+
+/// Read the pairs of `--vars` or `--pairs`.
+pub fn read_pairs(
+    n: &Normalizer,
+    vars: Option<&Path>,
+    pairs: Option<&Path>,
+) -> Result<Vec<(Named, Named)>> {
+    let (path, from_vars) = match (vars, pairs) {
+        (Some(v), _) => (v, true),
+        (None, Some(p)) => (p, false),
+        (None, None) => anyhow::bail!("give --vars FILE or --pairs FILE"),
+    };
+    let text =
+        std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
+    let pairs = if from_vars {
+        q::pairs_from_vars(n, path, &text)?
+    } else {
+        q::pairs_from_list(n, path, &text)?
+    };
+    Ok(pairs)
+}
+
+pub const HEADERS: &[&str] = &[
+    "id", "x", "y", "x_key", "y_key", "family", "template", "text",
+];
+
+pub fn run(g: &Global, a: &QuestionsArgs) -> Result<ExitCode> {
+    let set = g.pattern_set()?;
+    let n = Normalizer::new(&set.lexicon);
+    let pairs = read_pairs(&n, a.vars.as_deref(), a.pairs.as_deref())?;
+    let wordings = q::load_wordings(a.questions.as_deref()).context("cannot load the wordings")?;
+    let qs = q::questions(&pairs, &wordings, a.sign);
+    let mut out = std::io::stdout().lock();
+    write_rows(&mut out, g.format(), &qs, csv_row, HEADERS)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn csv_row(q: &Question) -> Vec<String> {
+    vec![
+        q.id.clone(),
+        q.x.clone(),
+        q.y.clone(),
+        q.x_key.clone(),
+        q.y_key.clone(),
+        q.family.to_string(),
+        q.template.clone(),
+        q.text.clone(),
+    ]
+}
