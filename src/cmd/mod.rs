@@ -5,6 +5,7 @@ mod claims;
 mod eval;
 mod explain;
 mod extract;
+mod graph;
 mod pair;
 mod patterns;
 mod scan;
@@ -89,6 +90,8 @@ pub enum Command {
     Explain(explain::ExplainArgs),
     /// Score extraction against labelled data: precision, recall and F1.
     Eval(eval::EvalArgs),
+    /// Export the claim graph (GraphML, node-link JSON) for network tools.
+    Graph(graph::GraphArgs),
     /// Check or list cue patterns.
     Patterns(patterns::PatternsArgs),
 }
@@ -145,6 +148,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Explain(a) => explain::run(g, a),
         Command::Eval(a) => eval::run(g, a),
         Command::Patterns(a) => patterns::run(g, a),
+        Command::Graph(a) => graph::run(g, a),
     }
 }
 

@@ -3,5 +3,6 @@
 
 mod common;
 mod external;
+mod graph;
 mod store;
 mod subcommands;
