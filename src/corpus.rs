@@ -197,13 +197,20 @@ pub fn format_by_extension(path: &Path) -> Option<InputFormat> {
 pub fn sniff(head: &[u8], path: &Path) -> InputFormat {
     let trimmed = {
         let h = head.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(head);
-        let start = h.iter().position(|b| !b.is_ascii_whitespace()).unwrap_or(h.len());
+        let start = h
+            .iter()
+            .position(|b| !b.is_ascii_whitespace())
+            .unwrap_or(h.len());
         &h[start..]
     };
     if trimmed.starts_with(b"%PDF-") {
         return InputFormat::Pdf;
     }
-    let lower: Vec<u8> = trimmed.iter().take(512).map(u8::to_ascii_lowercase).collect();
+    let lower: Vec<u8> = trimmed
+        .iter()
+        .take(512)
+        .map(u8::to_ascii_lowercase)
+        .collect();
     if lower.starts_with(b"<!doctype html") || lower.starts_with(b"<html") {
         return InputFormat::Html;
     }
@@ -297,7 +304,10 @@ pub fn read_from(
     let mut inner: Box<dyn BufRead + '_> = if gz {
         Box::new(std::io::BufReader::with_capacity(
             1 << 16,
-            capped(flate2::bufread::MultiGzDecoder::new(src), opts.max_decompressed),
+            capped(
+                flate2::bufread::MultiGzDecoder::new(src),
+                opts.max_decompressed,
+            ),
         ))
     } else if zst {
         let d = zstd::stream::read::Decoder::with_buffer(src).map_err(|e| read_error(e, true))?;

@@ -179,9 +179,15 @@ fn lines_are_paragraphs(text: &str) -> bool {
     let mut found = false;
     let mut warnings = Vec::new();
     let opts = crate::corpus::ReadOptions::default();
-    let read = TextReader.read("gold", text.as_bytes(), &opts, &mut warnings, &mut |d: crate::corpus::Document| {
-        found = d.lines_are_paragraphs;
-    });
+    let read = TextReader.read(
+        "gold",
+        text.as_bytes(),
+        &opts,
+        &mut warnings,
+        &mut |d: crate::corpus::Document| {
+            found = d.lines_are_paragraphs;
+        },
+    );
     read.is_ok() && found
 }
 

@@ -14,6 +14,7 @@ pub mod corpus;
 pub mod cues;
 pub mod error;
 pub mod eval;
+pub mod export;
 pub mod gold;
 pub mod graph;
 pub mod model;

@@ -42,8 +42,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     let (mut claims, mut failed, mut bytes) = (0usize, 0usize, 0usize);
     let chunk = rayon::current_num_threads() * 4;
     for group in inputs.chunks(chunk.max(1)) {
-        let results: Vec<Extracted> =
-            group.par_iter().map(|i| one(&ex, &opts, i)).collect();
+        let results: Vec<Extracted> = group.par_iter().map(|i| one(&ex, &opts, i)).collect();
         for (input, (r, warnings)) in group.iter().zip(results) {
             for w in warnings {
                 g.warn(&w);

@@ -5,6 +5,7 @@ mod claims;
 mod eval;
 mod explain;
 mod extract;
+mod graph;
 mod pair;
 mod patterns;
 mod questions;
@@ -95,6 +96,8 @@ pub enum Command {
     Eval(eval::EvalArgs),
     /// Train the part-of-speech tagger from CoNLL-U treebanks (writes patterns/tagger.model).
     TrainTagger(train_tagger::TrainTaggerArgs),
+    /// Export the claim graph (GraphML, node-link JSON) for network tools.
+    Graph(graph::GraphArgs),
     /// Check or list cue patterns.
     Patterns(patterns::PatternsArgs),
     /// Write the question set for a variable list: every ordered pair in every wording.
@@ -155,6 +158,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::TrainTagger(a) => train_tagger::run(g, a),
         Command::Patterns(a) => patterns::run(g, a),
         Command::Questions(a) => questions::run(g, a),
+        Command::Graph(a) => graph::run(g, a),
     }
 }
 

@@ -148,11 +148,7 @@ fn process(
     }
     result.entry = Some(FileEntry {
         path: input.label.clone(),
-        size: if input.is_stdin() {
-            text_bytes
-        } else {
-            size
-        },
+        size: if input.is_stdin() { text_bytes } else { size },
         mtime_ns: mtime,
         hash,
         documents,

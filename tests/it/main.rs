@@ -3,6 +3,7 @@
 
 mod common;
 mod external;
+mod graph;
 mod quality;
 mod store;
 mod subcommands;

@@ -199,7 +199,10 @@ fn binary_and_bad_utf8_files_are_warnings_not_failures_of_the_run() {
     assert!(out.status.success());
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("bin.txt: binary file"), "{err}");
-    assert!(err.contains("latin.txt: not UTF-8, decoded as Latin-1"), "{err}");
+    assert!(
+        err.contains("latin.txt: not UTF-8, decoded as Latin-1"),
+        "{err}"
+    );
     let s: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(
         (s["files_failed"].as_u64(), s["claims"].as_u64()),
