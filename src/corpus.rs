@@ -57,6 +57,9 @@ impl Input {
     }
 }
 
+/// Why a folder walk passes over files of unknown formats; such files are not warned about.
+pub const UNKNOWN_FORMAT: &str = "not a format hearsay reads";
+
 /// A file the walk passed over, with the reason.
 #[derive(Debug, Clone, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub struct Skipped {
@@ -197,13 +200,20 @@ pub fn format_by_extension(path: &Path) -> Option<InputFormat> {
 pub fn sniff(head: &[u8], path: &Path) -> InputFormat {
     let trimmed = {
         let h = head.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(head);
-        let start = h.iter().position(|b| !b.is_ascii_whitespace()).unwrap_or(h.len());
+        let start = h
+            .iter()
+            .position(|b| !b.is_ascii_whitespace())
+            .unwrap_or(h.len());
         &h[start..]
     };
     if trimmed.starts_with(b"%PDF-") {
         return InputFormat::Pdf;
     }
-    let lower: Vec<u8> = trimmed.iter().take(512).map(u8::to_ascii_lowercase).collect();
+    let lower: Vec<u8> = trimmed
+        .iter()
+        .take(512)
+        .map(u8::to_ascii_lowercase)
+        .collect();
     if lower.starts_with(b"<!doctype html") || lower.starts_with(b"<html") {
         return InputFormat::Html;
     }
@@ -297,7 +307,10 @@ pub fn read_from(
     let mut inner: Box<dyn BufRead + '_> = if gz {
         Box::new(std::io::BufReader::with_capacity(
             1 << 16,
-            capped(flate2::bufread::MultiGzDecoder::new(src), opts.max_decompressed),
+            capped(
+                flate2::bufread::MultiGzDecoder::new(src),
+                opts.max_decompressed,
+            ),
         ))
     } else if zst {
         let d = zstd::stream::read::Decoder::with_buffer(src).map_err(|e| read_error(e, true))?;
@@ -310,6 +323,10 @@ pub fn read_from(
     };
     let compressed = gz || zst;
     let head = inner.fill_buf().map_err(|e| read_error(e, compressed))?;
+    if head.is_empty() {
+        warnings.push(format!("{label}: empty file (no documents)"));
+        return Ok(());
+    }
     let format = match opts.format {
         InputFormat::Auto => sniff(head, path),
         f => f,
@@ -459,10 +476,18 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
                             reason: format!("walk error: {e}"),
                         }),
                         Ok(e) => {
+                            let label = e.path().to_string_lossy().into_owned();
+                            if e.path_is_symlink() {
+                                // Links are not followed: a link loop must not hang the walk.
+                                skipped.push(Skipped {
+                                    path: label,
+                                    reason: "symbolic link (not followed)".into(),
+                                });
+                                continue;
+                            }
                             if !e.file_type().is_some_and(|t| t.is_file()) {
                                 continue;
                             }
-                            let label = e.path().to_string_lossy().into_owned();
                             if is_known_file(e.path()) {
                                 inputs.push(Input {
                                     path: e.path().to_path_buf(),
@@ -471,7 +496,7 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
                             } else {
                                 skipped.push(Skipped {
                                     path: label,
-                                    reason: "not a format hearsay reads".into(),
+                                    reason: UNKNOWN_FORMAT.into(),
                                 });
                             }
                         }

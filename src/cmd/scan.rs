@@ -148,11 +148,7 @@ fn process(
     }
     result.entry = Some(FileEntry {
         path: input.label.clone(),
-        size: if input.is_stdin() {
-            text_bytes
-        } else {
-            size
-        },
+        size: if input.is_stdin() { text_bytes } else { size },
         mtime_ns: mtime,
         hash,
         documents,
@@ -263,7 +259,8 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         return finish(g, a, summary, &m, skipped, failed, started);
     }
     for s in &skipped {
-        if !g.quiet && a.paths.iter().any(|p| p == &s.path) {
+        if !g.quiet && (a.paths.iter().any(|p| p == &s.path) || s.reason != corpus::UNKNOWN_FORMAT)
+        {
             g.warn(&format!("{}: {}", s.path, s.reason));
         }
     }

@@ -20,14 +20,44 @@ pub struct HtmlReader;
 pub const MAX_DEPTH: usize = 4096;
 
 const DROPPED: &[&str] = &[
-    "script", "style", "nav", "header", "footer", "aside", "noscript", "head", "template",
-    "form", "button", "select", "svg", "iframe", "object", "menu",
+    "script", "style", "nav", "header", "footer", "aside", "noscript", "head", "template", "form",
+    "button", "select", "svg", "iframe", "object", "menu",
 ];
 
 const BLOCKS: &[&str] = &[
-    "p", "div", "h1", "h2", "h3", "h4", "h5", "h6", "li", "td", "th", "tr", "br", "blockquote",
-    "pre", "section", "article", "main", "table", "ul", "ol", "dl", "dt", "dd", "figure",
-    "figcaption", "caption", "hr", "address", "details", "summary", "body", "html",
+    "p",
+    "div",
+    "h1",
+    "h2",
+    "h3",
+    "h4",
+    "h5",
+    "h6",
+    "li",
+    "td",
+    "th",
+    "tr",
+    "br",
+    "blockquote",
+    "pre",
+    "section",
+    "article",
+    "main",
+    "table",
+    "ul",
+    "ol",
+    "dl",
+    "dt",
+    "dd",
+    "figure",
+    "figcaption",
+    "caption",
+    "hr",
+    "address",
+    "details",
+    "summary",
+    "body",
+    "html",
 ];
 
 /// A cheap upper bound on nesting: open tags minus close tags, from the raw text.

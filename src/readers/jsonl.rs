@@ -181,7 +181,9 @@ mod tests {
         let mut docs = Vec::new();
         let mut w = Vec::new();
         JsonlReader
-            .read("d.jsonl", src.as_bytes(), opts, &mut w, &mut |d| docs.push(d))
+            .read("d.jsonl", src.as_bytes(), opts, &mut w, &mut |d| {
+                docs.push(d)
+            })
             .unwrap();
         (docs, w)
     }

@@ -87,7 +87,8 @@ mod tests {
 
     #[test]
     fn code_and_front_matter_are_dropped_and_items_are_blocks() {
-        let md = "---\ntitle: x causes y\n---\n\n# Heat and rain\n\nDrought is caused\nby heat.\n\n\
+        let md =
+            "---\ntitle: x causes y\n---\n\n# Heat and rain\n\nDrought is caused\nby heat.\n\n\
                   ```\nlet a = b causes c;\n```\n\n- first item\n- second item\n";
         let t = markdown_text(md);
         assert_eq!(

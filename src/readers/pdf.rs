@@ -27,10 +27,15 @@ fn mask_digits(s: &str) -> String {
 }
 
 fn is_page_number(s: &str) -> bool {
-    let t = s.trim().trim_start_matches("Page").trim_start_matches("page").trim();
+    let t = s
+        .trim()
+        .trim_start_matches("Page")
+        .trim_start_matches("page")
+        .trim();
     !t.is_empty()
         && t.len() <= 12
-        && t.chars().all(|c| c.is_ascii_digit() || " /of-–".contains(c))
+        && t.chars()
+            .all(|c| c.is_ascii_digit() || " /of-–".contains(c))
         && t.chars().any(|c| c.is_ascii_digit())
 }
 
@@ -106,7 +111,10 @@ pub fn clean_pages(pages: &[String], cut_references: bool) -> (String, Vec<usize
             starts.push(out.len());
         }
     }
-    while starts.last().is_some_and(|&s| s >= out.len() && !out.is_empty()) {
+    while starts
+        .last()
+        .is_some_and(|&s| s >= out.len() && !out.is_empty())
+    {
         starts.pop();
     }
     (out, starts)
@@ -186,10 +194,14 @@ mod tests {
     fn headers_numbers_hyphens_and_references() {
         let pages = vec![
             "Journal of Lakes 12\nWarm water raises the regu-\nlation of algae.\n\n1\n".to_string(),
-            "Journal of Lakes 13\nRain causes floods.\nReferences\nA. Author 2020.\n2\n".to_string(),
+            "Journal of Lakes 13\nRain causes floods.\nReferences\nA. Author 2020.\n2\n"
+                .to_string(),
         ];
         let (t, starts) = clean_pages(&pages, true);
-        assert_eq!(t, "Warm water raises the regulation of algae.\n\nRain causes floods.");
+        assert_eq!(
+            t,
+            "Warm water raises the regulation of algae.\n\nRain causes floods."
+        );
         assert_eq!(starts, vec![t.find("Rain").unwrap()]);
         let (t, _) = clean_pages(&pages, false);
         assert!(t.contains("A. Author"));

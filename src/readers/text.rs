@@ -117,7 +117,9 @@ mod tests {
         bad.push(0xff);
         let s = decode_text("m.txt", &bad, &mut w).unwrap();
         assert!(s.contains('\u{FFFD}'));
-        assert!(w.iter().any(|x| x.starts_with("m.txt") && x.contains("replacement")));
+        assert!(w
+            .iter()
+            .any(|x| x.starts_with("m.txt") && x.contains("replacement")));
     }
 
     #[test]
@@ -135,7 +137,10 @@ mod tests {
         for u in "heat causes drought".encode_utf16() {
             le.extend_from_slice(&u.to_le_bytes());
         }
-        assert_eq!(decode_text("x", &le, &mut w).unwrap(), "heat causes drought");
+        assert_eq!(
+            decode_text("x", &le, &mut w).unwrap(),
+            "heat causes drought"
+        );
         let mut be = vec![0xFE, 0xFF];
         for u in "Ünïcode".encode_utf16() {
             be.extend_from_slice(&u.to_be_bytes());

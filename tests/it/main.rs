@@ -3,5 +3,6 @@
 
 mod common;
 mod external;
+mod hostile;
 mod store;
 mod subcommands;
