@@ -57,6 +57,9 @@ impl Input {
     }
 }
 
+/// Why a folder walk passes over files of unknown formats; such files are not warned about.
+pub const UNKNOWN_FORMAT: &str = "not a format hearsay reads";
+
 /// A file the walk passed over, with the reason.
 #[derive(Debug, Clone, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub struct Skipped {
@@ -320,6 +323,10 @@ pub fn read_from(
     };
     let compressed = gz || zst;
     let head = inner.fill_buf().map_err(|e| read_error(e, compressed))?;
+    if head.is_empty() {
+        warnings.push(format!("{label}: empty file (no documents)"));
+        return Ok(());
+    }
     let format = match opts.format {
         InputFormat::Auto => sniff(head, path),
         f => f,
@@ -469,10 +476,18 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
                             reason: format!("walk error: {e}"),
                         }),
                         Ok(e) => {
+                            let label = e.path().to_string_lossy().into_owned();
+                            if e.path_is_symlink() {
+                                // Links are not followed: a link loop must not hang the walk.
+                                skipped.push(Skipped {
+                                    path: label,
+                                    reason: "symbolic link (not followed)".into(),
+                                });
+                                continue;
+                            }
                             if !e.file_type().is_some_and(|t| t.is_file()) {
                                 continue;
                             }
-                            let label = e.path().to_string_lossy().into_owned();
                             if is_known_file(e.path()) {
                                 inputs.push(Input {
                                     path: e.path().to_path_buf(),
@@ -481,7 +496,7 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
                             } else {
                                 skipped.push(Skipped {
                                     path: label,
-                                    reason: "not a format hearsay reads".into(),
+                                    reason: UNKNOWN_FORMAT.into(),
                                 });
                             }
                         }

@@ -259,7 +259,8 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         return finish(g, a, summary, &m, skipped, failed, started);
     }
     for s in &skipped {
-        if !g.quiet && a.paths.iter().any(|p| p == &s.path) {
+        if !g.quiet && (a.paths.iter().any(|p| p == &s.path) || s.reason != corpus::UNKNOWN_FORMAT)
+        {
             g.warn(&format!("{}: {}", s.path, s.reason));
         }
     }

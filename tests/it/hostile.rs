@@ -1,0 +1,212 @@
+//! Hostile and broken input, generated here: every bad file gets a warning naming it and the
+//! reason, the scan completes, the good files' claims are all stored, and `--strict` turns the
+//! failures into exit status 1.
+
+use crate::common::*;
+use std::io::Write;
+use std::path::Path;
+
+fn gz(data: &[u8]) -> Vec<u8> {
+    let mut e = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::fast());
+    e.write_all(data).unwrap();
+    e.finish().unwrap()
+}
+
+fn is_root() -> bool {
+    std::process::Command::new("id")
+        .arg("-u")
+        .output()
+        .map(|o| String::from_utf8_lossy(&o.stdout).trim() == "0")
+        .unwrap_or(false)
+}
+
+/// Write the hostile corpus; returns the good files and (bad file, expected reason) pairs.
+fn build(dir: &Path) -> (Vec<&'static str>, Vec<(&'static str, &'static str)>) {
+    let w = |name: &str, data: &[u8]| std::fs::write(dir.join(name), data).unwrap();
+    w("good.txt", b"Heavy rain causes flooding in the valley.\n");
+    w(
+        "good.md",
+        b"---\ntitle: notes\n---\n# Notes\n\nDrought reduces crop yields.\n\n```\nx causes y\n```\n",
+    );
+    w(
+        "good.html",
+        b"<!doctype html><html><body><nav>Menu</nav><p>Wind erosion lowers soil depth.</p></body></html>",
+    );
+    w(
+        "good.jsonl.zst",
+        &zstd::encode_all(
+            &b"{\"id\":\"r1\",\"text\":\"Late frost causes shoot dieback.\"}\n"[..],
+            3,
+        )
+        .unwrap(),
+    );
+    let mut binary: Vec<u8> = (0..4096u32).map(|i| (i * 7919 % 256) as u8).collect();
+    binary[10] = 0;
+    w("binary.txt", &binary);
+    let full = gz(&b"{\"text\":\"Heat causes drought.\"}\n".repeat(2000));
+    w("truncated.jsonl.gz", &full[..full.len() / 2]);
+    // 64 MiB of one byte compresses to about 64 KB; the test caps expansion at 8 MiB.
+    let mut e = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::fast());
+    let block = vec![b'a'; 1 << 20];
+    for _ in 0..64 {
+        e.write_all(&block).unwrap();
+    }
+    w("bomb.jsonl.gz", &e.finish().unwrap());
+    // A 50 MB line in a JSON Lines dump: over the record cap, skipped without being held.
+    {
+        let mut f = std::fs::File::create(dir.join("huge-line.jsonl")).unwrap();
+        f.write_all(b"{\"text\":\"").unwrap();
+        let chunk = b"word ".repeat(1 << 16);
+        for _ in 0..160 {
+            f.write_all(&chunk).unwrap();
+        }
+        f.write_all(
+            b"\"}\n{\"id\":\"after\",\"text\":\"Wildfire smoke causes lung irritation.\"}\n",
+        )
+        .unwrap();
+    }
+    w(
+        "nul-and-bad-utf8.txt",
+        b"caf\xe9 \xff\xfe\x00 causes \x00 joy",
+    );
+    w(
+        "broken.pdf",
+        b"%PDF-1.7\n1 0 obj << /Type /Pages /Kids [2 0 R\nstartxref\n99999\n%%EOF",
+    );
+    let depth = 100_000;
+    w(
+        "deep.html",
+        format!(
+            "<!doctype html><html><body>{}x{}</body></html>",
+            "<div>".repeat(depth),
+            "</div>".repeat(depth)
+        )
+        .as_bytes(),
+    );
+    std::os::unix::fs::symlink(dir.join("loop-b.txt"), dir.join("loop-a.txt")).unwrap();
+    std::os::unix::fs::symlink(dir.join("loop-a.txt"), dir.join("loop-b.txt")).unwrap();
+    w("empty.txt", b"");
+    w("empty.md", b"");
+    w(
+        "mixed.jsonl",
+        b"{\"id\":1,\"text\":\"Road salt leads to bridge corrosion.\"}\n\nnot json at all\n{\"id\":3,\"body\":\"x\"}\n",
+    );
+    w("unreadable.txt", b"Noise causes stress.\n");
+    let mut bad = vec![
+        ("binary.txt", "binary file"),
+        ("truncated.jsonl.gz", "corrupt or truncated compressed data"),
+        ("bomb.jsonl.gz", "decompresses to more than 8388608 bytes"),
+        (
+            "huge-line.jsonl",
+            "huge-line.jsonl:1: record over 8388608 bytes",
+        ),
+        ("nul-and-bad-utf8.txt", "binary file"),
+        ("broken.pdf", "PDF"),
+        ("deep.html", "nested deeper than"),
+        ("loop-a.txt", "symbolic link"),
+        ("loop-b.txt", "symbolic link"),
+        ("empty.txt", "empty file"),
+        ("empty.md", "empty file"),
+        ("mixed.jsonl", "mixed.jsonl:2: blank line"),
+        ("mixed.jsonl", "mixed.jsonl:3: not JSON"),
+        ("mixed.jsonl", "mixed.jsonl:4: no string field \"text\""),
+    ];
+    if !is_root() {
+        // Root reads any file whatever its mode, so this case only bites for other users.
+        std::fs::set_permissions(
+            dir.join("unreadable.txt"),
+            std::os::unix::fs::PermissionsExt::from_mode(0o000),
+        )
+        .unwrap();
+        bad.push(("unreadable.txt", "ermission denied"));
+    }
+    (
+        vec!["good.txt", "good.md", "good.html", "good.jsonl.zst"],
+        bad,
+    )
+}
+
+#[test]
+fn hostile_corpus_costs_only_its_bad_files() {
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    let (good, bad) = build(&corpus);
+    let store = tmp.path().join("store");
+    let run = |strict: bool| {
+        let mut c = hearsay();
+        c.arg("--store")
+            .arg(&store)
+            .args([
+                "--format",
+                "json",
+                "--max-decompressed",
+                "8M",
+                "--max-record",
+                "8M",
+            ])
+            .arg("scan")
+            .arg(&corpus);
+        if strict {
+            c.arg("--strict");
+        }
+        c.output().unwrap()
+    };
+    let out = run(false);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "{stderr}");
+    for (file, reason) in &bad {
+        assert!(
+            stderr
+                .lines()
+                .any(|l| l.contains(&format!("{file}")) && l.contains(reason)),
+            "no warning for {file} ({reason}) in:\n{stderr}"
+        );
+    }
+    let summary: serde_json::Value =
+        serde_json::from_slice(out.stdout.split(|&b| b == b'\n').next().unwrap()).unwrap();
+    let failed: Vec<String> = summary["failed"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["path"].as_str().unwrap().to_string())
+        .collect();
+    for f in [
+        "binary.txt",
+        "truncated.jsonl.gz",
+        "bomb.jsonl.gz",
+        "broken.pdf",
+        "deep.html",
+    ] {
+        assert!(
+            failed.iter().any(|p| p.ends_with(f)),
+            "{f} not failed: {summary}"
+        );
+    }
+    assert_eq!(summary["files_skipped"], 2, "{summary}");
+    assert!(summary["files_read"].as_u64().unwrap() >= 8, "{summary}");
+
+    let claims = json_lines(&["claims"], &store);
+    let paths: Vec<String> = claims
+        .iter()
+        .map(|c| c["source"]["path"].as_str().unwrap().to_string())
+        .collect();
+    for g in &good {
+        assert!(
+            paths.iter().any(|p| p.ends_with(g)),
+            "no claim from {g}: {paths:?}"
+        );
+    }
+    // Records after a bad line are read, with their ids.
+    let records: Vec<&str> = claims
+        .iter()
+        .filter_map(|c| c["source"]["record"].as_str())
+        .collect();
+    for r in ["r1", "after", "1"] {
+        assert!(records.contains(&r), "record {r} missing: {records:?}");
+    }
+
+    // The same corpus under --strict fails (the store was replaced by a fresh one).
+    std::fs::remove_dir_all(&store).unwrap();
+    assert_eq!(run(true).status.code(), Some(1));
+}
