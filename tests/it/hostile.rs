@@ -159,7 +159,7 @@ fn hostile_corpus_costs_only_its_bad_files() {
         assert!(
             stderr
                 .lines()
-                .any(|l| l.contains(&format!("{file}")) && l.contains(reason)),
+                .any(|l| l.contains(&file.to_string()) && l.contains(reason)),
             "no warning for {file} ({reason}) in:\n{stderr}"
         );
     }
