@@ -174,7 +174,7 @@ const NODE_ATTRS: &[(&str, &str)] = &[
     ("documents", "int"),
 ];
 
-fn edge_attrs(e: &ExportEdge) -> Vec<(&'static str, &'static str, String)> {
+fn edge_attrs(e: &ExportEdge) -> Vec<(String, &'static str, String)> {
     let v = serde_json::to_value(e).unwrap_or_default();
     let mut out = Vec::new();
     if let serde_json::Value::Object(m) = v {
@@ -182,9 +182,8 @@ fn edge_attrs(e: &ExportEdge) -> Vec<(&'static str, &'static str, String)> {
             if k == "source" || k == "target" {
                 continue;
             }
-            let name: &'static str = Box::leak(k.into_boxed_str());
             let ty = if val.is_f64() { "double" } else { "int" };
-            out.push((name, ty, val.to_string()));
+            out.push((k, ty, val.to_string()));
         }
     }
     out
@@ -211,9 +210,9 @@ pub fn write_graphml(out: &mut impl Write, e: &Export) -> quick_xml::Result<()> 
             for (name, ty, _) in &sample {
                 w.create_element("key")
                     .with_attributes([
-                        ("id", *name),
+                        ("id", name.as_str()),
                         ("for", "edge"),
-                        ("attr.name", *name),
+                        ("attr.name", name.as_str()),
                         ("attr.type", *ty),
                     ])
                     .write_empty()?;
@@ -247,7 +246,7 @@ pub fn write_graphml(out: &mut impl Write, e: &Export) -> quick_xml::Result<()> 
                             .write_inner_content(|w| {
                                 for (name, _, v) in edge_attrs(ed) {
                                     w.create_element("data")
-                                        .with_attribute(("key", name))
+                                        .with_attribute(("key", name.as_str()))
                                         .write_text_content(quick_xml::events::BytesText::new(
                                             &v,
                                         ))?;
