@@ -27,11 +27,36 @@ pub struct PairArgs {
     /// Evidence sentences to show per relation.
     #[arg(long, default_value_t = 3, value_name = "N")]
     pub evidence: usize,
+    /// Benchmark: answer the query N times in this process (store opened and graph built each
+    /// time) and print the median and fastest wall time on stderr; the report is printed once.
+    #[arg(long, default_value_t = 1, value_name = "N", hide_short_help = true)]
+    pub repeat: usize,
     #[command(flatten)]
     pub filter: ClaimFilter,
 }
 
 pub fn run(g: &Global, a: &PairArgs) -> Result<ExitCode> {
+    if a.repeat <= 1 {
+        return answer(g, a, true);
+    }
+    let mut times = Vec::with_capacity(a.repeat);
+    for i in 0..a.repeat {
+        let t = std::time::Instant::now();
+        answer(g, a, i == 0)?;
+        times.push(t.elapsed().as_secs_f64() * 1000.0);
+    }
+    times.sort_by(f64::total_cmp);
+    eprintln!(
+        "hearsay: pair x{}: median {:.3} ms, fastest {:.3} ms",
+        a.repeat,
+        times[times.len() / 2],
+        times[0]
+    );
+    Ok(ExitCode::SUCCESS)
+}
+
+/// One query: open the store, build the graph, report (printed only when `print`).
+fn answer(g: &Global, a: &PairArgs, print: bool) -> Result<ExitCode> {
     let mut loaded = g.graph(&a.filter.to_filter())?;
     let x = report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, &a.x);
     let y = report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, &a.y);
@@ -75,6 +100,9 @@ pub fn run(g: &Global, a: &PairArgs) -> Result<ExitCode> {
             ),
         }
     });
+    if !print {
+        return Ok(ExitCode::SUCCESS);
+    }
     let mut out = std::io::stdout().lock();
     match g.format() {
         Format::Json => {

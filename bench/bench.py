@@ -1,0 +1,185 @@
+#!/usr/bin/env python3
+"""Benchmark driver (called by bench/run.sh after the release build).
+
+Every measured command runs under /usr/bin/time -v (wall time and peak RSS), the median of
+--runs runs is reported, and a JSON summary goes to bench/results/ (or --out). Speed targets live
+here, never in timed tests.
+"""
+import argparse
+import datetime
+import json
+import os
+import re
+import shutil
+import statistics
+import subprocess
+import sys
+import tempfile
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+HEARSAY = os.path.join(ROOT, "target", "release", "hearsay")
+# CPU seconds (user + system) of each timed run, in order: on a shared machine wall time
+# includes waiting for a core, CPU time does not.
+CPU = []
+
+
+def timed(cmd, stdout=subprocess.DEVNULL, cwd=None):
+    """Run cmd under /usr/bin/time -v; return (wall seconds, peak RSS MB, stderr text)."""
+    p = subprocess.run(["/usr/bin/time", "-v"] + cmd, stdout=stdout, stderr=subprocess.PIPE,
+                       cwd=cwd, text=True)
+    if p.returncode != 0:
+        sys.exit(f"command failed ({p.returncode}): {' '.join(cmd)}\n{p.stderr[-2000:]}")
+    wall = re.search(r"Elapsed \(wall clock\) time.*: (?:(\d+):)?(\d+):([\d.]+)", p.stderr)
+    h, m, s = wall.groups()
+    secs = int(h or 0) * 3600 + int(m) * 60 + float(s)
+    rss = int(re.search(r"Maximum resident set size \(kbytes\): (\d+)", p.stderr).group(1))
+    cpu = sum(float(x) for x in re.findall(r"(?:User|System) time \(seconds\): ([\d.]+)", p.stderr))
+    CPU.append(cpu)
+    return secs, rss / 1024.0, p.stderr
+
+
+def median_of(runs, cmd, setup=None, **kw):
+    walls, rsss, cpus = [], [], []
+    for _ in range(runs):
+        if setup:
+            setup()
+        w, r, _ = timed(cmd, **kw)
+        walls.append(w)
+        rsss.append(r)
+        cpus.append(CPU[-1])
+    return {"seconds": statistics.median(walls), "runs": walls, "peak_rss_mb": max(rsss),
+            "cpu_seconds": statistics.median(cpus)}
+
+
+def corpus_bytes(d):
+    return sum(os.path.getsize(os.path.join(r, n)) for r, _, ns in os.walk(d) for n in ns)
+
+
+def main():
+    ap = argparse.ArgumentParser()
+    ap.add_argument("corpus", nargs="?",
+                    default=os.path.join(ROOT, "..", "shared", "data", "elife-articles", "articles"))
+    ap.add_argument("--out", help="JSON summary path (default bench/results/<time>.json)")
+    ap.add_argument("--runs", type=int, default=3)
+    ap.add_argument("--pair-repeat", type=int, default=100)
+    a = ap.parse_args()
+    runs = max(1, a.runs)
+    tmp = tempfile.mkdtemp(prefix="hearsay-bench-")
+    try:
+        corpus = os.path.join(tmp, "corpus")
+        shutil.copytree(a.corpus, corpus)
+        files = sorted(os.path.join(r, n) for r, _, ns in os.walk(corpus) for n in ns)
+        mb = corpus_bytes(corpus) / 1e6
+        cues = os.path.join(tmp, "cues.txt")
+        with open(cues, "w") as f:
+            subprocess.run([HEARSAY, "patterns", "list", "--literals"], stdout=f, check=True)
+        res = {"corpus": os.path.basename(os.path.normpath(a.corpus)), "files": len(files),
+               "megabytes": round(mb, 2), "runs": runs, "cores": os.cpu_count(),
+               "date": datetime.datetime.now(datetime.timezone.utc).isoformat(timespec="seconds")}
+        m = {}
+        # Extract, one and two threads.
+        for j in (1, 2):
+            m[f"extract_j{j}"] = median_of(runs, [HEARSAY, "-q", f"-j{j}", "extract", corpus])
+        # 4x corpus for the flat-memory check.
+        big = os.path.join(tmp, "corpus4")
+        for i in range(4):
+            shutil.copytree(corpus, os.path.join(big, str(i)))
+        m["extract_j1_4x"] = median_of(1, [HEARSAY, "-q", "-j1", "extract", big])
+        shutil.rmtree(big)
+        # Scan: fresh store, unchanged re-scan, 1% of the files changed.
+        store = os.path.join(tmp, "store")
+        m["scan_fresh_j2"] = median_of(
+            runs, [HEARSAY, "-q", "-j2", "--store", store, "--format", "json", "scan", corpus],
+            setup=lambda: shutil.rmtree(store, ignore_errors=True))
+        out = subprocess.run([HEARSAY, "-q", "--store", store, "--format", "json", "scan", corpus],
+                             capture_output=True, text=True, check=True).stdout
+        summary = json.loads(out.splitlines()[0])
+        sentences, claims = summary["sentences"], summary["claims"]
+        m["rescan_unchanged"] = median_of(
+            runs, [HEARSAY, "-q", "-j2", "--store", store, "--format", "json", "scan", corpus])
+        touched = files[:: max(1, len(files) // max(1, len(files) // 100))][: max(1, len(files) // 100)]
+        counter = [0]
+
+        def touch():
+            counter[0] += 1
+            for p in touched:
+                with open(p, "a") as f:
+                    f.write(f"\nEdit {counter[0]}.\n")
+
+        m["rescan_1pct"] = median_of(
+            runs, [HEARSAY, "-q", "-j2", "--store", store, "--format", "json", "scan", corpus],
+            setup=touch)
+        m["rescan_1pct"]["files_changed"] = len(touched)
+        # Pair: the most-stated relation, warm in one process and as a cold process.
+        top = subprocess.run([HEARSAY, "--store", store, "--format", "json", "top", "-n", "1"],
+                             capture_output=True, text=True, check=True).stdout
+        t = json.loads(top.splitlines()[0])
+        pair = [HEARSAY, "-q", "--store", store, "--format", "json", "pair", t["cause"], t["effect"]]
+        w, r, err = timed(pair + ["--repeat", str(a.pair_repeat)])
+        med = re.search(r"median ([\d.]+) ms", err)
+        m["pair_warm"] = {"median_ms": float(med.group(1)) if med else None,
+                          "queries": a.pair_repeat, "pair": [t["cause"], t["effect"]],
+                          "peak_rss_mb": r}
+        cold = median_of(max(runs, 5), pair)
+        m["pair_cold"] = {"median_ms": cold["seconds"] * 1000, "peak_rss_mb": cold["peak_rss_mb"]}
+        # References: ripgrep over the cue literals, and the Python baseline.
+        m["ripgrep_j1"] = median_of(runs, ["rg", "-c", "-i", "-w", "-f", cues, "-j1", corpus])
+        m["python_re"] = median_of(runs, [sys.executable, os.path.join(ROOT, "bench", "baseline.py"),
+                                          cues, corpus])
+        for k, v in m.items():
+            if "seconds" in v and v["seconds"] > 0:
+                v["mb_per_s"] = round(mb / v["seconds"], 2)
+                v["sentences_per_s"] = round(sentences / v["seconds"])
+                v["mb_per_cpu_s"] = round(mb / max(v["cpu_seconds"], 1e-3), 2)
+        ex1, ex2, rg = m["extract_j1"]["seconds"], m["extract_j2"]["seconds"], m["ripgrep_j1"]["seconds"]
+        fresh = m["scan_fresh_j2"]["seconds"]
+        ratios = {
+            "extract_j1_over_ripgrep": round(ex1 / rg, 2),
+            "extract_j1_over_python": round(ex1 / m["python_re"]["seconds"], 2),
+            "extract_j1_cpu_over_ripgrep_cpu": round(m["extract_j1"]["cpu_seconds"] / max(m["ripgrep_j1"]["cpu_seconds"], 1e-3), 2),
+            "extract_j2_speedup": round(ex1 / ex2, 2),
+            "rescan_unchanged_over_fresh": round(m["rescan_unchanged"]["seconds"] / fresh, 4),
+            "rescan_1pct_over_fresh": round(m["rescan_1pct"]["seconds"] / fresh, 4),
+            "extract_rss_4x_over_1x": round(m["extract_j1_4x"]["peak_rss_mb"] / m["extract_j1"]["peak_rss_mb"], 2),
+        }
+        targets = {
+            "extract_j1_within_3x_ripgrep": ratios["extract_j1_over_ripgrep"] <= 3,
+            "extract_j2_at_least_1.7x": ratios["extract_j2_speedup"] >= 1.7,
+            "extract_rss_under_100mb": max(m["extract_j1"]["peak_rss_mb"], m["extract_j2"]["peak_rss_mb"],
+                                           m["extract_j1_4x"]["peak_rss_mb"]) < 100,
+            "extract_rss_flat": ratios["extract_rss_4x_over_1x"] < 1.25,
+            "scan_at_least_15_mb_s": m["scan_fresh_j2"]["mb_per_s"] >= 15,
+            "rescan_unchanged_under_5pct": ratios["rescan_unchanged_over_fresh"] < 0.05,
+            "rescan_1pct_about_5pct": ratios["rescan_1pct_over_fresh"] <= 0.06,
+            "scan_rss_under_1gb": m["scan_fresh_j2"]["peak_rss_mb"] < 1024,
+            "pair_warm_under_20ms": (m["pair_warm"]["median_ms"] or 1e9) < 20,
+            "pair_cold_under_200ms": m["pair_cold"]["median_ms"] < 200,
+        }
+        res.update({"sentences": sentences, "claims": claims, "measures": m, "ratios": ratios,
+                    "targets": targets})
+        print(f"{res['corpus']}: {len(files)} files, {mb:.1f} MB, {sentences} sentences, "
+              f"{claims} claims; median of {runs}")
+        print(f"{'measure':<18} {'seconds':>8} {'CPU s':>7} {'MB/s':>8} {'sent/s':>9} {'RSS MB':>7}")
+        for k, v in m.items():
+            if "seconds" in v:
+                print(f"{k:<18} {v['seconds']:>8.2f} {v['cpu_seconds']:>7.2f} {v.get('mb_per_s', 0):>8.1f} "
+                      f"{v.get('sentences_per_s', 0):>9} {v['peak_rss_mb']:>7.0f}")
+            else:
+                print(f"{k:<18} {v['median_ms']:>8.1f} ms {'':>25} {v['peak_rss_mb']:>7.0f}")
+        for k, v in ratios.items():
+            print(f"{k:<32} {v}")
+        for k, v in targets.items():
+            print(f"{'met ' if v else 'MISS'} {k}")
+        path = a.out or os.path.join(ROOT, "bench", "results",
+                                     datetime.datetime.now().strftime("%Y%m%d-%H%M%S") + ".json")
+        os.makedirs(os.path.dirname(os.path.abspath(path)), exist_ok=True)
+        with open(path, "w") as f:
+            json.dump(res, f, indent=2)
+            f.write("\n")
+        print(f"summary: {os.path.relpath(path, os.getcwd())}")
+    finally:
+        shutil.rmtree(tmp, ignore_errors=True)
+
+
+if __name__ == "__main__":
+    main()
