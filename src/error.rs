@@ -48,6 +48,13 @@ pub enum StoreError {
     },
     #[error("search index: {0}")]
     Index(#[from] tantivy::TantivyError),
+    /// A line of an `extract` shard that is not a claim, sentence or file record.
+    #[error("{path}:{line}: {message}")]
+    Shard {
+        path: String,
+        line: usize,
+        message: String,
+    },
     #[error(
         "store {path} has schema {found}, this hearsay reads {expected}; rescan into a new store"
     )]

@@ -571,6 +571,147 @@ impl StoreWriter {
     }
 }
 
+/// A sentence record of `extract --sentences`: one entry of the search index.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SentenceRecord {
+    /// The document id (path, plus `#record` for many-documents-per-file formats).
+    pub sentence_of: String,
+    pub line: u64,
+    pub start: u64,
+    /// The sentence with whitespace runs collapsed, as the index stores it.
+    pub text: String,
+}
+
+/// A file record of `extract --sentences`: closes one input file's records.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct FileRecord {
+    pub file: String,
+    pub documents: u64,
+    pub sentences: u64,
+    /// Bytes of text the readers produced.
+    pub bytes: u64,
+}
+
+/// One line of an `extract` shard.
+#[derive(Debug, Deserialize)]
+#[serde(untagged)]
+pub enum ShardLine {
+    Claim(Box<Claim>),
+    Sentence(SentenceRecord),
+    File(FileRecord),
+}
+
+/// Collects `extract` shards into per-file results, to be written with [`StoreWriter::put`].
+///
+/// Claims, sentences and file records are grouped by file path; records of one path may come
+/// from several shards (standard input split into partitions gives every partition the path
+/// `-`), and are kept in arrival order, so shards given in corpus order give rows in corpus
+/// order. Everything is held until [`Shards::into_results`]: memory grows with the merged output.
+#[derive(Debug, Default)]
+pub struct Shards {
+    files: BTreeMap<String, FileResult>,
+    /// Paths that had a file record (and so exact document and sentence counts).
+    closed: BTreeSet<String>,
+    docs: BTreeMap<String, BTreeSet<String>>,
+    /// Sentence records waiting for their file record (which may be in the next shard).
+    pending: Vec<SentenceRecord>,
+}
+
+impl Shards {
+    fn file(&mut self, path: &str) -> &mut FileResult {
+        self.files
+            .entry(path.to_string())
+            .or_insert_with(|| FileResult {
+                entry: Some(FileEntry {
+                    path: path.to_string(),
+                    size: 0,
+                    mtime_ns: 0,
+                    hash: String::new(),
+                    documents: 0,
+                    sentences: 0,
+                    claims: 0,
+                    segment: 0,
+                    rows: (0, 0),
+                    warnings: Vec::new(),
+                }),
+                ..FileResult::default()
+            })
+    }
+
+    /// Add the lines of one shard (`name` is used in error messages).
+    pub fn read(&mut self, name: &str, input: impl std::io::BufRead) -> Result<(), StoreError> {
+        for (i, line) in input.lines().enumerate() {
+            let line = line.map_err(|e| StoreError::Shard {
+                path: name.to_string(),
+                line: i + 1,
+                message: e.to_string(),
+            })?;
+            if line.trim().is_empty() {
+                continue;
+            }
+            let rec: ShardLine = serde_json::from_str(&line).map_err(|e| StoreError::Shard {
+                path: name.to_string(),
+                line: i + 1,
+                message: format!("not a claim, sentence or file record of `hearsay extract`: {e}"),
+            })?;
+            match rec {
+                ShardLine::Claim(c) => {
+                    let id = crate::graph::doc_id(&c.source.path, c.source.record.as_deref());
+                    self.docs
+                        .entry(c.source.path.clone())
+                        .or_default()
+                        .insert(id);
+                    self.file(&c.source.path).claims.push(*c);
+                }
+                // A file's sentence records come before its file record, which names the file.
+                ShardLine::Sentence(s) => self.pending.push(s),
+                ShardLine::File(f) => {
+                    let pending = std::mem::take(&mut self.pending);
+                    let r = self.file(&f.file);
+                    for s in pending {
+                        r.sentences.push((s.sentence_of, s.line, s.start, s.text));
+                    }
+                    if let Some(e) = r.entry.as_mut() {
+                        e.documents += f.documents;
+                        e.sentences += f.sentences;
+                        e.size += f.bytes;
+                    }
+                    self.closed.insert(f.file);
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// True when every file came with a file record (and so with its sentences).
+    pub fn has_sentences(&self) -> bool {
+        self.files.keys().all(|p| self.closed.contains(p))
+    }
+
+    /// The per-file results, in path order. Files without a file record count the distinct
+    /// documents their claims name.
+    pub fn into_results(mut self) -> Result<Vec<FileResult>, StoreError> {
+        if !self.pending.is_empty() {
+            return Err(StoreError::Shard {
+                path: "-".into(),
+                line: 0,
+                message: format!(
+                    "{} sentence records after the last file record (a truncated shard?)",
+                    self.pending.len()
+                ),
+            });
+        }
+        for (path, r) in self.files.iter_mut() {
+            if !self.closed.contains(path) {
+                if let Some(e) = r.entry.as_mut() {
+                    e.documents = self.docs.get(path).map_or(0, |d| d.len() as u64);
+                }
+            }
+        }
+        Ok(self.files.into_values().collect())
+    }
+}
+
 /// The index terms of a variable key (keys are already stemmed: split, do not stem again).
 pub fn key_terms(key: &str) -> Vec<String> {
     key.split(' ')

@@ -4,8 +4,11 @@
 use super::{check_paths, Global};
 use anyhow::Result;
 use clap::Args;
+use hearsay::claims::collapse;
 use hearsay::corpus::{self, Input};
+use hearsay::graph::doc_id;
 use hearsay::pipeline;
+use hearsay::store::{FileRecord, SentenceRecord};
 use rayon::prelude::*;
 use std::io::Write;
 use std::process::ExitCode;
@@ -25,6 +28,11 @@ pub struct ExtractArgs {
     /// Exit with status 1 when any file could not be read.
     #[arg(long)]
     pub strict: bool,
+    /// Also print every sentence (`{"sentence_of": doc, "line", "start", "text"}`) and, after
+    /// each file's records, a file record (`{"file", "documents", "sentences", "bytes"}`), so
+    /// that `hearsay merge` can rebuild the search index and co-mention counts.
+    #[arg(long)]
+    pub sentences: bool,
 }
 
 pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
@@ -42,7 +50,10 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     let (mut claims, mut failed, mut bytes) = (0usize, 0usize, 0usize);
     let chunk = rayon::current_num_threads() * 4;
     for group in inputs.chunks(chunk.max(1)) {
-        let results: Vec<Extracted> = group.par_iter().map(|i| one(&ex, &opts, i)).collect();
+        let results: Vec<Extracted> = group
+            .par_iter()
+            .map(|i| one(&ex, &opts, i, a.sentences))
+            .collect();
         for (input, (r, warnings)) in group.iter().zip(results) {
             for w in warnings {
                 g.warn(&w);
@@ -82,26 +93,55 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
 
 type Extracted = (Result<(String, usize, usize), String>, Vec<String>);
 
-fn one(ex: &hearsay::claims::Extractor, opts: &corpus::ReadOptions, input: &Input) -> Extracted {
+fn one(
+    ex: &hearsay::claims::Extractor,
+    opts: &corpus::ReadOptions,
+    input: &Input,
+    with_sentences: bool,
+) -> Extracted {
     let mut warnings = Vec::new();
     let r = (|| {
         let mut text = String::new();
-        let (mut n, mut b) = (0, 0);
+        let (mut n, mut b, mut docs, mut sents) = (0, 0, 0u64, 0u64);
         let mut failed = None;
+        let mut push = |text: &mut String, r: serde_json::Result<String>| match r {
+            Ok(j) => {
+                text.push_str(&j);
+                text.push('\n');
+            }
+            Err(e) => failed = Some(e.to_string()),
+        };
         corpus::read_input(input, opts, &mut warnings, &mut |d| {
             b += d.text.len();
+            docs += 1;
             for c in pipeline::document_claims(ex, &d) {
-                match serde_json::to_string(&c) {
-                    Ok(j) => {
-                        text.push_str(&j);
-                        text.push('\n');
-                        n += 1;
-                    }
-                    Err(e) => failed = Some(e.to_string()),
+                push(&mut text, serde_json::to_string(&c));
+                n += 1;
+            }
+            if with_sentences {
+                let id = doc_id(&d.path, d.record.as_deref());
+                for s in pipeline::document_sentences(&d) {
+                    sents += 1;
+                    let rec = SentenceRecord {
+                        sentence_of: id.clone(),
+                        line: s.line as u64,
+                        start: s.start as u64,
+                        text: collapse(s.text),
+                    };
+                    push(&mut text, serde_json::to_string(&rec));
                 }
             }
         })
         .map_err(|e| e.to_string())?;
+        if with_sentences {
+            let rec = FileRecord {
+                file: input.label.clone(),
+                documents: docs,
+                sentences: sents,
+                bytes: b as u64,
+            };
+            push(&mut text, serde_json::to_string(&rec));
+        }
         if let Some(e) = failed {
             return Err(e);
         }

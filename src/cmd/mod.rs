@@ -6,6 +6,7 @@ mod eval;
 mod explain;
 mod extract;
 mod graph;
+mod merge;
 mod pair;
 mod patterns;
 mod questions;
@@ -84,6 +85,8 @@ pub enum Command {
     Scan(scan::ScanArgs),
     /// Print the claims of files or stdin as JSON Lines, without a store (the map step for pipelines).
     Extract(extract::ExtractArgs),
+    /// Build a store from `extract` JSON Lines shards (the reduce step for pipelines and clusters).
+    Merge(merge::MergeArgs),
     /// What the corpus says about two variables, in each direction, with evidence.
     Pair(pair::PairArgs),
     /// The most-stated relations.
@@ -159,6 +162,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Patterns(a) => patterns::run(g, a),
         Command::Questions(a) => questions::run(g, a),
         Command::Graph(a) => graph::run(g, a),
+        Command::Merge(a) => merge::run(g, a),
     }
 }
 

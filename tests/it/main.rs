@@ -5,6 +5,7 @@ mod common;
 mod external;
 mod graph;
 mod hostile;
+mod merge;
 mod quality;
 mod store;
 mod subcommands;
