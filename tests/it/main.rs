@@ -7,5 +7,6 @@ mod graph;
 mod hostile;
 mod merge;
 mod quality;
+mod spark;
 mod store;
 mod subcommands;
