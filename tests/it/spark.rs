@@ -3,9 +3,7 @@
 //! merged, and the store must equal a single-machine `scan -` of the same file. The documents are
 //! eLife articles (../shared/data/elife-articles, see its SOURCE.txt).
 //!
-//! Ignored by default: starting a JVM and Spark costs about a minute on two shared cores. Run by
-//! hand with `cargo test --test it spark -- --ignored` after
-//! `python3 -m pip install "pyspark==3.5.*"` (Java 17 on PATH).
+//! Needs PySpark (`.ci/run` installs `pyspark==3.5.*`) and Java 17 on PATH; about 17 s here.
 
 use crate::common::*;
 
@@ -24,7 +22,6 @@ sc.stop()
 "#;
 
 #[test]
-#[ignore]
 fn spark_partitions_piped_through_extract_merge_to_a_scan() {
     let Some(articles) = shared_data("elife-articles/articles") else {
         return;
