@@ -1,15 +1,19 @@
 //! Exports of the claim graph that network tools load: node-link JSON (the layout networkx's
-//! `node_link_graph` reads), GraphML and CSV edge and node lists.
+//! `node_link_graph` reads), GraphML, GEXF 1.2, Graphviz DOT, and CSV edge and node lists.
 //!
 //! The export is a wire type ([`Export`]) built from the internal [`ClaimGraph`], so the
 //! aggregation can change without changing the files. XML is written with quick-xml, which
-//! escapes every attribute value and text node.
+//! escapes every attribute value and text node; DOT with petgraph's `dot` module, which escapes
+//! labels, plus [`dot_quote`] for the other string attributes; CSV with the csv crate.
 
 use crate::graph::{ClaimGraph, Relation};
 use crate::model::{Modality, Polarity};
-use quick_xml::events::{BytesDecl, Event};
+use crate::weight::WeightSpec;
+use petgraph::graph::NodeIndex;
+use quick_xml::events::{BytesDecl, BytesText, Event};
 use quick_xml::Writer;
 use serde::Serialize;
+use std::collections::{BTreeSet, HashSet, VecDeque};
 use std::io::Write;
 
 /// One variable in an export.
@@ -26,9 +30,12 @@ pub struct ExportNode {
 pub struct ExportEdge {
     pub source: String,
     pub target: String,
+    /// Raw causal claims (mentions) on this edge.
     pub mentions: usize,
     pub documents: usize,
     pub sentences: usize,
+    /// Association claims between the same two variables (either order): the other kind.
+    pub association: usize,
     pub asserted: usize,
     pub hedged: usize,
     pub negated: usize,
@@ -39,12 +46,18 @@ pub struct ExportEdge {
     pub unsigned: usize,
     pub prevent: usize,
     pub no_effect: usize,
-    /// (increase + prevent-as-decrease difference) / signed claims, in [-1, 1]; 0 when unsigned.
+    /// (increase − decrease − prevent) / signed claims, over non-negated claims, in [-1, 1];
+    /// 0 when none is signed.
     pub net_sign: f64,
-    /// Distinct documents, hedged-only documents at half weight, denying documents at -1.
+    /// See [`crate::weight`]; the rule is in [`Export::weight_rule`].
     pub weight: f64,
-    /// support(this) / (support(this) + support(reverse)).
+    /// The weight of the reverse edge (effect → cause), 0 when there is none.
+    pub reverse_weight: f64,
+    /// support(this) / (support(this) + support(reverse)), support = non-negated claims.
     pub direction_ratio: f64,
+    /// Evidence sentence ids (`document:line@byte`), only with `Selection::evidence`.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub evidence: Vec<String>,
 }
 
 /// The selected part of the graph.
@@ -52,6 +65,9 @@ pub struct ExportEdge {
 pub struct Export {
     pub nodes: Vec<ExportNode>,
     pub edges: Vec<ExportEdge>,
+    pub weight_rule: String,
+    /// Mentions that `--dedupe` dropped as near-duplicates (0 without it).
+    pub duplicates_removed: usize,
 }
 
 /// Which edges to export.
@@ -61,53 +77,60 @@ pub struct Selection {
     pub min_claims: usize,
     /// Keep the N heaviest edges (0: all).
     pub top: usize,
+    /// Only edges between these variable keys.
+    pub vars: Option<BTreeSet<String>>,
+    /// Only the neighbourhood of this variable key, within `hops` edges (either direction).
+    pub around: Option<String>,
+    pub hops: usize,
+    /// Attach evidence sentence ids.
+    pub evidence: bool,
+    pub weight: WeightSpec,
+    /// Passed through to [`Export::duplicates_removed`].
+    pub duplicates_removed: usize,
 }
 
-/// The default weight: each distinct document counts once, with the mean value of its claims
-/// (asserted 1, hedged 0.5, conditional 0.5, question 0, negated or "no effect" -1).
-pub fn default_weight(g: &ClaimGraph, rel: &Relation) -> f64 {
-    let mut per_doc: std::collections::BTreeMap<&str, (f64, usize)> = Default::default();
-    for &r in &rel.rows {
-        let row = &g.rows[r];
-        let v = if row.polarity == Polarity::None || row.modality == Modality::Negated {
-            -1.0
-        } else {
-            match row.modality {
-                Modality::Asserted => 1.0,
-                Modality::Hedged | Modality::Conditional => 0.5,
-                _ => 0.0,
-            }
-        };
-        let e = per_doc.entry(row.doc.as_str()).or_default();
-        e.0 += v;
-        e.1 += 1;
-    }
-    per_doc.values().map(|(s, n)| s / *n as f64).sum()
+/// The sentence id used as evidence: `document:line@byte offset of the sentence`.
+pub fn sentence_id(g: &ClaimGraph, row: usize) -> String {
+    let r = &g.rows[row];
+    format!("{}:{}@{}", r.doc, r.line, r.sentence)
 }
 
 fn edge_of(
     g: &ClaimGraph,
-    a: petgraph::graph::NodeIndex,
-    b: petgraph::graph::NodeIndex,
+    a: NodeIndex,
+    b: NodeIndex,
     rel: &Relation,
+    s: &Selection,
 ) -> ExportEdge {
     let c = &rel.counts;
-    let inc = c.polarity(Polarity::Increase);
-    let dec = c.polarity(Polarity::Decrease) + c.polarity(Polarity::Prevent);
+    let inc = c.stated(Polarity::Increase);
+    let dec = c.stated(Polarity::Decrease) + c.stated(Polarity::Prevent);
     let fwd = rel.support();
-    let back = g.edge(b, a).map(|r| r.support()).unwrap_or(0);
+    let back_rel = g.edge(b, a);
+    let back = back_rel.map(|r| r.support()).unwrap_or(0);
+    let mut evidence = Vec::new();
+    if s.evidence {
+        let mut seen = HashSet::new();
+        for &r in &rel.rows {
+            let id = sentence_id(g, r);
+            if seen.insert(id.clone()) {
+                evidence.push(id);
+            }
+        }
+    }
     ExportEdge {
         source: g.graph[a].key.clone(),
         target: g.graph[b].key.clone(),
         mentions: c.total,
         documents: rel.docs.len(),
         sentences: rel.sentences.len(),
+        association: g.association(a, b).map(|r| r.counts.total).unwrap_or(0),
         asserted: c.modality(Modality::Asserted),
         hedged: c.modality(Modality::Hedged),
         negated: c.modality(Modality::Negated),
         question: c.modality(Modality::Question),
         conditional: c.modality(Modality::Conditional),
-        increase: inc,
+        increase: c.polarity(Polarity::Increase),
         decrease: c.polarity(Polarity::Decrease),
         unsigned: c.polarity(Polarity::Unsigned),
         prevent: c.polarity(Polarity::Prevent),
@@ -117,21 +140,68 @@ fn edge_of(
         } else {
             0.0
         },
-        weight: default_weight(g, rel),
+        weight: s.weight.weight(g, rel),
+        reverse_weight: back_rel.map(|r| s.weight.weight(g, r)).unwrap_or(0.0),
         direction_ratio: if fwd + back > 0 {
             fwd as f64 / (fwd + back) as f64
         } else {
             0.0
         },
+        evidence,
     }
+}
+
+/// The edges that pass the count and variable filters, then the neighbourhood filter.
+pub fn selected_edges(g: &ClaimGraph, s: &Selection) -> Vec<(NodeIndex, NodeIndex)> {
+    let in_vars = |n: NodeIndex| s.vars.as_ref().is_none_or(|v| v.contains(&g.graph[n].key));
+    let mut edges: Vec<(NodeIndex, NodeIndex)> = g
+        .edges()
+        .filter(|(a, b, r)| {
+            r.docs.len() >= s.min_docs
+                && r.counts.total >= s.min_claims
+                && in_vars(*a)
+                && in_vars(*b)
+        })
+        .map(|(a, b, _)| (a, b))
+        .collect();
+    if let Some(center) = &s.around {
+        let Some(&c) = g.index.get(center) else {
+            return Vec::new();
+        };
+        let mut adj: std::collections::HashMap<NodeIndex, Vec<NodeIndex>> = Default::default();
+        for &(a, b) in &edges {
+            adj.entry(a).or_default().push(b);
+            adj.entry(b).or_default().push(a);
+        }
+        let mut dist: std::collections::HashMap<NodeIndex, usize> = Default::default();
+        dist.insert(c, 0);
+        let mut queue = VecDeque::from([c]);
+        while let Some(n) = queue.pop_front() {
+            let d = dist[&n];
+            if d >= s.hops {
+                continue;
+            }
+            for &m in adj.get(&n).into_iter().flatten() {
+                if !dist.contains_key(&m) {
+                    dist.insert(m, d + 1);
+                    queue.push_back(m);
+                }
+            }
+        }
+        // An edge is in the neighbourhood when it leaves a node closer than `hops`.
+        edges.retain(|(a, b)| {
+            let (da, db) = (dist.get(a), dist.get(b));
+            matches!((da, db), (Some(x), Some(y)) if x.min(y) < &s.hops)
+        });
+    }
+    edges
 }
 
 /// Select edges and the nodes they touch.
 pub fn select(g: &ClaimGraph, s: &Selection) -> Export {
-    let mut edges: Vec<ExportEdge> = g
-        .edges()
-        .filter(|(_, _, r)| r.docs.len() >= s.min_docs && r.counts.total >= s.min_claims)
-        .map(|(a, b, r)| edge_of(g, a, b, r))
+    let mut edges: Vec<ExportEdge> = selected_edges(g, s)
+        .into_iter()
+        .filter_map(|(a, b)| g.edge(a, b).map(|r| edge_of(g, a, b, r, s)))
         .collect();
     edges.sort_by(|x, y| {
         y.weight
@@ -141,9 +211,10 @@ pub fn select(g: &ClaimGraph, s: &Selection) -> Export {
     if s.top > 0 {
         edges.truncate(s.top);
     }
-    let keys: std::collections::BTreeSet<&str> = edges
+    let keys: BTreeSet<&str> = edges
         .iter()
         .flat_map(|e| [e.source.as_str(), e.target.as_str()])
+        .chain(s.around.as_deref().filter(|k| g.index.contains_key(*k)))
         .collect();
     let nodes = keys
         .into_iter()
@@ -155,26 +226,55 @@ pub fn select(g: &ClaimGraph, s: &Selection) -> Export {
             documents: v.docs,
         })
         .collect();
-    Export { nodes, edges }
+    Export {
+        nodes,
+        edges,
+        weight_rule: s.weight.describe(),
+        duplicates_removed: s.duplicates_removed,
+    }
 }
 
 /// Node-link JSON as networkx's `node_link_graph(data, edges="edges")` reads it.
 pub fn write_json(out: &mut impl Write, e: &Export) -> std::io::Result<()> {
     let v = serde_json::json!({
-        "directed": true, "multigraph": false, "graph": {},
+        "directed": true, "multigraph": false,
+        "graph": {"weight_rule": e.weight_rule, "duplicates_removed": e.duplicates_removed},
         "nodes": e.nodes, "edges": e.edges,
     });
     serde_json::to_writer_pretty(&mut *out, &v)?;
     out.write_all(b"\n")
 }
 
-const NODE_ATTRS: &[(&str, &str)] = &[
-    ("label", "string"),
-    ("mentions", "int"),
-    ("documents", "int"),
-];
+/// An attribute's type, as the XML formats name it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum AttrType {
+    Int,
+    Double,
+    Text,
+}
 
-fn edge_attrs(e: &ExportEdge) -> Vec<(String, &'static str, String)> {
+impl AttrType {
+    fn graphml(self) -> &'static str {
+        match self {
+            AttrType::Int => "int",
+            AttrType::Double => "double",
+            AttrType::Text => "string",
+        }
+    }
+    fn gexf(self) -> &'static str {
+        match self {
+            AttrType::Int => "integer",
+            AttrType::Double => "double",
+            AttrType::Text => "string",
+        }
+    }
+}
+
+/// Separator of the evidence ids in the flat formats (GraphML, GEXF, DOT, CSV).
+pub const EVIDENCE_SEPARATOR: &str = " | ";
+
+/// An edge's attributes (all but source and target) as (name, type, value) in field order.
+pub fn edge_attrs(e: &ExportEdge) -> Vec<(String, AttrType, String)> {
     let v = serde_json::to_value(e).unwrap_or_default();
     let mut out = Vec::new();
     if let serde_json::Value::Object(m) = v {
@@ -182,57 +282,87 @@ fn edge_attrs(e: &ExportEdge) -> Vec<(String, &'static str, String)> {
             if k == "source" || k == "target" {
                 continue;
             }
-            let ty = if val.is_f64() { "double" } else { "int" };
-            out.push((k, ty, val.to_string()));
+            let (ty, text) = match &val {
+                serde_json::Value::Array(items) => (
+                    AttrType::Text,
+                    items
+                        .iter()
+                        .filter_map(|i| i.as_str())
+                        .collect::<Vec<_>>()
+                        .join(EVIDENCE_SEPARATOR),
+                ),
+                serde_json::Value::String(s) => (AttrType::Text, s.clone()),
+                x if x.is_f64() => (AttrType::Double, x.to_string()),
+                x => (AttrType::Int, x.to_string()),
+            };
+            out.push((k, ty, text));
         }
     }
     out
 }
 
-/// GraphML, with one `<key>` per attribute.
-pub fn write_graphml(out: &mut impl Write, e: &Export) -> quick_xml::Result<()> {
+const NODE_ATTRS: &[(&str, AttrType)] = &[
+    ("label", AttrType::Text),
+    ("mentions", AttrType::Int),
+    ("documents", AttrType::Int),
+];
+
+fn node_values(n: &ExportNode) -> [String; 3] {
+    [
+        n.label.clone(),
+        n.mentions.to_string(),
+        n.documents.to_string(),
+    ]
+}
+
+type XmlResult = quick_xml::Result<()>;
+
+/// GraphML, with one `<key>` per attribute and the weight rule as graph data.
+pub fn write_graphml(out: &mut impl Write, e: &Export) -> XmlResult {
     let mut w = Writer::new_with_indent(out, b' ', 2);
     w.write_event(Event::Decl(BytesDecl::new("1.0", Some("UTF-8"), None)))?;
     let sample = e.edges.first().map(edge_attrs).unwrap_or_default();
+    let graph_data = [
+        ("weight_rule", AttrType::Text, e.weight_rule.clone()),
+        (
+            "duplicates_removed",
+            AttrType::Int,
+            e.duplicates_removed.to_string(),
+        ),
+    ];
     w.create_element("graphml")
         .with_attribute(("xmlns", "http://graphml.graphdrawing.org/xmlns"))
         .write_inner_content(|w| {
-            for (name, ty) in NODE_ATTRS {
+            let keys = graph_data
+                .iter()
+                .map(|(n, t, _)| ("graph", *n, *t))
+                .chain(NODE_ATTRS.iter().map(|(n, t)| ("node", *n, *t)))
+                .chain(sample.iter().map(|(n, t, _)| ("edge", n.as_str(), *t)));
+            for (class, name, ty) in keys {
+                // Ids are unique per class (an edge and a node attribute may share a name).
+                let id = format!("{class}_{name}");
                 w.create_element("key")
                     .with_attributes([
-                        ("id", *name),
-                        ("for", "node"),
-                        ("attr.name", *name),
-                        ("attr.type", *ty),
-                    ])
-                    .write_empty()?;
-            }
-            for (name, ty, _) in &sample {
-                w.create_element("key")
-                    .with_attributes([
-                        ("id", name.as_str()),
-                        ("for", "edge"),
-                        ("attr.name", name.as_str()),
-                        ("attr.type", *ty),
+                        ("id", id.as_str()),
+                        ("for", class),
+                        ("attr.name", name),
+                        ("attr.type", ty.graphml()),
                     ])
                     .write_empty()?;
             }
             w.create_element("graph")
                 .with_attributes([("id", "G"), ("edgedefault", "directed")])
                 .write_inner_content(|w| {
+                    for (name, _, v) in &graph_data {
+                        data(w, &format!("graph_{name}"), v)?;
+                    }
                     for n in &e.nodes {
-                        let vals = [
-                            n.label.clone(),
-                            n.mentions.to_string(),
-                            n.documents.to_string(),
-                        ];
+                        let vals = node_values(n);
                         w.create_element("node")
                             .with_attribute(("id", n.id.as_str()))
                             .write_inner_content(|w| {
                                 for ((name, _), v) in NODE_ATTRS.iter().zip(vals.iter()) {
-                                    w.create_element("data")
-                                        .with_attribute(("key", *name))
-                                        .write_text_content(quick_xml::events::BytesText::new(v))?;
+                                    data(w, &format!("node_{name}"), v)?;
                                 }
                                 Ok(())
                             })?;
@@ -245,11 +375,7 @@ pub fn write_graphml(out: &mut impl Write, e: &Export) -> quick_xml::Result<()> 
                             ])
                             .write_inner_content(|w| {
                                 for (name, _, v) in edge_attrs(ed) {
-                                    w.create_element("data")
-                                        .with_attribute(("key", name.as_str()))
-                                        .write_text_content(quick_xml::events::BytesText::new(
-                                            &v,
-                                        ))?;
+                                    data(w, &format!("edge_{name}"), &v)?;
                                 }
                                 Ok(())
                             })?;
@@ -259,4 +385,253 @@ pub fn write_graphml(out: &mut impl Write, e: &Export) -> quick_xml::Result<()> 
             Ok(())
         })?;
     Ok(())
+}
+
+fn data<W: Write>(w: &mut Writer<W>, key: &str, v: &str) -> std::io::Result<()> {
+    w.create_element("data")
+        .with_attribute(("key", key))
+        .write_text_content(BytesText::new(v))?;
+    Ok(())
+}
+
+/// GEXF 1.2 (the version networkx reads and writes by default). The edge weight is GEXF's own
+/// `weight` attribute; the other counts are declared attributes; the weight rule is the
+/// `<meta><description>`.
+pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
+    let mut w = Writer::new_with_indent(out, b' ', 2);
+    w.write_event(Event::Decl(BytesDecl::new("1.0", Some("UTF-8"), None)))?;
+    let sample: Vec<(String, AttrType)> = e
+        .edges
+        .first()
+        .map(edge_attrs)
+        .unwrap_or_default()
+        .into_iter()
+        .filter(|(n, _, _)| n != "weight")
+        .map(|(n, t, _)| (n, t))
+        .collect();
+    let node_attrs = &NODE_ATTRS[1..];
+    w.create_element("gexf")
+        .with_attributes([
+            ("xmlns", "http://www.gexf.net/1.2draft"),
+            ("version", "1.2"),
+        ])
+        .write_inner_content(|w| {
+            w.create_element("meta").write_inner_content(|w| {
+                w.create_element("creator")
+                    .write_text_content(BytesText::new("hearsay"))?;
+                w.create_element("description")
+                    .write_text_content(BytesText::new(&format!(
+                        "{}; duplicates removed: {}",
+                        e.weight_rule, e.duplicates_removed
+                    )))?;
+                Ok(())
+            })?;
+            w.create_element("graph")
+                .with_attributes([("defaultedgetype", "directed"), ("mode", "static")])
+                .write_inner_content(|w| {
+                    let classes: [(&str, Vec<(&str, AttrType)>); 2] = [
+                        ("node", node_attrs.to_vec()),
+                        (
+                            "edge",
+                            sample.iter().map(|(n, t)| (n.as_str(), *t)).collect(),
+                        ),
+                    ];
+                    for (class, attrs) in &classes {
+                        w.create_element("attributes")
+                            .with_attributes([("class", *class), ("mode", "static")])
+                            .write_inner_content(|w| {
+                                for (name, ty) in attrs {
+                                    w.create_element("attribute")
+                                        .with_attributes([
+                                            ("id", *name),
+                                            ("title", *name),
+                                            ("type", ty.gexf()),
+                                        ])
+                                        .write_empty()?;
+                                }
+                                Ok(())
+                            })?;
+                    }
+                    w.create_element("nodes").write_inner_content(|w| {
+                        for n in &e.nodes {
+                            let vals = node_values(n);
+                            w.create_element("node")
+                                .with_attributes([
+                                    ("id", n.id.as_str()),
+                                    ("label", n.label.as_str()),
+                                ])
+                                .write_inner_content(|w| {
+                                    let pairs =
+                                        node_attrs.iter().map(|(n, _)| *n).zip(vals[1..].iter());
+                                    attvalues(w, pairs)
+                                })?;
+                        }
+                        Ok(())
+                    })?;
+                    w.create_element("edges").write_inner_content(|w| {
+                        for (i, ed) in e.edges.iter().enumerate() {
+                            let id = i.to_string();
+                            let weight = ed.weight.to_string();
+                            let attrs: Vec<(String, AttrType, String)> = edge_attrs(ed)
+                                .into_iter()
+                                .filter(|(n, _, _)| n != "weight")
+                                .collect();
+                            w.create_element("edge")
+                                .with_attributes([
+                                    ("id", id.as_str()),
+                                    ("source", ed.source.as_str()),
+                                    ("target", ed.target.as_str()),
+                                    ("weight", weight.as_str()),
+                                ])
+                                .write_inner_content(|w| {
+                                    attvalues(w, attrs.iter().map(|(n, _, v)| (n.as_str(), v)))
+                                })?;
+                        }
+                        Ok(())
+                    })?;
+                    Ok(())
+                })?;
+            Ok(())
+        })?;
+    Ok(())
+}
+
+fn attvalues<'a, W: Write>(
+    w: &mut Writer<W>,
+    pairs: impl Iterator<Item = (&'a str, &'a String)>,
+) -> std::io::Result<()> {
+    w.create_element("attvalues").write_inner_content(|w| {
+        for (name, v) in pairs {
+            w.create_element("attvalue")
+                .with_attributes([("for", name), ("value", v.as_str())])
+                .write_empty()?;
+        }
+        Ok(())
+    })?;
+    Ok(())
+}
+
+/// A DOT double-quoted string: backslashes and quotes escaped, line breaks as `\n`.
+pub fn dot_quote(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 2);
+    out.push('"');
+    for c in s.chars() {
+        match c {
+            '"' => out.push_str("\\\""),
+            '\\' => out.push_str("\\\\"),
+            '\n' => out.push_str("\\n"),
+            '\r' => {}
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
+}
+
+struct DotNode<'a>(&'a ExportNode);
+
+impl std::fmt::Display for DotNode<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0.label)
+    }
+}
+
+struct DotEdge<'a>(&'a ExportEdge);
+
+impl std::fmt::Display for DotEdge<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}", self.0.weight)
+    }
+}
+
+/// Graphviz DOT, written by petgraph's `dot` module: node labels are the variable labels, edge
+/// labels the weights; the key and every count are attributes; the weight rule is the graph's
+/// `comment`. Nodes are numbered; their `key` attribute is the variable key.
+pub fn write_dot(out: &mut impl Write, e: &Export) -> std::io::Result<()> {
+    use petgraph::dot::{Config, Dot};
+    let mut g: petgraph::graph::DiGraph<DotNode, DotEdge> = Default::default();
+    let mut at = std::collections::HashMap::new();
+    for n in &e.nodes {
+        at.insert(n.id.as_str(), g.add_node(DotNode(n)));
+    }
+    for ed in &e.edges {
+        if let (Some(&a), Some(&b)) = (at.get(ed.source.as_str()), at.get(ed.target.as_str())) {
+            g.add_edge(a, b, DotEdge(ed));
+        }
+    }
+    let node_attrs = |_, (_, n): (NodeIndex, &DotNode)| {
+        format!(
+            "key = {} mentions = {} documents = {} ",
+            dot_quote(&n.0.id),
+            n.0.mentions,
+            n.0.documents
+        )
+    };
+    let edge_attrs_fn = |_, er: petgraph::graph::EdgeReference<DotEdge>| {
+        let mut s = String::new();
+        for (name, ty, v) in edge_attrs(er.weight().0) {
+            let v = if ty == AttrType::Text {
+                dot_quote(&v)
+            } else {
+                v
+            };
+            s.push_str(&format!("{name} = {v} "));
+        }
+        s
+    };
+    let dot = Dot::with_attr_getters(&g, &[Config::GraphContentOnly], &edge_attrs_fn, &node_attrs);
+    writeln!(out, "digraph claims {{")?;
+    writeln!(
+        out,
+        "    graph [ comment = {} ]",
+        dot_quote(&format!(
+            "{}; duplicates removed: {}",
+            e.weight_rule, e.duplicates_removed
+        ))
+    )?;
+    write!(out, "{dot}")?;
+    writeln!(out, "}}")
+}
+
+/// The CSV edge list: `source,target` and every edge attribute, one edge a row.
+pub fn write_edges_csv(out: &mut impl Write, e: &Export) -> Result<(), csv::Error> {
+    let mut w = csv::Writer::from_writer(out);
+    let names: Vec<String> = e
+        .edges
+        .first()
+        .map(|x| edge_attrs(x).into_iter().map(|a| a.0).collect())
+        .unwrap_or_default();
+    let mut header = vec!["source".to_string(), "target".to_string()];
+    header.extend(names);
+    w.write_record(&header)?;
+    for ed in &e.edges {
+        let mut row = vec![ed.source.clone(), ed.target.clone()];
+        row.extend(edge_attrs(ed).into_iter().map(|a| a.2));
+        w.write_record(&row)?;
+    }
+    w.flush()?;
+    Ok(())
+}
+
+/// The CSV node list: `id,label,mentions,documents`.
+pub fn write_nodes_csv(out: &mut impl Write, e: &Export) -> Result<(), csv::Error> {
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record(["id", "label", "mentions", "documents"])?;
+    for n in &e.nodes {
+        let [label, m, d] = node_values(n);
+        w.write_record([n.id.clone(), label, m, d])?;
+    }
+    w.flush()?;
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn dot_strings_are_escaped() {
+        assert_eq!(dot_quote(r#"a "b" \c"#), r#""a \"b\" \\c""#);
+        assert_eq!(dot_quote("x\ny"), r#""x\ny""#);
+    }
 }

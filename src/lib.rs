@@ -9,6 +9,7 @@
 //! [`normalize`] (variable keys) → [`store`] → [`graph`] → the reports in [`report`].
 //! [`pipeline`] chains the per-document stages; [`patterns`] loads the data files they use.
 
+pub mod analysis;
 pub mod claims;
 pub mod corpus;
 pub mod cues;
@@ -24,10 +25,12 @@ pub mod pipeline;
 pub mod questions;
 pub mod readers;
 pub mod report;
+pub mod score;
 pub mod sentences;
 pub mod spaneval;
 pub mod stats;
 pub mod store;
 pub mod tagger;
+pub mod weight;
 
 pub use model::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};

@@ -1,32 +1,153 @@
-//! `hearsay graph`: export the claim graph for network tools.
+//! `hearsay graph`: export the claim graph for network tools; the weight and repetition options
+//! the graph analyses share.
 
-use super::{ClaimFilter, Global};
+use super::{ClaimFilter, FormatArg, Global, Loaded, Table};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::export::{self, Selection};
+use hearsay::export::{self, Export, Selection};
+use hearsay::weight::{Unit, WeightSpec};
+use std::collections::BTreeSet;
 use std::io::Write;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 #[derive(ValueEnum, Debug, Clone, Copy)]
 pub enum To {
     Graphml,
+    Gexf,
+    Dot,
     Json,
+    Csv,
+}
+
+#[derive(ValueEnum, Debug, Clone, Copy, Default)]
+pub enum UnitArg {
+    #[default]
+    Documents,
+    Sentences,
+    Mentions,
+}
+
+/// How edges are weighted and whether repeated sentences count once (shared by the analyses).
+#[derive(Args, Debug, Clone)]
+pub struct WeightArgs {
+    /// What one unit of edge weight is.
+    #[arg(long, value_enum, default_value = "documents", value_name = "UNIT")]
+    pub weight_by: UnitArg,
+    /// Value of a hedged claim ("may raise").
+    #[arg(
+        long,
+        default_value_t = 0.5,
+        value_name = "X",
+        allow_negative_numbers = true
+    )]
+    pub hedged_weight: f64,
+    /// Value of a conditional claim ("if ..., X raises Y").
+    #[arg(
+        long,
+        default_value_t = 0.5,
+        value_name = "X",
+        allow_negative_numbers = true
+    )]
+    pub conditional_weight: f64,
+    /// Value of a question ("does X raise Y?").
+    #[arg(
+        long,
+        default_value_t = 0.0,
+        value_name = "X",
+        allow_negative_numbers = true
+    )]
+    pub question_weight: f64,
+    /// Value of a negated or "no effect" claim (negative: it counts against the edge).
+    #[arg(long, default_value_t = -1.0, value_name = "X", allow_negative_numbers = true)]
+    pub negated_weight: f64,
+    /// Count near-duplicate sentences of the same claim once (word-3-shingle Jaccard >= 0.8).
+    #[arg(long)]
+    pub dedupe: bool,
+}
+
+impl WeightArgs {
+    pub fn spec(&self) -> WeightSpec {
+        WeightSpec {
+            unit: match self.weight_by {
+                UnitArg::Documents => Unit::Documents,
+                UnitArg::Sentences => Unit::Sentences,
+                UnitArg::Mentions => Unit::Mentions,
+            },
+            hedged: self.hedged_weight,
+            conditional: self.conditional_weight,
+            question: self.question_weight,
+            negated: self.negated_weight,
+            ..WeightSpec::default()
+        }
+    }
+
+    /// Build the graph with these options.
+    pub fn load(&self, g: &Global, filter: &ClaimFilter) -> Result<Loaded> {
+        load(g, filter, self.dedupe)
+    }
+}
+
+/// Build the graph, saying on stderr what deduplication removed.
+pub fn load(g: &Global, filter: &ClaimFilter, dedupe: bool) -> Result<Loaded> {
+    let loaded = g.graph_deduped(&filter.to_filter(), dedupe)?;
+    if dedupe && !g.quiet {
+        eprintln!(
+            "hearsay: --dedupe removed {} near-duplicate mentions",
+            loaded.duplicates_removed
+        );
+    }
+    Ok(loaded)
+}
+
+/// Read a variable list (one name per line, `#` comments) into keys, through aliases.
+pub fn read_vars(loaded: &Loaded, path: &Path) -> Result<Vec<(String, String)>> {
+    let text =
+        std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
+    let mut out: Vec<(String, String)> = Vec::new();
+    for (i, l) in text.lines().enumerate() {
+        let l = l.trim();
+        if l.is_empty() || l.starts_with('#') {
+            continue;
+        }
+        let key = loaded
+            .aliases
+            .resolve(&loaded.normalizer.key(l))
+            .to_string();
+        if key.is_empty() {
+            anyhow::bail!(
+                "{}:{}: '{l}' has no content words, so it names no variable",
+                path.display(),
+                i + 1
+            );
+        }
+        if !out.iter().any(|(_, k)| *k == key) {
+            out.push((l.to_string(), key));
+        }
+    }
+    if out.is_empty() {
+        anyhow::bail!("{}: no variables in the file", path.display());
+    }
+    Ok(out)
 }
 
 #[derive(Args, Debug)]
 #[command(
-    after_help = "Exports causal edges (cause → effect) with their counts. The weight is \
-distinct documents, each counted with the mean value of its claims: asserted 1, hedged and \
-conditional 0.5, question 0, negated or \"no effect\" -1. json is node-link JSON for \
-networkx.node_link_graph(data, edges=\"edges\")."
+    after_help = "Exports causal edges (cause → effect) with their counts. The default \
+weight is distinct documents, each counted with the mean value of its claims: asserted 1, hedged \
+and conditional 0.5, question 0, negated or \"no effect\" -1 (see docs/graph.md; change it with \
+--weight-by and --*-weight). The rule is written into every file. json is node-link JSON for \
+networkx.node_link_graph(data, edges=\"edges\"); csv writes FILE (edges) and FILE.nodes.csv. \
+Choose the file format with the global --format (graphml by default here).\n\nAn edge is a count \
+of statements in text, not evidence that the causation is real."
 )]
 pub struct GraphArgs {
-    /// Export format.
-    #[arg(long, value_enum, default_value = "graphml")]
-    pub to: To,
-    /// Write to FILE instead of stdout.
+    /// Older spelling of --format for this command.
+    #[arg(long, value_enum, hide = true)]
+    pub to: Option<To>,
+    /// Write to FILE instead of stdout (required for csv, which writes two files).
     #[arg(long, short = 'o', value_name = "FILE")]
-    pub output: Option<std::path::PathBuf>,
+    pub output: Option<PathBuf>,
     /// Only edges stated in at least N documents.
     #[arg(long, default_value_t = 1, value_name = "N")]
     pub min_docs: usize,
@@ -36,22 +157,92 @@ pub struct GraphArgs {
     /// Only the N heaviest edges (0: all).
     #[arg(long, default_value_t = 0, value_name = "N")]
     pub top: usize,
+    /// Only edges between the variables listed in FILE (one name a line).
+    #[arg(long, value_name = "FILE")]
+    pub vars: Option<PathBuf>,
+    /// Only the neighbourhood of variable X (edges in either direction, see --hops).
+    #[arg(long, value_name = "X")]
+    pub around: Option<String>,
+    /// With --around: how many edges away from X.
+    #[arg(long, default_value_t = 1, value_name = "K")]
+    pub hops: usize,
+    /// Attach the evidence sentence ids (document:line@byte) to each edge.
+    #[arg(long)]
+    pub evidence: bool,
+    #[command(flatten)]
+    pub weight: WeightArgs,
     #[command(flatten)]
     pub filter: ClaimFilter,
 }
 
+fn file_format(g: &Global, a: &GraphArgs) -> To {
+    match (a.to, g.format) {
+        (Some(t), _) => t,
+        (None, Some(FormatArg::Gexf)) => To::Gexf,
+        (None, Some(FormatArg::Dot)) => To::Dot,
+        (None, Some(FormatArg::Json)) => To::Json,
+        (None, Some(FormatArg::Csv)) => To::Csv,
+        (None, Some(FormatArg::Graphml | FormatArg::Table) | None) => To::Graphml,
+    }
+}
+
 pub fn run(g: &Global, a: &GraphArgs) -> Result<ExitCode> {
-    let loaded = g.graph(&a.filter.to_filter())?;
+    let loaded = a.weight.load(g, &a.filter)?;
+    let vars = match &a.vars {
+        Some(p) => Some(
+            read_vars(&loaded, p)?
+                .into_iter()
+                .map(|v| v.1)
+                .collect::<BTreeSet<String>>(),
+        ),
+        None => None,
+    };
+    let around = match &a.around {
+        Some(x) => Some(loaded.graph.graph[find_var(&loaded, x)?].key.clone()),
+        None => None,
+    };
     let sel = Selection {
         min_docs: a.min_docs,
         min_claims: a.min_claims,
         top: a.top,
+        vars,
+        around,
+        hops: a.hops,
+        evidence: a.evidence,
+        weight: a.weight.spec(),
+        duplicates_removed: loaded.duplicates_removed,
     };
     let e = export::select(&loaded.graph, &sel);
+    let to = file_format(g, a);
+    if g.format == Some(FormatArg::Table) && a.to.is_none() {
+        print_table(&e)?;
+        return Ok(ExitCode::SUCCESS);
+    }
     let mut buf: Vec<u8> = Vec::new();
-    match a.to {
+    match to {
         To::Json => export::write_json(&mut buf, &e)?,
         To::Graphml => export::write_graphml(&mut buf, &e).map_err(|x| anyhow::anyhow!(x))?,
+        To::Gexf => export::write_gexf(&mut buf, &e).map_err(|x| anyhow::anyhow!(x))?,
+        To::Dot => export::write_dot(&mut buf, &e)?,
+        To::Csv => {
+            let Some(p) = &a.output else {
+                anyhow::bail!("--format csv writes an edge list and a node list: give -o FILE (the nodes go to FILE.nodes.csv)");
+            };
+            let mut nodes = Vec::new();
+            export::write_edges_csv(&mut buf, &e)?;
+            export::write_nodes_csv(&mut nodes, &e)?;
+            let np = nodes_path(p);
+            std::fs::write(&np, &nodes)
+                .with_context(|| format!("cannot write {}", np.display()))?;
+        }
+    }
+    if !g.quiet {
+        eprintln!(
+            "hearsay: {} nodes, {} edges; {}",
+            e.nodes.len(),
+            e.edges.len(),
+            e.weight_rule
+        );
     }
     match &a.output {
         Some(p) => {
@@ -60,4 +251,113 @@ pub fn run(g: &Global, a: &GraphArgs) -> Result<ExitCode> {
         None => std::io::stdout().lock().write_all(&buf)?,
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// `edges.csv` → `edges.nodes.csv`.
+fn nodes_path(p: &Path) -> PathBuf {
+    let stem = p
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "graph".into());
+    p.with_file_name(format!("{stem}.nodes.csv"))
+}
+
+fn print_table(e: &Export) -> Result<()> {
+    let mut t = Table::new(&[
+        "cause", "effect", "weight", "docs", "sents", "claims", "neg", "sign", "dir",
+    ]);
+    let labels: std::collections::HashMap<&str, &str> = e
+        .nodes
+        .iter()
+        .map(|n| (n.id.as_str(), n.label.as_str()))
+        .collect();
+    let label = |k: &str| labels.get(k).copied().unwrap_or(k).to_string();
+    for ed in &e.edges {
+        t.row(vec![
+            label(&ed.source),
+            label(&ed.target),
+            format!("{}", ed.weight),
+            ed.documents.to_string(),
+            ed.sentences.to_string(),
+            ed.mentions.to_string(),
+            ed.negated.to_string(),
+            format!("{:+.2}", ed.net_sign),
+            format!("{:.2}", ed.direction_ratio),
+        ]);
+    }
+    let mut out = std::io::stdout().lock();
+    t.print(&mut out)?;
+    writeln!(out, "{}", e.weight_rule)?;
+    if e.duplicates_removed > 0 {
+        writeln!(
+            out,
+            "near-duplicate mentions removed: {}",
+            e.duplicates_removed
+        )?;
+    }
+    Ok(())
+}
+
+/// One evidence sentence as the analyses print it.
+#[derive(Debug, Clone, serde::Serialize)]
+pub struct EvidenceOut {
+    pub location: String,
+    pub polarity: hearsay::Polarity,
+    pub modality: hearsay::Modality,
+    pub sentence: String,
+}
+
+/// The first `n` of `rows` (graph row indices) with their sentences from the store.
+pub fn evidence(loaded: &Loaded, rows: &[usize], n: usize) -> Vec<EvidenceOut> {
+    rows.iter()
+        .take(n)
+        .map(|&r| {
+            let row = &loaded.graph.rows[r];
+            let (location, sentence) = match loaded.store.claim(row.at) {
+                Ok(c) => (c.location(), c.sentence),
+                Err(e) => (
+                    format!("{}:{}", row.doc, row.line),
+                    format!("(evidence unavailable: {e})"),
+                ),
+            };
+            EvidenceOut {
+                location,
+                polarity: row.polarity,
+                modality: row.modality,
+                sentence,
+            }
+        })
+        .collect()
+}
+
+/// Print one evidence line for a terminal.
+pub fn print_evidence(out: &mut impl Write, indent: &str, ev: &[EvidenceOut]) -> Result<()> {
+    for e in ev {
+        writeln!(
+            out,
+            "{indent}{}  [{} {}]  {}",
+            super::escape(&e.location),
+            e.polarity,
+            e.modality,
+            super::escape(&e.sentence)
+        )?;
+    }
+    Ok(())
+}
+
+/// Find a variable the user named, or fail with suggestions.
+pub fn find_var(loaded: &Loaded, name: &str) -> Result<petgraph::graph::NodeIndex> {
+    let (m, n) = hearsay::report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, name);
+    n.ok_or_else(|| {
+        anyhow::anyhow!(
+            "no variable \"{}\" in the claims (key \"{}\"){}",
+            super::escape(name),
+            m.key,
+            if m.suggestions.is_empty() {
+                String::new()
+            } else {
+                format!("; did you mean: {}", m.suggestions.join(", "))
+            }
+        )
+    })
 }

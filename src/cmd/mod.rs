@@ -2,15 +2,20 @@
 //! patterns, the store and the graph).
 
 mod claims;
+mod conflicts;
+mod cycles;
 mod eval;
 mod explain;
 mod extract;
 mod graph;
 mod merge;
+mod matrix;
 mod pair;
+mod paths;
 mod patterns;
 mod questions;
 mod scan;
+mod score;
 mod top;
 mod train_tagger;
 
@@ -66,9 +71,10 @@ pub struct Global {
     /// Map surface forms onto variables: a file of `surface form<TAB>variable name` lines.
     #[arg(long, global = true, value_name = "FILE")]
     pub aliases: Option<PathBuf>,
-    /// Output format (default: table on a terminal, JSON Lines otherwise).
+    /// Output format (default: table on a terminal, JSON Lines otherwise). `graph` also writes
+    /// graphml (its default), gexf and dot.
     #[arg(long, global = true, value_enum)]
-    pub format: Option<Format>,
+    pub format: Option<FormatArg>,
     /// Print no progress or warnings on stderr.
     #[arg(long, short, global = true)]
     pub quiet: bool,
@@ -99,8 +105,18 @@ pub enum Command {
     Eval(eval::EvalArgs),
     /// Train the part-of-speech tagger from CoNLL-U treebanks (writes patterns/tagger.model).
     TrainTagger(train_tagger::TrainTaggerArgs),
-    /// Export the claim graph (GraphML, node-link JSON) for network tools.
+    /// Export the claim graph (GraphML, GEXF, DOT, node-link JSON, CSV) for network tools.
     Graph(graph::GraphArgs),
+    /// Indirect chains of stated edges from X to Y, ranked, with the sign of each chain.
+    Paths(paths::PathsArgs),
+    /// Pairs stated in both directions, with opposite signs, or both asserted and denied.
+    Conflicts(conflicts::ConflictsArgs),
+    /// Directed cycles among edges above a weight threshold.
+    Cycles(cycles::CyclesArgs),
+    /// The edge-weight matrix over a variable list, as CSV (causes on the rows).
+    Matrix(matrix::MatrixArgs),
+    /// Compare the claim graph with a reference diagram: SHD, precision, recall, F1.
+    Score(score::ScoreArgs),
     /// Check or list cue patterns.
     Patterns(patterns::PatternsArgs),
     /// Write the question set for a variable list: every ordered pair in every wording.
@@ -112,6 +128,18 @@ pub enum Format {
     Table,
     Json,
     Csv,
+}
+
+/// What `--format` accepts: the output formats every command has, plus the graph file formats
+/// that only `graph` writes (one flag, so `hearsay graph --format gexf` reads naturally).
+#[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FormatArg {
+    Table,
+    Json,
+    Csv,
+    Graphml,
+    Gexf,
+    Dot,
 }
 
 /// Filters on claims, shared by the query commands.
@@ -150,6 +178,14 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
             .context("cannot set up worker threads")?;
     }
     let g = &cli.global;
+    if let (Some(f @ (FormatArg::Graphml | FormatArg::Gexf | FormatArg::Dot)), false) =
+        (g.format, matches!(cli.command, Command::Graph(_)))
+    {
+        anyhow::bail!(
+            "--format {} is a graph file format: use it with `hearsay graph` (this command writes table, json or csv)",
+            f.to_possible_value().map(|v| v.get_name().to_string()).unwrap_or_default()
+        );
+    }
     match &cli.command {
         Command::Scan(a) => scan::run(g, a),
         Command::Extract(a) => extract::run(g, a),
@@ -163,16 +199,24 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Questions(a) => questions::run(g, a),
         Command::Graph(a) => graph::run(g, a),
         Command::Merge(a) => merge::run(g, a),
+        Command::Paths(a) => paths::run(g, a),
+        Command::Conflicts(a) => conflicts::run(g, a),
+        Command::Cycles(a) => cycles::run(g, a),
+        Command::Matrix(a) => matrix::run(g, a),
+        Command::Score(a) => score::run(g, a),
     }
 }
 
 impl Global {
     pub fn format(&self) -> Format {
-        self.format.unwrap_or(if std::io::stdout().is_terminal() {
-            Format::Table
-        } else {
-            Format::Json
-        })
+        match self.format {
+            Some(FormatArg::Table) => Format::Table,
+            Some(FormatArg::Csv) => Format::Csv,
+            // The graph file formats are rejected in `run` for every command but `graph`.
+            Some(_) => Format::Json,
+            None if std::io::stdout().is_terminal() => Format::Table,
+            None => Format::Json,
+        }
     }
 
     pub fn pattern_set(&self) -> Result<PatternSet> {
@@ -211,18 +255,43 @@ impl Global {
 
     /// Open the store and build its graph.
     pub fn graph(&self, filter: &Filter) -> Result<Loaded> {
+        self.graph_deduped(filter, false)
+    }
+
+    /// Open the store and build its graph; with `dedupe`, near-duplicate sentences of the same
+    /// claim count once (`graph::near_duplicates`), and `Loaded::duplicates_removed` says how many
+    /// rows that dropped.
+    pub fn graph_deduped(&self, filter: &Filter, dedupe: bool) -> Result<Loaded> {
         let store = self.open_store()?;
         // Queries need only the normaliser: compiling the cues would cost more than the query.
         let set = self.pattern_set()?;
         let normalizer = Normalizer::new(&set.lexicon);
         let aliases = Aliases::new(&normalizer, &self.alias_pairs(&set)?);
-        let rows = store.rows().context("cannot read the store's claims")?;
+        let mut rows = store.rows().context("cannot read the store's claims")?;
+        let mut duplicates_removed = 0;
+        if dedupe {
+            let mut texts = Vec::with_capacity(rows.len());
+            for r in &rows {
+                let c = store.claim(r.at).context("cannot read a claim record")?;
+                texts.push(c.sentence);
+            }
+            let dup = hearsay::graph::near_duplicates(
+                &rows,
+                &texts,
+                &aliases,
+                hearsay::graph::DEDUPE_THRESHOLD,
+            );
+            duplicates_removed = dup.iter().filter(|d| **d).count();
+            let mut it = dup.into_iter();
+            rows.retain(|_| !it.next().unwrap_or(false));
+        }
         let graph = ClaimGraph::build(rows, &aliases, filter);
         Ok(Loaded {
             store,
             normalizer,
             aliases,
             graph,
+            duplicates_removed,
         })
     }
 
@@ -239,6 +308,8 @@ pub struct Loaded {
     pub normalizer: Normalizer,
     pub aliases: Aliases,
     pub graph: ClaimGraph,
+    /// Rows dropped as near-duplicates (0 unless built with dedupe).
+    pub duplicates_removed: usize,
 }
 
 /// Replace control characters so that text from the input cannot drive the terminal.

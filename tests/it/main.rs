@@ -4,6 +4,7 @@
 mod common;
 mod external;
 mod graph;
+mod graph_analyses;
 mod hostile;
 mod merge;
 mod quality;

@@ -1,0 +1,130 @@
+//! `hearsay conflicts`: pairs the corpus states inconsistently, with the evidence on each side.
+
+use super::graph::{evidence, print_evidence, EvidenceOut};
+use super::{escape, ClaimFilter, Format, Global};
+use anyhow::Result;
+use clap::Args;
+use hearsay::analysis::{self, Conflict};
+use serde::Serialize;
+use std::io::Write;
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "Three kinds: both-directions (X → Y and Y → X are both stated), \
+opposite-signs (X → Y stated as an increase and as a decrease or prevention), \
+asserted-and-denied (X → Y stated, and denied with \"not\" or \"has no effect on\"). Ranked by the \
+claims on both sides together, then by how even the split is.\n\nA conflict is between \
+statements in text; it says nothing about which is right."
+)]
+pub struct ConflictsArgs {
+    /// Only conflicts with at least N claims on each side.
+    #[arg(long, default_value_t = 1, value_name = "N")]
+    pub min_claims: usize,
+    /// Show at most N conflicts (0: all).
+    #[arg(long, default_value_t = 50, value_name = "N")]
+    pub limit: usize,
+    /// Evidence sentences per side.
+    #[arg(long, default_value_t = 2, value_name = "N")]
+    pub evidence: usize,
+    /// Count near-duplicate sentences of the same claim once.
+    #[arg(long)]
+    pub dedupe: bool,
+    #[command(flatten)]
+    pub filter: ClaimFilter,
+}
+
+#[derive(Serialize)]
+struct ConflictOut<'a> {
+    #[serde(flatten)]
+    conflict: &'a Conflict,
+    evidence: [Vec<EvidenceOut>; 2],
+}
+
+pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
+    let loaded = super::graph::load(g, &a.filter, a.dedupe)?;
+    let mut cs = analysis::conflicts(&loaded.graph, a.min_claims);
+    if a.limit > 0 {
+        cs.truncate(a.limit);
+    }
+    let outs: Vec<ConflictOut> = cs
+        .iter()
+        .map(|c| ConflictOut {
+            conflict: c,
+            evidence: [
+                evidence(&loaded, &c.sides[0].rows, a.evidence),
+                evidence(&loaded, &c.sides[1].rows, a.evidence),
+            ],
+        })
+        .collect();
+    let mut out = std::io::stdout().lock();
+    match g.format() {
+        Format::Json => {
+            for c in &outs {
+                serde_json::to_writer(&mut out, c)?;
+                out.write_all(b"\n")?;
+            }
+        }
+        Format::Csv => {
+            let mut w = csv::Writer::from_writer(&mut out);
+            w.write_record([
+                "kind", "x", "y", "support", "side1", "claims1", "docs1", "side2", "claims2",
+                "docs2",
+            ])?;
+            for c in &cs {
+                let [s1, s2] = &c.sides;
+                w.write_record([
+                    c.kind.as_str().to_string(),
+                    c.x_label.clone(),
+                    c.y_label.clone(),
+                    c.support.to_string(),
+                    s1.reading.to_string(),
+                    s1.claims.to_string(),
+                    s1.documents.to_string(),
+                    s2.reading.to_string(),
+                    s2.claims.to_string(),
+                    s2.documents.to_string(),
+                ])?;
+            }
+            w.flush()?;
+        }
+        Format::Table => {
+            if outs.is_empty() {
+                writeln!(out, "no conflicting statements")?;
+            }
+            for (i, c) in outs.iter().enumerate() {
+                let k = c.conflict;
+                writeln!(
+                    out,
+                    "#{}  {}  {} / {}  ({} claims)",
+                    i + 1,
+                    k.kind.as_str(),
+                    escape(&k.x_label),
+                    escape(&k.y_label),
+                    k.support
+                )?;
+                for (s, ev) in k.sides.iter().zip(c.evidence.iter()) {
+                    let label = |key: &str| {
+                        loaded
+                            .graph
+                            .index
+                            .get(key)
+                            .map(|&n| loaded.graph.graph[n].label.clone())
+                            .unwrap_or_else(|| key.to_string())
+                    };
+                    writeln!(
+                        out,
+                        "  {:<9} {} → {}: {} claims in {} documents",
+                        s.reading,
+                        escape(&label(&s.cause)),
+                        escape(&label(&s.effect)),
+                        s.claims,
+                        s.documents
+                    )?;
+                    print_evidence(&mut out, "      ", ev)?;
+                }
+            }
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,130 @@
+//! `hearsay cycles`: directed cycles among well-stated edges.
+
+use super::graph::{evidence, print_evidence, EvidenceOut, WeightArgs};
+use super::{escape, ClaimFilter, Format, Global};
+use anyhow::Result;
+use clap::Args;
+use hearsay::analysis::{self, Hop};
+use serde::Serialize;
+use std::io::Write;
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "A cycle is A → B → ... → A over edges of at least --min-weight, each \
+reported once, ranked by its weakest link. Feedback stated in text, not evidence of feedback."
+)]
+pub struct CyclesArgs {
+    /// Only edges of at least this weight.
+    #[arg(
+        long,
+        default_value_t = 2.0,
+        value_name = "W",
+        allow_negative_numbers = true
+    )]
+    pub min_weight: f64,
+    /// Longest cycle, in edges.
+    #[arg(long, default_value_t = 4, value_name = "N")]
+    pub max_len: usize,
+    /// Stop after finding N cycles (0: no limit).
+    #[arg(long, default_value_t = 1000, value_name = "N")]
+    pub limit: usize,
+    /// Evidence sentences per hop.
+    #[arg(long, default_value_t = 1, value_name = "N")]
+    pub evidence: usize,
+    #[command(flatten)]
+    pub weight: WeightArgs,
+    #[command(flatten)]
+    pub filter: ClaimFilter,
+}
+
+#[derive(Serialize)]
+struct HopOut<'a> {
+    #[serde(flatten)]
+    hop: &'a Hop,
+    evidence: Vec<EvidenceOut>,
+}
+
+#[derive(Serialize)]
+struct CycleOut<'a> {
+    support: f64,
+    sign: analysis::Sign,
+    hops: Vec<HopOut<'a>>,
+}
+
+pub fn run(g: &Global, a: &CyclesArgs) -> Result<ExitCode> {
+    let loaded = a.weight.load(g, &a.filter)?;
+    let spec = a.weight.spec();
+    let cycles = analysis::cycles(&loaded.graph, &spec, a.min_weight, a.max_len, a.limit);
+    let outs: Vec<CycleOut> = cycles
+        .iter()
+        .map(|c| CycleOut {
+            support: c.support,
+            sign: c.sign,
+            hops: c
+                .hops
+                .iter()
+                .map(|h| HopOut {
+                    hop: h,
+                    evidence: evidence(&loaded, &h.rows, a.evidence),
+                })
+                .collect(),
+        })
+        .collect();
+    let mut out = std::io::stdout().lock();
+    match g.format() {
+        Format::Json => {
+            for c in &outs {
+                serde_json::to_writer(&mut out, c)?;
+                out.write_all(b"\n")?;
+            }
+        }
+        Format::Csv => {
+            let mut w = csv::Writer::from_writer(&mut out);
+            w.write_record(["cycle", "support", "sign", "length", "variables"])?;
+            for (i, c) in outs.iter().enumerate() {
+                let names: Vec<&str> = c.hops.iter().map(|h| h.hop.cause_label.as_str()).collect();
+                w.write_record([
+                    (i + 1).to_string(),
+                    c.support.to_string(),
+                    c.sign.as_str().to_string(),
+                    c.hops.len().to_string(),
+                    names.join(" -> "),
+                ])?;
+            }
+            w.flush()?;
+        }
+        Format::Table => {
+            if outs.is_empty() {
+                writeln!(
+                    out,
+                    "no directed cycle of at most {} edges of weight >= {}",
+                    a.max_len, a.min_weight
+                )?;
+            }
+            for (i, c) in outs.iter().enumerate() {
+                writeln!(
+                    out,
+                    "#{}  {} edges  weakest link {}  sign {}",
+                    i + 1,
+                    c.hops.len(),
+                    c.support,
+                    c.sign.as_str()
+                )?;
+                for h in &c.hops {
+                    writeln!(
+                        out,
+                        "  {} → {}   weight {}, {}",
+                        escape(&h.hop.cause_label),
+                        escape(&h.hop.effect_label),
+                        h.hop.weight,
+                        h.hop.sign.as_str()
+                    )?;
+                    print_evidence(&mut out, "      ", &h.evidence)?;
+                }
+            }
+            writeln!(out, "{}", spec.describe())?;
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}
