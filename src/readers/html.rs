@@ -6,8 +6,8 @@
 //! cannot overflow the stack; input nested deeper than [`MAX_DEPTH`] is refused before parsing,
 //! because the parser's own cost grows with depth.
 
-use super::{collapse_ws, push_block, text::decode_text};
-use crate::corpus::{Document, ReadOptions, Reader, Warnings};
+use super::{collapse_ws, push_block};
+use crate::corpus::{emit_decoded, Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 use ego_tree::iter::Edge;
 use scraper::{Html, Node};
@@ -138,15 +138,7 @@ impl Reader for HtmlReader {
         warnings: &mut Warnings,
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError> {
-        let src = decode_text(label, bytes, warnings)?;
-        emit(Document {
-            path: label.to_string(),
-            record: None,
-            text: html_text(&src)?,
-            page_starts: Vec::new(),
-            lines_are_paragraphs: false,
-        });
-        Ok(())
+        emit_decoded(label, bytes, warnings, emit, |src| html_text(&src))
     }
 }
 
