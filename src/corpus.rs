@@ -144,6 +144,25 @@ pub trait Reader: Send + Sync {
     }
 }
 
+/// The common body of the readers of text-based formats: decode the bytes as text (reporting
+/// any fallback encoding), turn the text into the reader's own text with `extract`, and emit one
+/// document without pages.
+pub fn emit_decoded(
+    label: &str,
+    bytes: &[u8],
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+    extract: impl FnOnce(String) -> Result<String, ReadError>,
+) -> Result<(), ReadError> {
+    let src = crate::readers::text::decode_text(label, bytes, warnings)?;
+    emit(crate::readers::text::text_document(
+        label,
+        None,
+        extract(src)?,
+    ));
+    Ok(())
+}
+
 static TEXT: TextReader = TextReader;
 static MARKDOWN: MarkdownReader = MarkdownReader;
 static HTML: HtmlReader = HtmlReader;

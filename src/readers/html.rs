@@ -2,12 +2,21 @@
 //! boundary; page furniture (script, style, nav, header, footer, aside, noscript, forms, the
 //! head) dropped; entities decoded by the parser.
 //!
+//! Saved pages carry their site's chrome in plain `div`s, so three more rules find the body:
+//! when the page marks its main content (`<main>` or the WAI-ARIA `role="main"`), only that is
+//! read; elements with a WAI-ARIA landmark role that is not content (navigation, banner,
+//! contentinfo, complementary, search) are dropped, and so are elements whose `class` or `id`
+//! names page furniture ([`FURNITURE`]), and lists that are nearly all link text (menus);
+//! and a back-matter heading ("References", "External
+//! links", ...) drops everything up to the next heading of the same or a higher level, unless
+//! references are kept.
+//!
 //! The tree is walked with an explicit iterator, never by recursion, so deeply nested input
 //! cannot overflow the stack; input nested deeper than [`MAX_DEPTH`] is refused before parsing,
 //! because the parser's own cost grows with depth.
 
-use super::{collapse_ws, push_block, text::decode_text};
-use crate::corpus::{Document, ReadOptions, Reader, Warnings};
+use super::{collapse_ws, push_block};
+use crate::corpus::{emit_decoded, Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 use ego_tree::iter::Edge;
 use scraper::{Html, Node};
@@ -23,6 +32,112 @@ const DROPPED: &[&str] = &[
     "script", "style", "nav", "header", "footer", "aside", "noscript", "head", "template", "form",
     "button", "select", "svg", "iframe", "object", "menu",
 ];
+
+/// WAI-ARIA landmark roles that are not the page's content.
+const DROPPED_ROLES: &[&str] = &[
+    "navigation",
+    "banner",
+    "contentinfo",
+    "complementary",
+    "search",
+];
+
+/// Words in a `class` or `id` (whole, or one `-`/`_` part of it) that name page furniture.
+pub const FURNITURE: &[&str] = &[
+    "nav",
+    "navbar",
+    "navigation",
+    "menu",
+    "header",
+    "footer",
+    "sidebar",
+    "breadcrumb",
+    "breadcrumbs",
+    "toolbar",
+    "share",
+    "social",
+    "advert",
+    "advertisement",
+    "ads",
+    "cookie",
+    "banner",
+    "skip",
+    "jump",
+    "noprint",
+    "hatnote",
+    "catlinks",
+    "printfooter",
+    "editsection",
+    "comments",
+];
+
+/// Headings that open back matter rather than body text.
+const BACK_MATTER: &[&str] = &[
+    "references",
+    "bibliography",
+    "works cited",
+    "literature cited",
+    "references and notes",
+    "notes",
+    "footnotes",
+    "citations",
+    "further reading",
+    "external links",
+    "see also",
+];
+
+fn is_furniture(e: &scraper::node::Element) -> bool {
+    if e.attr("role")
+        .is_some_and(|r| DROPPED_ROLES.contains(&r.trim()))
+    {
+        return true;
+    }
+    let names = e.attr("class").into_iter().chain(e.attr("id"));
+    names.flat_map(str::split_whitespace).any(|t| {
+        let t = t.to_ascii_lowercase();
+        FURNITURE.contains(&t.as_str()) || t.split(['-', '_']).any(|p| FURNITURE.contains(&p))
+    })
+}
+
+/// A list whose text is nearly all link text is a menu (a site or in-page table of contents).
+fn is_link_list(n: ego_tree::NodeRef<'_, Node>) -> bool {
+    let Some(el) = scraper::ElementRef::wrap(n) else {
+        return false;
+    };
+    if !matches!(el.value().name(), "ul" | "ol") {
+        return false;
+    }
+    let count = |it: &mut dyn Iterator<Item = &str>| -> usize {
+        it.map(|t| t.chars().filter(|c| !c.is_whitespace()).count())
+            .sum()
+    };
+    let all = count(&mut el.text());
+    let links: usize = el
+        .descendants()
+        .filter_map(scraper::ElementRef::wrap)
+        .filter(|e| e.value().name() == "a")
+        .map(|a| count(&mut a.text()))
+        .sum();
+    all > 0 && links * 10 >= all * 9
+}
+
+fn heading_level(name: &str) -> Option<u8> {
+    match name.as_bytes() {
+        [b'h', d @ b'1'..=b'6'] => Some(d - b'0'),
+        _ => None,
+    }
+}
+
+/// Whether a heading's text names back matter; a trailing "edit" link word is ignored.
+fn is_back_matter(text: &str) -> bool {
+    let words: Vec<String> = text
+        .split(|c: char| !c.is_alphabetic())
+        .filter(|w| !w.is_empty())
+        .map(str::to_lowercase)
+        .collect();
+    let n = words.len() - usize::from(words.last().is_some_and(|w| w == "edit"));
+    BACK_MATTER.contains(&words[..n].join(" ").as_str())
+}
 
 const BLOCKS: &[&str] = &[
     "p",
@@ -78,7 +193,7 @@ fn nesting_estimate(src: &str) -> usize {
 }
 
 /// The block text of an HTML page.
-pub fn html_text(src: &str) -> Result<String, ReadError> {
+pub fn html_text(src: &str, cut_references: bool) -> Result<String, ReadError> {
     if nesting_estimate(src) > MAX_DEPTH * 4 {
         return Err(ReadError::Malformed(format!(
             "HTML nested deeper than {} levels",
@@ -86,24 +201,52 @@ pub fn html_text(src: &str) -> Result<String, ReadError> {
         )));
     }
     let doc = Html::parse_document(src);
+    let main = scraper::Selector::parse("main, [role=main]").ok();
+    let start = main
+        .and_then(|s| doc.select(&s).next())
+        .map(|m| *m)
+        .unwrap_or_else(|| doc.tree.root());
     let mut out = String::new();
     let mut block = String::new();
     let mut skip = 0usize;
     let mut depth = 0usize;
-    for edge in doc.tree.root().traverse() {
+    // The level of the back-matter heading being skipped, if any.
+    let mut back: Option<u8> = None;
+    for edge in start.traverse() {
         match edge {
             Edge::Open(n) => match n.value() {
                 Node::Element(e) => {
                     depth += 1;
                     let name = e.name();
-                    if skip > 0 || DROPPED.contains(&name) || depth > MAX_DEPTH {
+                    if let (Some(level), true) = (heading_level(name), skip == 0 && cut_references)
+                    {
+                        if back.is_some_and(|b| level <= b) {
+                            back = None;
+                        }
+                        if back.is_none() {
+                            let text: String = scraper::ElementRef::wrap(n)
+                                .map(|h| h.text().collect())
+                                .unwrap_or_default();
+                            if is_back_matter(&text) {
+                                push_block(&mut out, &collapse_ws(&block));
+                                block.clear();
+                                back = Some(level);
+                            }
+                        }
+                    }
+                    if skip > 0
+                        || DROPPED.contains(&name)
+                        || depth > MAX_DEPTH
+                        || is_furniture(e)
+                        || is_link_list(n)
+                    {
                         skip += 1;
                     } else if BLOCKS.contains(&name) {
                         push_block(&mut out, &collapse_ws(&block));
                         block.clear();
                     }
                 }
-                Node::Text(t) if skip == 0 => block.push_str(t),
+                Node::Text(t) if skip == 0 && back.is_none() => block.push_str(t),
                 _ => {}
             },
             Edge::Close(n) => {
@@ -134,19 +277,13 @@ impl Reader for HtmlReader {
         &self,
         label: &str,
         bytes: &[u8],
-        _opts: &ReadOptions,
+        opts: &ReadOptions,
         warnings: &mut Warnings,
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError> {
-        let src = decode_text(label, bytes, warnings)?;
-        emit(Document {
-            path: label.to_string(),
-            record: None,
-            text: html_text(&src)?,
-            page_starts: Vec::new(),
-            lines_are_paragraphs: false,
-        });
-        Ok(())
+        emit_decoded(label, bytes, warnings, emit, |src| {
+            html_text(&src, opts.cut_references)
+        })
     }
 }
 
@@ -161,7 +298,7 @@ mod tests {
                  <p>Drought is <b>caused</b> by heat.</p><div>Second block<script>x()</script></div>\
                  <footer>Copyright</footer></body></html>";
         assert_eq!(
-            html_text(h).unwrap(),
+            html_text(h, true).unwrap(),
             "Heat & rain\n\nDrought is caused by heat.\n\nSecond block"
         );
     }
@@ -170,9 +307,23 @@ mod tests {
     fn deep_nesting_neither_overflows_nor_hangs() {
         let n = 100_000;
         let h = format!("{}text{}", "<div>".repeat(n), "</div>".repeat(n));
-        assert!(html_text(&h).is_err());
+        assert!(html_text(&h, true).is_err());
         let n = 3000;
         let h = format!("{}deep text{}", "<span>".repeat(n), "</span>".repeat(n));
-        assert!(html_text(&h).unwrap().contains("deep text"));
+        assert!(html_text(&h, true).unwrap().contains("deep text"));
+    }
+
+    #[test]
+    fn main_content_landmarks_furniture_classes_and_back_matter() {
+        let h = "<html><body><div class=\"site-nav\">Home</div><div role=\"main\">\
+                 <div role=\"navigation\">Contents</div><ul><li><a href=\"#r\">Results</a></li></ul><h2>Results<span class=\"mw-editsection\">\
+                 [edit]</span></h2><p>Heat causes drought.</p><h2>References[edit]</h2>\
+                 <h3>Books</h3><p>A. Author (2020).</p><h2>Discussion</h2><p>Rain helps.</p>\
+                 </div><div>outside main</div></body></html>";
+        assert_eq!(
+            html_text(h, true).unwrap(),
+            "Results\n\nHeat causes drought.\n\nDiscussion\n\nRain helps."
+        );
+        assert!(html_text(h, false).unwrap().contains("A. Author"));
     }
 }

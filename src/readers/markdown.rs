@@ -2,8 +2,8 @@
 //! out; headings, paragraphs, list items, quotes and table cells each end a block, so each is a
 //! sentence boundary. Offsets are into the extracted text.
 
-use super::{collapse_ws, push_block, text::decode_text};
-use crate::corpus::{Document, ReadOptions, Reader, Warnings};
+use super::{collapse_ws, push_block};
+use crate::corpus::{emit_decoded, Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 use pulldown_cmark::{Event, Options, Parser, Tag, TagEnd};
 
@@ -69,15 +69,7 @@ impl Reader for MarkdownReader {
         warnings: &mut Warnings,
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError> {
-        let src = decode_text(label, bytes, warnings)?;
-        emit(Document {
-            path: label.to_string(),
-            record: None,
-            text: markdown_text(&src),
-            page_starts: Vec::new(),
-            lines_are_paragraphs: false,
-        });
-        Ok(())
+        emit_decoded(label, bytes, warnings, emit, |src| Ok(markdown_text(&src)))
     }
 }
 

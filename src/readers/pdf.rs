@@ -7,6 +7,10 @@
 //! the text stops at a line that is only "References", "Bibliography" or the like, unless
 //! `--keep-references` is given. `page_starts` records where each page's text begins, so claims
 //! carry their page. A PDF without extractable text (a scan) is an error saying so.
+//!
+//! Typographic ligatures (U+FB00–U+FB06, "ﬁ" for "fi") are spelt out so words match their
+//! plain spelling, and lines that are mostly one-character tokens (glyphs without a usable
+//! character map, or figure axis labels) are dropped as not prose.
 
 use crate::corpus::{Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
@@ -18,6 +22,41 @@ pub struct PdfReader;
 
 /// How many lines at each end of a page are looked at for running headers and footers.
 const EDGE_LINES: usize = 3;
+
+/// Spell out the Latin ligatures of the Alphabetic Presentation Forms block.
+fn expand_ligatures(s: &str) -> std::borrow::Cow<'_, str> {
+    if !s.chars().any(|c| ('\u{FB00}'..='\u{FB06}').contains(&c)) {
+        return s.into();
+    }
+    let mut out = String::with_capacity(s.len() + 8);
+    for c in s.chars() {
+        match c {
+            '\u{FB00}' => out.push_str("ff"),
+            '\u{FB01}' => out.push_str("fi"),
+            '\u{FB02}' => out.push_str("fl"),
+            '\u{FB03}' => out.push_str("ffi"),
+            '\u{FB04}' => out.push_str("ffl"),
+            '\u{FB05}' | '\u{FB06}' => out.push_str("st"),
+            c => out.push(c),
+        }
+    }
+    out.into()
+}
+
+/// A line of at least eight tokens, most of them one character long, or a line that is one
+/// fifth control characters (two-byte glyph codes read as bytes): not prose.
+fn is_glyph_soup(s: &str) -> bool {
+    let control = s.chars().filter(|c| c.is_control()).count();
+    if control * 5 >= s.chars().count() && control > 0 {
+        return true;
+    }
+    let (mut n, mut single) = (0usize, 0usize);
+    for t in s.split_whitespace() {
+        n += 1;
+        single += usize::from(t.chars().count() == 1);
+    }
+    n >= 8 && single * 3 >= n * 2
+}
 
 fn mask_digits(s: &str) -> String {
     s.chars()
@@ -89,14 +128,18 @@ pub fn clean_pages(pages: &[String], cut_references: bool) -> (String, Vec<usize
         let mut idx = 0usize;
         let mut para = String::new();
         for raw in lines.lines() {
-            let line = raw.trim();
+            let expanded = expand_ligatures(raw.trim());
+            let line = expanded.as_ref();
             if line.is_empty() {
                 push_para(&mut out, &mut para, &mut pending, &mut starts);
                 continue;
             }
             let at_edge = idx < EDGE_LINES || idx + EDGE_LINES >= n;
             idx += 1;
-            if is_page_number(line) || (at_edge && running.contains_key(&mask_digits(line))) {
+            if is_page_number(line)
+                || is_glyph_soup(line)
+                || (at_edge && running.contains_key(&mask_digits(line)))
+            {
                 continue;
             }
             if cut_references && is_references_heading(line) && !out.is_empty() {
@@ -205,6 +248,15 @@ mod tests {
         assert_eq!(starts, vec![t.find("Rain").unwrap()]);
         let (t, _) = clean_pages(&pages, false);
         assert!(t.contains("A. Author"));
+    }
+
+    #[test]
+    fn ligatures_are_spelt_out_and_glyph_soup_dropped() {
+        let pages = vec![
+            "The \u{FB01}eld \u{FB02}ows.\nU V M / U # V . 2 i 2 ` K\n\0U\0\0V \0M\0/\n"
+                .to_string(),
+        ];
+        assert_eq!(clean_pages(&pages, true).0, "The field flows.");
     }
 
     #[test]

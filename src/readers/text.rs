@@ -1,6 +1,6 @@
 //! Plain text: UTF-8, UTF-16 with a byte-order mark, and a Latin-1 fallback that is reported.
 
-use crate::corpus::{Document, ReadOptions, Reader, Warnings};
+use crate::corpus::{emit_decoded, Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 
 /// Plain text files.
@@ -94,9 +94,7 @@ impl Reader for TextReader {
         warnings: &mut Warnings,
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError> {
-        let text = decode_text(label, bytes, warnings)?;
-        emit(text_document(label, None, text));
-        Ok(())
+        emit_decoded(label, bytes, warnings, emit, Ok)
     }
 }
 
