@@ -10,6 +10,8 @@
 //! [`pipeline`] chains the per-document stages; [`patterns`] loads the data files they use.
 
 pub mod claims;
+pub mod comention;
+pub mod compare;
 pub mod corpus;
 pub mod cues;
 pub mod error;

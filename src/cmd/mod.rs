@@ -2,6 +2,7 @@
 //! patterns, the store and the graph).
 
 mod claims;
+mod compare;
 mod eval;
 mod explain;
 mod extract;
@@ -102,6 +103,8 @@ pub enum Command {
     Patterns(patterns::PatternsArgs),
     /// Write the question set for a variable list: every ordered pair in every wording.
     Questions(questions::QuestionsArgs),
+    /// Set a model's answers to the question set beside what the corpus states.
+    Compare(compare::CompareArgs),
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -159,6 +162,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Patterns(a) => patterns::run(g, a),
         Command::Questions(a) => questions::run(g, a),
         Command::Graph(a) => graph::run(g, a),
+        Command::Compare(a) => compare::run(g, a),
     }
 }
 
