@@ -300,6 +300,8 @@ pub struct Profile {
     /// backward (symmetric), signed (sign).
     pub support: usize,
     pub corpus_answer: Label,
+    /// Both directions reach the threshold (forward and backward support ≥ threshold).
+    pub both_stated: bool,
 }
 
 /// The graph and index a comparison reads.
@@ -402,6 +404,7 @@ pub fn profiles(c: &Corpus, asked: &[Asked], threshold: usize) -> Vec<Profile> {
                 signed,
                 support,
                 corpus_answer: implied(q.family, support, competing, threshold),
+                both_stated: forward >= threshold.max(1) && backward >= threshold.max(1),
             }
         })
         .collect()
@@ -429,11 +432,11 @@ pub struct Summary {
     pub both_ways: usize,
     /// Of those: yes in both directions.
     pub model_yes_both: usize,
-    /// Of those: the corpus's implied answer is yes in both directions.
-    pub corpus_yes_both: usize,
+    /// Of those: the corpus states both directions (support ≥ threshold each way).
+    pub corpus_states_both: usize,
     /// model_yes_both / both_ways.
     pub model_both_rate: Option<f64>,
-    /// corpus_yes_both / both_ways.
+    /// corpus_states_both / both_ways.
     pub corpus_both_rate: Option<f64>,
     /// Questions asked in more than one wording of the same meaning (directed and reversed
     /// wordings of x → y; several wordings of one family): groups, and groups with differing answers.
@@ -574,23 +577,23 @@ fn summary(model: &str, family: &str, rows: &[(&Answer, &Profile)]) -> Summary {
         .filter(|(a, b)| a == b)
         .count();
     // Asymmetry: the same wording asked for (x, y) and (y, x), directed families only.
-    let mut by_pair: HashMap<(&str, &str, &str), (Label, Label)> = HashMap::new();
+    let mut by_pair: HashMap<(&str, &str, &str), (Label, bool)> = HashMap::new();
     for (a, p) in rows {
         if a.question.family.is_directed() {
             let q = &a.question;
             by_pair.insert(
                 (q.template.as_str(), &q.x_key, &q.y_key),
-                (a.label, p.corpus_answer),
+                (a.label, p.both_stated),
             );
         }
     }
-    let (mut both_ways, mut model_yes_both, mut corpus_yes_both) = (0, 0, 0);
-    for (&(t, x, y), &(m1, c1)) in &by_pair {
+    let (mut both_ways, mut model_yes_both, mut corpus_states_both) = (0, 0, 0);
+    for (&(t, x, y), &(m1, stated)) in &by_pair {
         if x < y {
-            if let Some(&(m2, c2)) = by_pair.get(&(t, y, x)) {
+            if let Some(&(m2, _)) = by_pair.get(&(t, y, x)) {
                 both_ways += 1;
                 model_yes_both += usize::from(m1 == Label::Yes && m2 == Label::Yes);
-                corpus_yes_both += usize::from(c1 == Label::Yes && c2 == Label::Yes);
+                corpus_states_both += usize::from(stated);
             }
         }
     }
@@ -609,9 +612,9 @@ fn summary(model: &str, family: &str, rows: &[(&Answer, &Profile)]) -> Summary {
         spearman: stats::spearman(&support, &p_yes),
         both_ways,
         model_yes_both,
-        corpus_yes_both,
+        corpus_states_both,
         model_both_rate: rate(model_yes_both, both_ways),
-        corpus_both_rate: rate(corpus_yes_both, both_ways),
+        corpus_both_rate: rate(corpus_states_both, both_ways),
         ..Summary::default()
     }
 }

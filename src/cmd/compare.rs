@@ -266,7 +266,7 @@ const SUMMARY: &[&str] = &[
     "spearman",
     "both_ways",
     "model_yes_both",
-    "corpus_yes_both",
+    "corpus_states_both",
     "wording_groups",
     "wording_differ",
 ];
@@ -287,7 +287,7 @@ fn summary_row(full: bool, s: &Summary) -> Vec<String> {
         opt(s.spearman, full),
         n(s.both_ways),
         n(s.model_yes_both),
-        n(s.corpus_yes_both),
+        n(s.corpus_states_both),
         n(s.wording_groups),
         n(s.wording_differ),
     ]

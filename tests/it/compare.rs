@@ -27,6 +27,11 @@ for line in open(claims_path):
     a, b = c["cause"]["key"], c["effect"]["key"]
     if c["kind"] == "causal" and c["modality"] != "negated" and a != b:
         support[(a, b)] += 1
+def lab(a):
+    if a in ("yes", "no", "unsure"):
+        return a, {"yes": 1.0, "no": 0.0, "unsure": 0.5}[a]
+    p = float(a)
+    return ("yes" if p > 0.5 else ("no" if p < 0.5 else "unsure")), p
 qs = {q["id"]: q for q in csv.DictReader(open(questions_path))}
 groups = defaultdict(list)
 for r in csv.DictReader(open(answers_path)):
@@ -35,11 +40,7 @@ for r in csv.DictReader(open(answers_path)):
     f, b = support[(x, y)], support[(y, x)]
     s = f + b if fam == "symmetric" else f
     corpus = "yes" if s >= T and (fam == "symmetric" or s > b) else "no"
-    a = r["answer"]
-    label, p = {"yes": ("yes", 1.0), "no": ("no", 0.0), "unsure": ("unsure", 0.5)}.get(a, (None, None))
-    if label is None:
-        p = float(a)
-        label = "yes" if p > 0.5 else ("no" if p < 0.5 else "unsure")
+    label, p = lab(r["answer"])
     for key in (fam, "all"):
         groups[(r["model"], key)].append((label, p, corpus, s))
 out = {}
@@ -56,6 +57,20 @@ for (model, fam), rows in groups.items():
         "auc": roc_auc_score(yes, sup),
         "spearman": spearmanr(sup, [r[1] for r in rows]).statistic,
     }
+# Asymmetry: the same wording asked both ways (directed and reversed families).
+for model in {m for m, _ in groups}:
+    ans = {}
+    for r in csv.DictReader(open(answers_path)):
+        q = qs[r["id"]]
+        if r["model"] == model and q["family"] != "symmetric":
+            ans[(q["template"], q["x_key"], q["y_key"])] = lab(r["answer"])[0]
+    both = yes_both = stated = 0
+    for (t, x, y), a in ans.items():
+        if x < y and (t, y, x) in ans:
+            both += 1
+            yes_both += a == "yes" and ans[(t, y, x)] == "yes"
+            stated += support[(x, y)] >= T and support[(y, x)] >= T
+    out[model + "|all"].update(both_ways=both, model_yes_both=yes_both, corpus_states_both=stated)
 print(json.dumps(out))
 "#;
 
@@ -130,6 +145,12 @@ fn compare_on_the_demo_matches_an_independent_computation() {
     );
     let want: serde_json::Value = serde_json::from_slice(&py.stdout).unwrap();
     assert_eq!(ours.len(), 2 * 4, "two models × (all + three families)");
+    for s in ours.iter().filter(|s| s["family"] == "all") {
+        let w = &want[&format!("{}|all", s["model"].as_str().unwrap())];
+        for f in ["both_ways", "model_yes_both", "corpus_states_both"] {
+            assert_eq!(s[f], w[f], "{} {f}", s["model"]);
+        }
+    }
     for s in &ours {
         let key = format!(
             "{}|{}",
@@ -151,6 +172,10 @@ fn compare_on_the_demo_matches_an_independent_computation() {
     }
     // The demo states some causal pairs at least twice, so the corpus answer is not all "no".
     assert!(ours.iter().any(|s| s["corpus_yes"].as_u64() > Some(0)));
+    // Boat traffic and tourism revenue are stated both ways (4 and 2 claims).
+    assert!(ours
+        .iter()
+        .any(|s| s["corpus_states_both"].as_u64() > Some(0)));
 }
 
 #[test]
