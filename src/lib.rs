@@ -11,6 +11,8 @@
 
 pub mod analysis;
 pub mod claims;
+pub mod comention;
+pub mod compare;
 pub mod corpus;
 pub mod cues;
 pub mod error;

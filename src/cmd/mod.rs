@@ -4,6 +4,7 @@
 mod claims;
 mod conflicts;
 mod cycles;
+mod compare;
 mod eval;
 mod explain;
 mod extract;
@@ -121,6 +122,8 @@ pub enum Command {
     Patterns(patterns::PatternsArgs),
     /// Write the question set for a variable list: every ordered pair in every wording.
     Questions(questions::QuestionsArgs),
+    /// Set a model's answers to the question set beside what the corpus states.
+    Compare(compare::CompareArgs),
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -204,6 +207,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Cycles(a) => cycles::run(g, a),
         Command::Matrix(a) => matrix::run(g, a),
         Command::Score(a) => score::run(g, a),
+        Command::Compare(a) => compare::run(g, a),
     }
 }
 

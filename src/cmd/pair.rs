@@ -1,12 +1,12 @@
 //! `hearsay pair X Y`: what the corpus says about two variables, in each direction.
 
-use super::{escape, ClaimFilter, Format, Global};
+use super::{escape, ClaimFilter, Format, Global, Loaded};
 use anyhow::{Context, Result};
 use clap::Args;
+use hearsay::comention;
 use hearsay::report::{self, DirectionSummary, PairReport};
-use hearsay::store::key_terms;
 use hearsay::Modality;
-use std::collections::BTreeSet;
+use petgraph::graph::NodeIndex;
 use std::io::Write;
 use std::process::ExitCode;
 
@@ -60,46 +60,14 @@ fn answer(g: &Global, a: &PairArgs, print: bool) -> Result<ExitCode> {
     let mut loaded = g.graph(&a.filter.to_filter())?;
     let x = report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, &a.x);
     let y = report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, &a.y);
-    let co_mentions = {
-        let (xt, yt) = (key_terms(&x.0.key), key_terms(&y.0.key));
-        if xt.is_empty() || yt.is_empty() || x.0.key == y.0.key {
-            0
-        } else {
-            let both = loaded
-                .store
-                .sentence_ids_with(&[&xt, &yt])
-                .context("cannot search the sentence index")?;
-            let mut claimed: BTreeSet<(String, u64)> = BTreeSet::new();
-            if let (Some(xn), Some(yn)) = (x.1, y.1) {
-                let rels = [
-                    loaded.graph.edge(xn, yn),
-                    loaded.graph.edge(yn, xn),
-                    loaded.graph.association(xn, yn),
-                ];
-                for rel in rels.into_iter().flatten() {
-                    for &r in &rel.rows {
-                        claimed.insert((
-                            loaded.graph.rows[r].doc.clone(),
-                            loaded.graph.rows[r].sentence,
-                        ));
-                    }
-                }
-            }
-            both.iter().filter(|s| !claimed.contains(*s)).count()
-        }
-    };
-    let store = &loaded.store;
-    let graph = &loaded.graph;
-    let rep = report::pair_report(graph, x, y, co_mentions, a.evidence, |r| {
-        let row = &graph.rows[r];
-        match store.claim(row.at) {
-            Ok(c) => (c.location(), c.sentence),
-            Err(e) => (
-                format!("{}:{}", row.doc, row.line),
-                format!("(evidence unavailable: {e})"),
-            ),
-        }
-    });
+    let co_mentions = comention::pair_co_mentions(
+        &mut loaded.store,
+        &loaded.graph,
+        (&x.0.key, x.1),
+        (&y.0.key, y.1),
+    )
+    .context("cannot search the sentence index")?;
+    let rep = report_with_evidence(&loaded, x, y, co_mentions, a.evidence);
     if !print {
         return Ok(ExitCode::SUCCESS);
     }
@@ -113,6 +81,27 @@ fn answer(g: &Global, a: &PairArgs, print: bool) -> Result<ExitCode> {
         Format::Table => print_table(&mut out, &rep)?,
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// The pair report of two looked-up variables, with evidence text fetched from the store.
+pub(super) fn report_with_evidence(
+    loaded: &Loaded,
+    x: (report::VarMatch, Option<NodeIndex>),
+    y: (report::VarMatch, Option<NodeIndex>),
+    co_mentions: usize,
+    evidence: usize,
+) -> PairReport {
+    let (store, graph) = (&loaded.store, &loaded.graph);
+    report::pair_report(graph, x, y, co_mentions, evidence, |r| {
+        let row = &graph.rows[r];
+        match store.claim(row.at) {
+            Ok(c) => (c.location(), c.sentence),
+            Err(e) => (
+                format!("{}:{}", row.doc, row.line),
+                format!("(evidence unavailable: {e})"),
+            ),
+        }
+    })
 }
 
 fn name(v: &report::VarMatch) -> String {
@@ -138,7 +127,7 @@ fn line(d: &DirectionSummary) -> String {
     )
 }
 
-fn print_table(out: &mut impl Write, r: &PairReport) -> Result<()> {
+pub(super) fn print_table(out: &mut impl Write, r: &PairReport) -> Result<()> {
     let (x, y) = (escape(&name(&r.x)), escape(&name(&r.y)));
     for v in [&r.x, &r.y] {
         if !v.known {

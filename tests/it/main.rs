@@ -2,6 +2,8 @@
 //! shared external datasets. One binary, topic modules.
 
 mod common;
+mod compare;
+mod compare_stats;
 mod external;
 mod graph;
 mod graph_analyses;

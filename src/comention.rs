@@ -1,0 +1,163 @@
+//! Co-mentions: sentences that name two variables with no claim between them.
+//!
+//! A variable "is named" in a sentence when the store's sentence index finds every word of its key
+//! there. `pair` asks the index once for one pair; `compare` asks for many pairs at once, so
+//! [`MentionIndex`] queries the index once per variable and intersects the sorted sentence lists
+//! per pair, instead of one index query per pair. Both count the same thing through
+//! [`unclaimed`]: the sentences naming both, less those that carry a claim (causal in either
+//! direction, or an association) between the two.
+
+use crate::error::StoreError;
+use crate::graph::ClaimGraph;
+use crate::store::{key_terms, Store};
+use petgraph::graph::NodeIndex;
+use std::collections::{BTreeSet, HashMap, HashSet};
+
+/// The (document, sentence start) of every sentence that carries a claim between `x` and `y`.
+pub fn claimed_sentences(
+    g: &ClaimGraph,
+    x: Option<NodeIndex>,
+    y: Option<NodeIndex>,
+) -> HashSet<(&str, u64)> {
+    let mut claimed = HashSet::new();
+    if let (Some(xn), Some(yn)) = (x, y) {
+        for rel in [g.edge(xn, yn), g.edge(yn, xn), g.association(xn, yn)]
+            .into_iter()
+            .flatten()
+        {
+            for &r in &rel.rows {
+                claimed.insert((g.rows[r].doc.as_str(), g.rows[r].sentence));
+            }
+        }
+    }
+    claimed
+}
+
+/// How many of the sentences `both` (naming both variables) carry no claim between them.
+pub fn unclaimed<'a>(
+    g: &ClaimGraph,
+    x: Option<NodeIndex>,
+    y: Option<NodeIndex>,
+    both: impl IntoIterator<Item = (&'a str, u64)>,
+) -> usize {
+    let claimed = claimed_sentences(g, x, y);
+    both.into_iter().filter(|s| !claimed.contains(s)).count()
+}
+
+/// Co-mentions of one pair of keys, with one index query (what `hearsay pair` prints).
+pub fn pair_co_mentions(
+    store: &mut Store,
+    g: &ClaimGraph,
+    (x_key, x): (&str, Option<NodeIndex>),
+    (y_key, y): (&str, Option<NodeIndex>),
+) -> Result<usize, StoreError> {
+    let (xt, yt) = (key_terms(x_key), key_terms(y_key));
+    if xt.is_empty() || yt.is_empty() || x_key == y_key {
+        return Ok(0);
+    }
+    let both = store.sentence_ids_with(&[&xt, &yt])?;
+    Ok(unclaimed(
+        g,
+        x,
+        y,
+        both.iter().map(|(d, s)| (d.as_str(), *s)),
+    ))
+}
+
+/// The sentences naming each of a set of variables, fetched once per variable.
+#[derive(Debug, Default)]
+pub struct MentionIndex {
+    /// Document ids, indexed by the numbers in the sentence lists.
+    docs: Vec<String>,
+    /// key → sorted (document number, sentence start).
+    sentences: HashMap<String, Vec<(u32, u64)>>,
+}
+
+impl MentionIndex {
+    /// Query the index once for every distinct key.
+    pub fn build<'k>(
+        store: &mut Store,
+        keys: impl IntoIterator<Item = &'k str>,
+    ) -> Result<MentionIndex, StoreError> {
+        let mut m = MentionIndex::default();
+        let mut ids: HashMap<String, u32> = HashMap::new();
+        for key in keys {
+            if m.sentences.contains_key(key) {
+                continue;
+            }
+            let terms = key_terms(key);
+            let mut list: Vec<(u32, u64)> = Vec::new();
+            if !terms.is_empty() {
+                for (doc, start) in store.sentence_ids_with(&[&terms])? {
+                    let next = ids.len() as u32;
+                    let d = *ids.entry(doc).or_insert_with_key(|k| {
+                        m.docs.push(k.clone());
+                        next
+                    });
+                    list.push((d, start));
+                }
+                list.sort_unstable();
+            }
+            m.sentences.insert(key.to_string(), list);
+        }
+        Ok(m)
+    }
+
+    /// Sentences naming the variable with this key (0 for a key not built).
+    pub fn count(&self, key: &str) -> usize {
+        self.sentences.get(key).map_or(0, Vec::len)
+    }
+
+    /// Sentences naming both keys, as (document, sentence start); empty when the keys are equal.
+    pub fn both(&self, x: &str, y: &str) -> Vec<(&str, u64)> {
+        let (Some(a), Some(b)) = (self.sentences.get(x), self.sentences.get(y)) else {
+            return Vec::new();
+        };
+        if x == y {
+            return Vec::new();
+        }
+        let (mut i, mut j, mut out) = (0, 0, Vec::new());
+        while i < a.len() && j < b.len() {
+            match a[i].cmp(&b[j]) {
+                std::cmp::Ordering::Less => i += 1,
+                std::cmp::Ordering::Greater => j += 1,
+                std::cmp::Ordering::Equal => {
+                    out.push((self.docs[a[i].0 as usize].as_str(), a[i].1));
+                    i += 1;
+                    j += 1;
+                }
+            }
+        }
+        out
+    }
+
+    /// Co-mentions of a pair: sentences naming both with no claim between them.
+    pub fn co_mentions(
+        &self,
+        g: &ClaimGraph,
+        (x_key, x): (&str, Option<NodeIndex>),
+        (y_key, y): (&str, Option<NodeIndex>),
+    ) -> usize {
+        unclaimed(g, x, y, self.both(x_key, y_key))
+    }
+}
+
+/// Distinct sentences of the claims between `x` and `y`: (causal either way, association only).
+pub fn claim_sentences(g: &ClaimGraph, x: NodeIndex, y: NodeIndex) -> (usize, usize) {
+    let mut causal: BTreeSet<(&str, u64)> = BTreeSet::new();
+    for rel in [g.edge(x, y), g.edge(y, x)].into_iter().flatten() {
+        for &r in &rel.rows {
+            causal.insert((g.rows[r].doc.as_str(), g.rows[r].sentence));
+        }
+    }
+    let mut assoc: BTreeSet<(&str, u64)> = BTreeSet::new();
+    if let Some(rel) = g.association(x, y) {
+        for &r in &rel.rows {
+            let s = (g.rows[r].doc.as_str(), g.rows[r].sentence);
+            if !causal.contains(&s) {
+                assoc.insert(s);
+            }
+        }
+    }
+    (causal.len(), assoc.len())
+}
