@@ -10,6 +10,7 @@
 //! [`pipeline`] chains the per-document stages; [`patterns`] loads the data files they use.
 
 pub mod claims;
+pub mod confidence;
 pub mod corpus;
 pub mod cues;
 pub mod error;

@@ -2,6 +2,7 @@
 //! shared external datasets. One binary, topic modules.
 
 mod common;
+mod confidence;
 mod external;
 mod graph;
 mod hostile;
