@@ -203,7 +203,12 @@ impl<'a> TaggedSentence<'a> {
 
 /// The features of one claim. `family` is its cue's family; `claims_here` how many claims its
 /// sentence gave.
-pub fn features(c: &Claim, family: &str, s: &TaggedSentence<'_>, claims_here: usize) -> Vec<String> {
+pub fn features(
+    c: &Claim,
+    family: &str,
+    s: &TaggedSentence<'_>,
+    claims_here: usize,
+) -> Vec<String> {
     let mut f = vec![
         format!("cue={}", c.cue),
         format!("family={family}"),
@@ -220,7 +225,12 @@ pub fn features(c: &Claim, family: &str, s: &TaggedSentence<'_>, claims_here: us
         "sentence_words={}",
         bucket(sentence_words, &[10, 20, 30, 45])
     ));
-    for (mark, name) in [(";", "semicolon"), ("(", "paren"), ("\"", "quote"), (":", "colon")] {
+    for (mark, name) in [
+        (";", "semicolon"),
+        ("(", "paren"),
+        ("\"", "quote"),
+        (":", "colon"),
+    ] {
         if s.text.contains(mark) {
             f.push(format!("sentence_{name}"));
         }
@@ -375,7 +385,11 @@ pub fn train(examples: &[Example], opts: TrainOptions) -> Model {
         .iter()
         .map(|e| {
             let mut r: Vec<usize> = std::iter::once(0)
-                .chain(e.features.iter().filter_map(|f| index.get(f.as_str()).copied()))
+                .chain(
+                    e.features
+                        .iter()
+                        .filter_map(|f| index.get(f.as_str()).copied()),
+                )
                 .collect();
             r.sort_unstable();
             r.dedup();

@@ -249,7 +249,12 @@ fn summary_table(
 
 /// The reliability table: confidence bins against observed precision, then ECE and Brier score.
 pub(super) fn print_reliability(out: &mut impl Write, r: &eval::Reliability) -> Result<()> {
-    let mut t = Table::new(&["confidence", "claims", "mean confidence", "observed precision"]);
+    let mut t = Table::new(&[
+        "confidence",
+        "claims",
+        "mean confidence",
+        "observed precision",
+    ]);
     for b in r.bins.iter().filter(|b| b.claims > 0) {
         t.row(vec![
             format!("{:.1}-{:.1}", b.low, b.high),

@@ -146,7 +146,9 @@ impl ClaimFilter {
 pub fn parse_confidence(s: &str) -> Result<f32, String> {
     match s.trim().parse::<f32>() {
         Ok(x) if (0.0..=1.0).contains(&x) => Ok(x),
-        _ => Err(format!("not a confidence: {s:?} (use a number from 0 to 1)")),
+        _ => Err(format!(
+            "not a confidence: {s:?} (use a number from 0 to 1)"
+        )),
     }
 }
 

@@ -62,14 +62,17 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
     let mut judged: Vec<(String, Judged)> = Vec::new();
     let mut sources = Vec::new();
     for (format, path) in &a.gold {
-        let name = format.to_possible_value().map_or_else(String::new, |v| v.get_name().to_string());
+        let name = format
+            .to_possible_value()
+            .map_or_else(String::new, |v| v.get_name().to_string());
         let found = match load_gold(*format, path)? {
             Gold::Pairs(items) => eval::score_pairs_judged(&ex, &items).2,
             Gold::Docs(docs) => spaneval::score_spans_judged(&ex, &docs).2,
         };
-        let file = path
-            .file_name()
-            .map_or_else(|| path.display().to_string(), |f| f.to_string_lossy().into_owned());
+        let file = path.file_name().map_or_else(
+            || path.display().to_string(),
+            |f| f.to_string_lossy().into_owned(),
+        );
         sources.push(format!("{name} {file}: {} judged claims", found.len()));
         eprintln!("{name} {}: {} judged claims", path.display(), found.len());
         judged.extend(found.into_iter().map(|j| (name.clone(), j)));
@@ -77,8 +80,12 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
     let (mut train, mut dev) = (Vec::new(), Vec::new());
     for (name, j) in &judged {
         let s = confidence::TaggedSentence::new(&j.sentence, j.claim.source.start);
-        let features =
-            confidence::features(&j.claim, confidence::family(&ex, &j.claim.cue), &s, j.claims_here);
+        let features = confidence::features(
+            &j.claim,
+            confidence::family(&ex, &j.claim.cue),
+            &s,
+            j.claims_here,
+        );
         let e = Example {
             features,
             correct: j.correct,
@@ -98,7 +105,10 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
         ..TrainOptions::default()
     };
     let model = confidence::train(&train, opts);
-    let rel = Reliability::from_outcomes(dev.iter().map(|e| (model.probability(&e.features), e.correct)));
+    let rel = Reliability::from_outcomes(
+        dev.iter()
+            .map(|e| (model.probability(&e.features), e.correct)),
+    );
     let base = train.iter().filter(|e| e.correct).count() as f64 / train.len() as f64;
     let baseline = Reliability::from_outcomes(dev.iter().map(|e| (base, e.correct)));
     let mut header = vec![

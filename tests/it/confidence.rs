@@ -42,11 +42,16 @@ fn confidence_is_calibrated_on_held_out_semeval_sentences() {
         "ECE {} above {ECE_CEILING}",
         r.expected_calibration_error
     );
-    assert!(r.brier <= BRIER_CEILING, "Brier {} above {BRIER_CEILING}", r.brier);
+    assert!(
+        r.brier <= BRIER_CEILING,
+        "Brier {} above {BRIER_CEILING}",
+        r.brier
+    );
     // Confidence must rank: the claims at or above 0.5 are right more often than those below.
     let hi: Vec<_> = held.iter().filter(|j| j.claim.confidence >= 0.5).collect();
     let lo: Vec<_> = held.iter().filter(|j| j.claim.confidence < 0.5).collect();
-    let share = |v: &[&eval::Judged]| v.iter().filter(|j| j.correct).count() as f64 / v.len().max(1) as f64;
+    let share =
+        |v: &[&eval::Judged]| v.iter().filter(|j| j.correct).count() as f64 / v.len().max(1) as f64;
     assert!(share(&hi) > share(&lo), "{} vs {}", share(&hi), share(&lo));
 }
 
@@ -61,11 +66,22 @@ fn eval_reports_reliability_with_ece_and_brier() {
         return;
     };
     let out = hearsay()
-        .args(["--format", "json", "eval", "--gold-format", "because", "--gold"])
+        .args([
+            "--format",
+            "json",
+            "eval",
+            "--gold-format",
+            "because",
+            "--gold",
+        ])
         .arg(&gold)
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let r = &v["reliability"];
     assert_eq!(r["bins"].as_array().unwrap().len(), 10);
@@ -79,7 +95,14 @@ fn eval_reports_reliability_with_ece_and_brier() {
     assert_eq!(counted, v["predicted_claims"].as_u64().unwrap());
     assert_eq!(r["correct"], v["tp"]);
     let table = hearsay()
-        .args(["--format", "table", "eval", "--gold-format", "because", "--gold"])
+        .args([
+            "--format",
+            "table",
+            "eval",
+            "--gold-format",
+            "because",
+            "--gold",
+        ])
         .arg(&gold)
         .output()
         .unwrap();
@@ -107,7 +130,11 @@ fn train_confidence_is_reproducible() {
             .arg(&out)
             .output()
             .unwrap();
-        assert!(run.status.success(), "{}", String::from_utf8_lossy(&run.stderr));
+        assert!(
+            run.status.success(),
+            "{}",
+            String::from_utf8_lossy(&run.stderr)
+        );
         files.push(std::fs::read_to_string(&out).unwrap());
     }
     assert_eq!(files[0], files[1]);
@@ -123,7 +150,11 @@ fn train_confidence_is_reproducible() {
         .args(["explain", "Heavy rain causes flooding."])
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
 }
 
 /// Behaviour guard on the invented demo corpus: `--min-confidence` keeps exactly the claims at or
@@ -134,7 +165,10 @@ fn min_confidence_filters_stored_claims() {
     let store = dir.path().join("store");
     let all = json_lines(&["claims"], &store);
     assert!(all.len() > 10);
-    let conf: Vec<f64> = all.iter().map(|c| c["confidence"].as_f64().unwrap()).collect();
+    let conf: Vec<f64> = all
+        .iter()
+        .map(|c| c["confidence"].as_f64().unwrap())
+        .collect();
     assert!(conf.iter().all(|p| (0.0..=1.0).contains(p)));
     let mut sorted = conf.clone();
     sorted.sort_by(f64::total_cmp);
@@ -142,13 +176,27 @@ fn min_confidence_filters_stored_claims() {
     let kept = json_lines(&["claims", "--min-confidence", &t.to_string()], &store);
     let expected = conf.iter().filter(|&&p| p as f32 >= t as f32).count();
     assert_eq!(kept.len(), expected);
-    assert!(kept.len() < all.len(), "the median threshold drops something");
-    assert!(kept.iter().all(|c| c["confidence"].as_f64().unwrap() as f32 >= t as f32));
+    assert!(
+        kept.len() < all.len(),
+        "the median threshold drops something"
+    );
+    assert!(kept
+        .iter()
+        .all(|c| c["confidence"].as_f64().unwrap() as f32 >= t as f32));
     for cmd in [&["top"][..], &["graph"][..]] {
         let mut args = cmd.to_vec();
         args.extend(["--min-confidence", "0.99"]);
-        let out = hearsay().arg("--store").arg(&store).args(&args).output().unwrap();
-        assert!(out.status.success(), "{args:?}: {}", String::from_utf8_lossy(&out.stderr));
+        let out = hearsay()
+            .arg("--store")
+            .arg(&store)
+            .args(&args)
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
     }
     let bad = hearsay()
         .arg("--store")
@@ -173,9 +221,17 @@ fn schema_one_store_asks_for_a_rescan() {
     m["claim_schema"] = 1.into();
     std::fs::write(&mpath, serde_json::to_string(&m).unwrap()).unwrap();
     for args in [&["claims"][..], &["top"][..], &["scan", "corpora-demo"][..]] {
-        let out = hearsay().arg("--store").arg(&store).args(args).output().unwrap();
+        let out = hearsay()
+            .arg("--store")
+            .arg(&store)
+            .args(args)
+            .output()
+            .unwrap();
         assert_eq!(out.status.code(), Some(2), "{args:?}");
         let err = String::from_utf8_lossy(&out.stderr);
-        assert!(err.contains("schema 1") && err.contains("scan again"), "{err}");
+        assert!(
+            err.contains("schema 1") && err.contains("scan again"),
+            "{err}"
+        );
     }
 }
