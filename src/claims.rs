@@ -829,6 +829,7 @@ impl Extractor {
         }
         Ok(Claim {
             schema: SCHEMA_VERSION,
+            confidence: 0.0, // set by the pipeline (crate::confidence)
             cause: Slot {
                 text: cause.text.clone(),
                 key: ckey,

@@ -63,6 +63,16 @@ pub enum StoreError {
         found: u32,
         expected: u32,
     },
+    #[error(
+        "store {path} holds claims of schema {found}, this hearsay reads schema {expected} \
+(it added a confidence to each claim); delete the folder and scan again: \
+hearsay scan PATH... --store {path}"
+    )]
+    ClaimSchema {
+        path: PathBuf,
+        found: u32,
+        expected: u32,
+    },
 }
 
 impl StoreError {

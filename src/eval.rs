@@ -164,6 +164,8 @@ pub struct Scores {
     /// Share of negative items on which a claim was found for the marked pair.
     pub negative_claim_rate: f64,
     pub by_cue: BTreeMap<String, CueScore>,
+    /// Confidence against observed precision on the judged claims.
+    pub reliability: Reliability,
 }
 
 /// True and false positives of one cue.
@@ -183,8 +185,122 @@ pub struct Scored {
     pub predicted: Vec<(String, String, String)>,
 }
 
+/// One claim with its judgement against the gold data, for the reliability table and training.
+#[derive(Debug, Clone)]
+pub struct Judged {
+    pub claim: Claim,
+    /// The raw text of the claim's sentence (the claim's offsets are into its document).
+    pub sentence: String,
+    /// Where the sentence is, for a held-out split that keeps a sentence on one side.
+    pub unit: String,
+    /// How many claims the sentence gave (a feature of the confidence model).
+    pub claims_here: usize,
+    pub correct: bool,
+}
+
+impl Judged {
+    /// Judge `claim`, one of `all` found in a document with text `doc_text`.
+    pub fn new(claim: &Claim, all: &[Claim], doc_text: &str, doc_id: &str, correct: bool) -> Self {
+        let (a, b) = (claim.source.start, claim.source.end);
+        Judged {
+            claim: claim.clone(),
+            sentence: doc_text.get(a..b).unwrap_or("").to_string(),
+            unit: format!("{doc_id}@{a}"),
+            claims_here: all.iter().filter(|c| c.source.start == a).count(),
+            correct,
+        }
+    }
+}
+
+/// How many equal-width confidence bins the reliability table has.
+pub const RELIABILITY_BINS: usize = 10;
+
+/// One bin of the reliability table.
+#[derive(Debug, Clone, Default, Serialize, PartialEq)]
+pub struct Bin {
+    /// The bin is [low, high), the last one [low, 1].
+    pub low: f64,
+    pub high: f64,
+    pub claims: usize,
+    pub mean_confidence: f64,
+    /// Share of the bin's claims judged correct.
+    pub observed_precision: f64,
+}
+
+/// Does the confidence mean what it says? Claims binned by confidence, each bin's mean confidence
+/// against its observed precision, with the expected calibration error (the claim-weighted mean
+/// of |observed - mean confidence| over bins) and the Brier score (mean squared difference of
+/// confidence and outcome).
+#[derive(Debug, Clone, Default, Serialize, PartialEq)]
+pub struct Reliability {
+    pub claims: usize,
+    pub correct: usize,
+    pub bins: Vec<Bin>,
+    pub expected_calibration_error: f64,
+    pub brier: f64,
+}
+
+impl Reliability {
+    /// From (confidence, correct) pairs.
+    pub fn from_outcomes(outcomes: impl IntoIterator<Item = (f64, bool)>) -> Reliability {
+        let n = RELIABILITY_BINS;
+        let mut sums = vec![(0usize, 0.0f64, 0usize); n];
+        let mut r = Reliability::default();
+        let mut brier = 0.0;
+        for (p, ok) in outcomes {
+            let p = p.clamp(0.0, 1.0);
+            let b = ((p * n as f64) as usize).min(n - 1);
+            sums[b].0 += 1;
+            sums[b].1 += p;
+            sums[b].2 += usize::from(ok);
+            r.claims += 1;
+            r.correct += usize::from(ok);
+            brier += (p - f64::from(u8::from(ok))).powi(2);
+        }
+        let mut ece = 0.0;
+        for (i, &(count, sum, ok)) in sums.iter().enumerate() {
+            let bin = Bin {
+                low: i as f64 / n as f64,
+                high: (i + 1) as f64 / n as f64,
+                claims: count,
+                mean_confidence: if count > 0 { sum / count as f64 } else { 0.0 },
+                observed_precision: ratio(ok, count),
+            };
+            ece += count as f64 * (bin.observed_precision - bin.mean_confidence).abs();
+            r.bins.push(bin);
+        }
+        if r.claims > 0 {
+            r.expected_calibration_error = ece / r.claims as f64;
+            r.brier = brier / r.claims as f64;
+        }
+        r
+    }
+
+    pub fn from_judged(judged: &[Judged]) -> Reliability {
+        Reliability::from_outcomes(judged.iter().map(|j| (j.claim.confidence, j.correct)))
+    }
+}
+
+fn overlaps(c: &Claim, g: GoldSpan) -> bool {
+    let side = |s: &crate::model::Slot| s.start < g.end && g.start < s.end;
+    side(&c.cause) || side(&c.effect)
+}
+
 /// Score extraction on SemEval-style items (one marked pair each).
 pub fn score_pairs(ex: &Extractor, items: &[GoldItem]) -> (Scores, Vec<Scored>) {
+    let (s, scored, _) = score_pairs_judged(ex, items);
+    (s, scored)
+}
+
+/// Like [`score_pairs`], also judging single claims. A claim is right when it matches the gold
+/// pair; it is wrong when it gives the marked pair in the wrong direction, relates the marked pair
+/// of a negative item, or touches a gold nominal of a positive item without matching. Other
+/// claims (about words the annotation does not speak of) are not judged.
+pub fn score_pairs_judged(
+    ex: &Extractor,
+    items: &[GoldItem],
+) -> (Scores, Vec<Scored>, Vec<Judged>) {
+    let mut judged = Vec::new();
     let mut s = Scores {
         items: items.len(),
         ..Scores::default()
@@ -226,6 +342,18 @@ pub fn score_pairs(ex: &Extractor, items: &[GoldItem]) -> (Scores, Vec<Scored>) 
             }
         }
         let _ = credited;
+        for c in &claims {
+            let verdict = match it.causal {
+                Some((cause, effect)) if fwd(&c, cause, effect) => Some(true),
+                Some((cause, effect)) => {
+                    (overlaps(c, cause) || overlaps(c, effect)).then_some(false)
+                }
+                None => (fwd(&c, a, b) || fwd(&c, b, a)).then_some(false),
+            };
+            if let Some(ok) = verdict {
+                judged.push(Judged::new(c, &claims, &it.text, &it.id, ok));
+            }
+        }
         scored.push(Scored {
             id: it.id.clone(),
             outcome,
@@ -250,10 +378,11 @@ pub fn score_pairs(ex: &Extractor, items: &[GoldItem]) -> (Scores, Vec<Scored>) 
         0.0
     };
     s.negative_claim_rate = ratio(neg_hits, negatives);
-    (s, scored)
+    s.reliability = Reliability::from_judged(&judged);
+    (s, scored, judged)
 }
 
-fn ratio(a: usize, b: usize) -> f64 {
+pub(crate) fn ratio(a: usize, b: usize) -> f64 {
     if b == 0 {
         0.0
     } else {

@@ -22,7 +22,7 @@ pub struct ClaimRef {
 }
 
 /// The compact form of a claim that the graph is built from.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ClaimRow {
     pub cause: String,
     pub effect: String,
@@ -38,6 +38,8 @@ pub struct ClaimRow {
     /// Byte offset of the sentence in its document.
     pub sentence: u64,
     pub at: ClaimRef,
+    /// The claim's confidence (see `crate::confidence`).
+    pub confidence: f32,
 }
 
 impl ClaimRow {
@@ -55,6 +57,7 @@ impl ClaimRow {
             line: c.source.line as u32,
             sentence: c.source.start as u64,
             at,
+            confidence: c.confidence as f32,
         }
     }
 }
@@ -73,11 +76,14 @@ pub struct Filter {
     pub kind: Option<Kind>,
     pub polarity: Option<Polarity>,
     pub modality: Option<Modality>,
+    /// Only claims whose confidence is at least this.
+    pub min_confidence: Option<f32>,
 }
 
 impl Filter {
     pub fn accepts(&self, r: &ClaimRow) -> bool {
-        self.kind.is_none_or(|k| k == r.kind)
+        self.min_confidence.is_none_or(|m| r.confidence >= m)
+            && self.kind.is_none_or(|k| k == r.kind)
             && self.polarity.is_none_or(|p| p == r.polarity)
             && self.modality.is_none_or(|m| m == r.modality)
     }
@@ -342,6 +348,7 @@ mod tests {
                 offset: 0,
                 len: 0,
             },
+            confidence: 0.5,
         }
     }
 

@@ -13,6 +13,7 @@ pub mod analysis;
 pub mod claims;
 pub mod comention;
 pub mod compare;
+pub mod confidence;
 pub mod corpus;
 pub mod cues;
 pub mod error;

@@ -10,7 +10,7 @@ use std::fmt;
 use std::str::FromStr;
 
 /// Version of the claim record. Bump on any change to [`Claim`] or its parts.
-pub const SCHEMA_VERSION: u32 = 1;
+pub const SCHEMA_VERSION: u32 = 2;
 
 /// Whether a statement asserts causation or only co-variation.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
@@ -127,7 +127,7 @@ pub struct Source {
 
 /// One causal or associational statement found in text. A claim is a statement, not evidence
 /// that the causation is real.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Claim {
     pub schema: u32,
     pub cause: Slot,
@@ -143,6 +143,9 @@ pub struct Claim {
     /// True when a slot was taken from the previous sentence (a sentence-opening connective).
     #[serde(default, skip_serializing_if = "std::ops::Not::not")]
     pub cross_sentence: bool,
+    /// How likely the spans agree with a human reading, in [0, 1] (schema 2; see
+    /// `crate::confidence`). It rates the extraction, not whether the causation is real.
+    pub confidence: f64,
 }
 
 impl Claim {
@@ -201,9 +204,10 @@ mod tests {
                 record: None,
             },
             cross_sentence: false,
+            confidence: 0.5,
         };
         let json = serde_json::to_string(&c).unwrap();
-        assert!(json.starts_with("{\"schema\":1,"), "{json}");
+        assert!(json.starts_with("{\"schema\":2,"), "{json}");
         assert!(!json.contains("page"));
         let back: Claim = serde_json::from_str(&json).unwrap();
         assert_eq!(back, c);

@@ -98,7 +98,9 @@ fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&
                 page: doc.page_of(s.start),
                 record: doc.record.as_deref(),
             };
+            let before = out.len();
             ex.extract(sent, prev, &origin, &candidates, out, trace.as_deref_mut());
+            crate::confidence::score_sentence(ex, &mut out[before..], sent.text, sent.offset);
             k = k2;
         }
         h = h_end.max(h + 1);

@@ -13,7 +13,7 @@
 
 use crate::claims::{tokenize, Extractor};
 use crate::corpus::Document;
-use crate::eval::GoldSpan;
+use crate::eval::{GoldSpan, Judged, Reliability};
 use crate::gold::{GoldClaim, GoldDoc};
 use crate::model::{Claim, Kind};
 use crate::pipeline;
@@ -97,6 +97,8 @@ pub struct SpanReport {
     pub sign_accuracy: Accuracy,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub sentence_level: Option<SentenceScores>,
+    /// Confidence against observed precision on the predicted claims.
+    pub reliability: Reliability,
 }
 
 /// A cause–effect pair as text, for error listings.
@@ -122,13 +124,7 @@ pub struct SpanError {
     pub nearby: Vec<PairText>,
 }
 
-fn ratio(a: usize, b: usize) -> f64 {
-    if b == 0 {
-        0.0
-    } else {
-        a as f64 / b as f64
-    }
-}
+use crate::eval::ratio;
 
 /// Word-token ranges of a text, by start offset.
 struct Words(Vec<(usize, usize)>);
@@ -201,6 +197,17 @@ fn pred_text(c: &Claim) -> PairText {
 
 /// Score extraction on span-annotated documents; also return every error.
 pub fn score_spans(ex: &Extractor, docs: &[GoldDoc]) -> (SpanReport, Vec<SpanError>) {
+    let (r, errors, _) = score_spans_judged(ex, docs);
+    (r, errors)
+}
+
+/// Like [`score_spans`], also returning each claim judged: right when matched, wrong otherwise
+/// (documents labelled only per sentence give no judgements).
+pub fn score_spans_judged(
+    ex: &Extractor,
+    docs: &[GoldDoc],
+) -> (SpanReport, Vec<SpanError>, Vec<Judged>) {
+    let mut judged = Vec::new();
     let mut r = SpanReport {
         documents: docs.len(),
         rule: format!(
@@ -323,6 +330,7 @@ pub fn score_spans(ex: &Extractor, docs: &[GoldDoc]) -> (SpanReport, Vec<SpanErr
             }
         }
         for (pi, c) in claims.iter().enumerate() {
+            judged.push(Judged::new(c, &claims, &d.text, &d.id, pred_used[pi]));
             if pred_used[pi] {
                 continue;
             }
@@ -371,7 +379,8 @@ pub fn score_spans(ex: &Extractor, docs: &[GoldDoc]) -> (SpanReport, Vec<SpanErr
         sent.accuracy = ratio(sent.sentences - sent.prf.fp - sent.prf.fn_, sent.sentences);
         r.sentence_level = Some(sent);
     }
-    (r, errors)
+    r.reliability = Reliability::from_judged(&judged);
+    (r, errors, judged)
 }
 
 /// Documents longer than one sentence need the splitter to name an error's sentence.

@@ -191,6 +191,15 @@ impl Store {
                 expected: STORE_VERSION,
             });
         }
+        // Claim records and rows of another schema cannot be read (rows are postcard, which has
+        // no field names): the store must be rebuilt.
+        if manifest.claim_schema != crate::model::SCHEMA_VERSION {
+            return Err(StoreError::ClaimSchema {
+                path: dir.to_path_buf(),
+                found: manifest.claim_schema,
+                expected: crate::model::SCHEMA_VERSION,
+            });
+        }
         Ok(Store {
             dir: dir.to_path_buf(),
             manifest,

@@ -43,13 +43,30 @@ pub struct EvalArgs {
     pub errors: bool,
 }
 
+/// Labelled data as read: single marked pairs (SemEval) or span-annotated documents.
+pub(super) enum Gold {
+    Pairs(Vec<eval::GoldItem>),
+    Docs(Vec<gold::GoldDoc>),
+}
+
+/// Read a gold file (or BECAUSE folder) in the given format.
+pub(super) fn load_gold(format: GoldFormat, path: &Path) -> Result<Gold> {
+    let name = path.display().to_string();
+    Ok(match format {
+        GoldFormat::Semeval2010 => Gold::Pairs(
+            eval::parse_semeval(&read(path)?).map_err(|e| anyhow::anyhow!("{name}: {e}"))?,
+        ),
+        GoldFormat::Because => Gold::Docs(read_because(path)?),
+        GoldFormat::Cnc => Gold::Docs(gold::parse_cnc(&name, &read(path)?)?),
+        GoldFormat::Jsonl => Gold::Docs(gold::parse_jsonl(&name, &read(path)?)?),
+    })
+}
+
 pub fn run(g: &Global, a: &EvalArgs) -> Result<ExitCode> {
     let ex = g.extractor()?;
-    let docs = match a.gold_format {
-        GoldFormat::Semeval2010 => return run_semeval(g, a, &ex),
-        GoldFormat::Because => read_because(&a.gold)?,
-        GoldFormat::Cnc => gold::parse_cnc(&a.gold.display().to_string(), &read(&a.gold)?)?,
-        GoldFormat::Jsonl => gold::parse_jsonl(&a.gold.display().to_string(), &read(&a.gold)?)?,
+    let docs = match load_gold(a.gold_format, &a.gold)? {
+        Gold::Pairs(items) => return run_semeval(g, a, &ex, &items),
+        Gold::Docs(docs) => docs,
     };
     let (report, errors) = spaneval::score_spans(&ex, &docs);
     let mut out = std::io::stdout().lock();
@@ -99,12 +116,12 @@ fn pair(p: &spaneval::PairText) -> String {
     s
 }
 
-fn read(p: &Path) -> Result<String> {
+pub(super) fn read(p: &Path) -> Result<String> {
     std::fs::read_to_string(p).with_context(|| format!("cannot read {}", p.display()))
 }
 
 /// A BECAUSE folder (every `.ann` with its `.txt`) or one document given by either file.
-fn read_because(p: &Path) -> Result<Vec<gold::GoldDoc>> {
+pub(super) fn read_because(p: &Path) -> Result<Vec<gold::GoldDoc>> {
     let mut anns: Vec<PathBuf> = if p.is_dir() {
         std::fs::read_dir(p)
             .with_context(|| format!("cannot read {}", p.display()))?
@@ -136,54 +153,26 @@ fn ratio3(x: f64) -> String {
 
 fn print_span_report(out: &mut impl Write, r: &spaneval::SpanReport) -> Result<()> {
     if let Some(s) = &r.sentence_level {
-        let mut t = Table::new(&[
-            "sentences",
-            "causal",
-            "tp",
-            "fp",
-            "fn",
-            "precision",
-            "recall",
-            "f1",
-            "accuracy",
-        ]);
-        t.row(vec![
-            s.sentences.to_string(),
-            s.causal.to_string(),
-            s.prf.tp.to_string(),
-            s.prf.fp.to_string(),
-            s.prf.fn_.to_string(),
-            ratio3(s.prf.precision),
-            ratio3(s.prf.recall),
-            ratio3(s.prf.f1),
-            ratio3(s.accuracy),
-        ]);
-        t.print(out)?;
-        return Ok(());
+        return summary_table(
+            out,
+            &[
+                ("sentences", s.sentences.to_string()),
+                ("causal", s.causal.to_string()),
+            ],
+            &s.prf,
+            &[("accuracy", ratio3(s.accuracy))],
+        );
     }
-    let mut t = Table::new(&[
-        "documents",
-        "gold",
-        "predicted",
-        "tp",
-        "fp",
-        "fn",
-        "precision",
-        "recall",
-        "f1",
-    ]);
-    t.row(vec![
-        r.documents.to_string(),
-        r.gold_claims.to_string(),
-        r.predicted_claims.to_string(),
-        r.prf.tp.to_string(),
-        r.prf.fp.to_string(),
-        r.prf.fn_.to_string(),
-        ratio3(r.prf.precision),
-        ratio3(r.prf.recall),
-        ratio3(r.prf.f1),
-    ]);
-    t.print(out)?;
+    summary_table(
+        out,
+        &[
+            ("documents", r.documents.to_string()),
+            ("gold", r.gold_claims.to_string()),
+            ("predicted", r.predicted_claims.to_string()),
+        ],
+        &r.prf,
+        &[],
+    )?;
     writeln!(out)?;
     let mut acc = Table::new(&["on matched claims", "correct", "labelled", "accuracy"]);
     for (name, a) in [
@@ -229,52 +218,105 @@ fn print_span_report(out: &mut impl Write, r: &spaneval::SpanReport) -> Result<(
         }
         t.print(out)?;
     }
+    writeln!(out)?;
+    print_reliability(out, &r.reliability)?;
     Ok(())
 }
 
-fn run_semeval(g: &Global, a: &EvalArgs, ex: &hearsay::claims::Extractor) -> Result<ExitCode> {
-    let text = read(&a.gold)?;
-    let items =
-        eval::parse_semeval(&text).map_err(|e| anyhow::anyhow!("{}: {e}", a.gold.display()))?;
-    let (scores, scored) = eval::score_pairs(ex, &items);
+/// The one-row summary both gold kinds print: leading counts, tp/fp/fn with precision, recall
+/// and F1, then trailing columns.
+fn summary_table(
+    out: &mut impl Write,
+    lead: &[(&str, String)],
+    prf: &spaneval::Prf,
+    tail: &[(&str, String)],
+) -> Result<()> {
+    let counts = [
+        ("tp", prf.tp.to_string()),
+        ("fp", prf.fp.to_string()),
+        ("fn", prf.fn_.to_string()),
+        ("precision", ratio3(prf.precision)),
+        ("recall", ratio3(prf.recall)),
+        ("f1", ratio3(prf.f1)),
+    ];
+    let cells: Vec<&(&str, String)> = lead.iter().chain(&counts).chain(tail).collect();
+    let heads: Vec<&str> = cells.iter().map(|c| c.0).collect();
+    let mut t = Table::new(&heads);
+    t.row(cells.iter().map(|c| c.1.clone()).collect());
+    t.print(out)?;
+    Ok(())
+}
+
+/// The reliability table: confidence bins against observed precision, then ECE and Brier score.
+pub(super) fn print_reliability(out: &mut impl Write, r: &eval::Reliability) -> Result<()> {
+    let mut t = Table::new(&[
+        "confidence",
+        "claims",
+        "mean confidence",
+        "observed precision",
+    ]);
+    for b in r.bins.iter().filter(|b| b.claims > 0) {
+        t.row(vec![
+            format!("{:.1}-{:.1}", b.low, b.high),
+            b.claims.to_string(),
+            ratio3(b.mean_confidence),
+            ratio3(b.observed_precision),
+        ]);
+    }
+    t.print(out)?;
+    writeln!(
+        out,
+        "judged claims {}, correct {}; expected calibration error {:.3}; Brier score {:.3}",
+        r.claims, r.correct, r.expected_calibration_error, r.brier
+    )?;
+    Ok(())
+}
+
+/// Items that `--errors` lists.
+fn is_error(s: &&eval::Scored) -> bool {
+    !matches!(
+        s.outcome,
+        eval::Outcome::TruePositive | eval::Outcome::TrueNegative
+    )
+}
+
+fn run_semeval(
+    g: &Global,
+    a: &EvalArgs,
+    ex: &hearsay::claims::Extractor,
+    items: &[eval::GoldItem],
+) -> Result<ExitCode> {
+    let (scores, scored) = eval::score_pairs(ex, items);
     let mut out = std::io::stdout().lock();
     if g.format() == Format::Json {
         writeln!(out, "{}", serde_json::to_string(&scores)?)?;
         if a.errors {
-            for s in scored.iter().filter(|s| {
-                !matches!(
-                    s.outcome,
-                    eval::Outcome::TruePositive | eval::Outcome::TrueNegative
-                )
-            }) {
+            for s in scored.iter().filter(is_error) {
                 writeln!(out, "{}", serde_json::to_string(s)?)?;
             }
         }
         return Ok(ExitCode::SUCCESS);
     }
-    let mut t = Table::new(&[
-        "items",
-        "positives",
-        "tp",
-        "fp",
-        "fn",
-        "precision",
-        "recall",
-        "f1",
-        "claims on negatives",
-    ]);
-    t.row(vec![
-        scores.items.to_string(),
-        scores.positives.to_string(),
-        scores.tp.to_string(),
-        scores.fp.to_string(),
-        scores.fn_.to_string(),
-        format!("{:.3}", scores.precision),
-        format!("{:.3}", scores.recall),
-        format!("{:.3}", scores.f1),
-        format!("{:.2}%", scores.negative_claim_rate * 100.0),
-    ]);
-    t.print(&mut out)?;
+    let prf = spaneval::Prf {
+        tp: scores.tp,
+        fp: scores.fp,
+        fn_: scores.fn_,
+        precision: scores.precision,
+        recall: scores.recall,
+        f1: scores.f1,
+    };
+    summary_table(
+        &mut out,
+        &[
+            ("items", scores.items.to_string()),
+            ("positives", scores.positives.to_string()),
+        ],
+        &prf,
+        &[(
+            "claims on negatives",
+            format!("{:.2}%", scores.negative_claim_rate * 100.0),
+        )],
+    )?;
     writeln!(out)?;
     let mut c = Table::new(&["cue", "tp", "fp"]);
     let mut cues: Vec<_> = scores.by_cue.iter().collect();
@@ -283,13 +325,10 @@ fn run_semeval(g: &Global, a: &EvalArgs, ex: &hearsay::claims::Extractor) -> Res
         c.row(vec![id.clone(), s.tp.to_string(), s.fp.to_string()]);
     }
     c.print(&mut out)?;
+    writeln!(out)?;
+    print_reliability(&mut out, &scores.reliability)?;
     if a.errors {
-        for s in scored.iter().filter(|s| {
-            !matches!(
-                s.outcome,
-                eval::Outcome::TruePositive | eval::Outcome::TrueNegative
-            )
-        }) {
+        for s in scored.iter().filter(is_error) {
             writeln!(out, "\n{} {:?}: {}", s.id, s.outcome, s.text)?;
             if let Some((c, e)) = &s.gold {
                 writeln!(out, "  gold:      {c} -> {e}")?;

@@ -18,6 +18,7 @@ mod questions;
 mod scan;
 mod score;
 mod top;
+mod train_confidence;
 mod train_tagger;
 
 use anyhow::{Context, Result};
@@ -106,6 +107,8 @@ pub enum Command {
     Eval(eval::EvalArgs),
     /// Train the part-of-speech tagger from CoNLL-U treebanks (writes patterns/tagger.model).
     TrainTagger(train_tagger::TrainTaggerArgs),
+    /// Train the claim confidence model from labelled data (writes patterns/confidence.toml).
+    TrainConfidence(train_confidence::TrainConfidenceArgs),
     /// Export the claim graph (GraphML, GEXF, DOT, node-link JSON, CSV) for network tools.
     Graph(graph::GraphArgs),
     /// Indirect chains of stated edges from X to Y, ranked, with the sign of each chain.
@@ -157,6 +160,9 @@ pub struct ClaimFilter {
     /// Only claims with this modality (asserted, hedged, negated, question, conditional).
     #[arg(long, value_parser = parse_word::<Modality>)]
     pub modality: Option<Modality>,
+    /// Only claims whose confidence (0 to 1, see docs/confidence.md) is at least this.
+    #[arg(long, value_name = "P", value_parser = parse_confidence)]
+    pub min_confidence: Option<f32>,
 }
 
 impl ClaimFilter {
@@ -165,7 +171,18 @@ impl ClaimFilter {
             kind: self.kind,
             polarity: self.polarity,
             modality: self.modality,
+            min_confidence: self.min_confidence,
         }
+    }
+}
+
+/// A confidence threshold: a number from 0 to 1.
+pub fn parse_confidence(s: &str) -> Result<f32, String> {
+    match s.trim().parse::<f32>() {
+        Ok(x) if (0.0..=1.0).contains(&x) => Ok(x),
+        _ => Err(format!(
+            "not a confidence: {s:?} (use a number from 0 to 1)"
+        )),
     }
 }
 
@@ -198,6 +215,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Explain(a) => explain::run(g, a),
         Command::Eval(a) => eval::run(g, a),
         Command::TrainTagger(a) => train_tagger::run(g, a),
+        Command::TrainConfidence(a) => train_confidence::run(g, a),
         Command::Patterns(a) => patterns::run(g, a),
         Command::Questions(a) => questions::run(g, a),
         Command::Graph(a) => graph::run(g, a),
@@ -231,6 +249,16 @@ impl Global {
 
     pub fn extractor(&self) -> Result<Extractor> {
         let set = self.pattern_set()?;
+        // A pattern folder may carry its own confidence model.
+        if let Some(f) = self.patterns.as_ref().map(|d| d.join("confidence.toml")) {
+            if f.exists() {
+                let text = std::fs::read_to_string(&f)
+                    .with_context(|| format!("cannot read {}", f.display()))?;
+                let m = hearsay::confidence::Model::parse(&f.display().to_string(), &text)?;
+                // Already installed by an earlier call in this process: the same file.
+                let _ = hearsay::confidence::install(m);
+            }
+        }
         Extractor::new(&set)
             .map_err(|e| anyhow::anyhow!(e))
             .context("cannot compile the cue patterns")

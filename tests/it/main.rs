@@ -4,6 +4,7 @@
 mod common;
 mod compare;
 mod compare_stats;
+mod confidence;
 mod external;
 mod graph;
 mod graph_analyses;

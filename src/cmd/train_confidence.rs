@@ -1,0 +1,153 @@
+//! `hearsay train-confidence`: fit the claim confidence model on labelled data, reproducibly, and
+//! report its calibration on held-out sentences.
+
+use super::eval::{load_gold, print_reliability, Gold, GoldFormat};
+use super::Global;
+use anyhow::{Context, Result};
+use clap::{Args, ValueEnum};
+use hearsay::confidence::{self, Example, TrainOptions};
+use hearsay::eval::{self, Judged, Reliability};
+use hearsay::spaneval;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "Defaults reproduce patterns/confidence.toml from the shared training data: \
+SemEval-2010 Task 8 train, BECAUSE CongressionalHearings and the Causal News Corpus subtask 2 \
+train split, under ../shared/data. Each claim the extractor finds is labelled right or wrong by \
+the matching rule of `hearsay eval`; sentences whose hash falls in the held-out share are left \
+out of training and used to print the reliability table. Training is Newton's method on the \
+L2-penalised log loss; the same data and options give the same file, byte for byte.
+
+Run it after any change to the cue patterns or the span logic:  hearsay train-confidence"
+)]
+pub struct TrainConfidenceArgs {
+    /// Where to write the model.
+    #[arg(long, value_name = "FILE", default_value = "patterns/confidence.toml")]
+    pub out: PathBuf,
+    /// Labelled data as FORMAT=PATH (formats as in `eval --gold-format`); repeat for several.
+    #[arg(
+        long = "gold",
+        value_name = "FORMAT=PATH",
+        value_parser = parse_gold,
+        default_values = [
+            "semeval2010=../shared/data/semeval2010-task8/TRAIN_FILE.TXT",
+            "because=../shared/data/because/CongressionalHearings",
+            "cnc=../shared/data/causal-news-corpus/train_subtask2.csv",
+        ]
+    )]
+    pub gold: Vec<(GoldFormat, PathBuf)>,
+    /// One sentence in N is held out (chosen by a hash of document and sentence offset).
+    #[arg(long, default_value_t = 5, value_name = "N")]
+    pub hold_out: u8,
+    /// The L2 penalty on the weights.
+    #[arg(long, default_value_t = 1.0)]
+    pub l2: f64,
+    /// Features seen in fewer training claims than this get no weight.
+    #[arg(long, default_value_t = 5, value_name = "N")]
+    pub min_count: usize,
+}
+
+fn parse_gold(s: &str) -> Result<(GoldFormat, PathBuf), String> {
+    let (f, p) = s
+        .split_once('=')
+        .ok_or_else(|| format!("expected FORMAT=PATH, got {s:?}"))?;
+    let format = GoldFormat::from_str(f, true).map_err(|e| format!("{f:?}: {e}"))?;
+    Ok((format, PathBuf::from(p)))
+}
+
+pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
+    let ex = g.extractor()?;
+    let mut judged: Vec<(String, Judged)> = Vec::new();
+    let mut sources = Vec::new();
+    for (format, path) in &a.gold {
+        let name = format
+            .to_possible_value()
+            .map_or_else(String::new, |v| v.get_name().to_string());
+        let found = match load_gold(*format, path)? {
+            Gold::Pairs(items) => eval::score_pairs_judged(&ex, &items).2,
+            Gold::Docs(docs) => spaneval::score_spans_judged(&ex, &docs).2,
+        };
+        let file = path.file_name().map_or_else(
+            || path.display().to_string(),
+            |f| f.to_string_lossy().into_owned(),
+        );
+        sources.push(format!("{name} {file}: {} judged claims", found.len()));
+        eprintln!("{name} {}: {} judged claims", path.display(), found.len());
+        judged.extend(found.into_iter().map(|j| (name.clone(), j)));
+    }
+    let (mut train, mut dev) = (Vec::new(), Vec::new());
+    for (name, j) in &judged {
+        let s = confidence::TaggedSentence::new(&j.sentence, j.claim.source.start);
+        let features = confidence::features(
+            &j.claim,
+            confidence::family(&ex, &j.claim.cue),
+            &s,
+            j.claims_here,
+        );
+        let e = Example {
+            features,
+            correct: j.correct,
+        };
+        if confidence::is_held_out(&confidence::unit_key(name, &j.unit), a.hold_out) {
+            dev.push(e);
+        } else {
+            train.push(e);
+        }
+    }
+    if train.is_empty() {
+        anyhow::bail!("no judged claims to train on");
+    }
+    let opts = TrainOptions {
+        l2: a.l2,
+        min_count: a.min_count,
+        ..TrainOptions::default()
+    };
+    let model = confidence::train(&train, opts);
+    let rel = Reliability::from_outcomes(
+        dev.iter()
+            .map(|e| (model.probability(&e.features), e.correct)),
+    );
+    let base = train.iter().filter(|e| e.correct).count() as f64 / train.len() as f64;
+    let baseline = Reliability::from_outcomes(dev.iter().map(|e| (base, e.correct)));
+    let mut header = vec![
+        "hearsay claim confidence model: logistic regression over named features of a claim."
+            .to_string(),
+        "confidence = 1 / (1 + exp(-(bias + sum of the weights of the claim's features)))."
+            .to_string(),
+        "Trained by `hearsay train-confidence` (see docs/confidence.md); licences of the data in"
+            .to_string(),
+        "patterns/confidence.NOTICE. Data:".to_string(),
+    ];
+    header.extend(sources.iter().map(|s| format!("  {s}")));
+    header.push(format!(
+        "Options: hold-out 1 in {}, l2 {}, min-count {}. {} training claims, {} held out.",
+        a.hold_out,
+        a.l2,
+        a.min_count,
+        train.len(),
+        dev.len()
+    ));
+    header.push(format!(
+        "Held out: expected calibration error {:.3}, Brier score {:.3} (constant {:.3}: ECE {:.3}, Brier {:.3}).",
+        rel.expected_calibration_error, rel.brier, base, baseline.expected_calibration_error, baseline.brier
+    ));
+    std::fs::write(&a.out, model.to_toml(&header))
+        .with_context(|| format!("cannot write {}", a.out.display()))?;
+    let mut err = std::io::stderr().lock();
+    eprintln!(
+        "wrote {} ({} weights); {} training claims, {} held out",
+        a.out.display(),
+        model.weights.len(),
+        train.len(),
+        dev.len()
+    );
+    eprintln!("held-out reliability:");
+    print_reliability(&mut err, &rel)?;
+    eprintln!(
+        "a constant {base:.3} on the same claims: ECE {:.3}, Brier {:.3}",
+        baseline.expected_calibration_error, baseline.brier
+    );
+    Ok(ExitCode::SUCCESS)
+}
