@@ -482,7 +482,7 @@ pub fn unit_key(dataset: &str, unit: &str) -> String {
 /// Which examples are held out: a fixed share chosen by a hash of a unit key (document and
 /// sentence), so that the split does not depend on order and one sentence never straddles it.
 pub fn is_held_out(unit: &str, every: u8) -> bool {
-    blake3::hash(unit.as_bytes()).as_bytes()[0] % every.max(1) == 0
+    blake3::hash(unit.as_bytes()).as_bytes()[0].is_multiple_of(every.max(1))
 }
 
 #[cfg(test)]

@@ -182,8 +182,8 @@ pub fn selected_edges(g: &ClaimGraph, s: &Selection) -> Vec<(NodeIndex, NodeInde
                 continue;
             }
             for &m in adj.get(&n).into_iter().flatten() {
-                if !dist.contains_key(&m) {
-                    dist.insert(m, d + 1);
+                if let std::collections::hash_map::Entry::Vacant(v) = dist.entry(m) {
+                    v.insert(d + 1);
                     queue.push_back(m);
                 }
             }

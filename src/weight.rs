@@ -141,6 +141,7 @@ mod tests {
             modality: m,
             cue: "x".into(),
             doc: doc.into(),
+            confidence: 1.0,
             line: 1,
             sentence,
             at: ClaimRef {

@@ -2,15 +2,15 @@
 //! patterns, the store and the graph).
 
 mod claims;
+mod compare;
 mod conflicts;
 mod cycles;
-mod compare;
 mod eval;
 mod explain;
 mod extract;
 mod graph;
-mod merge;
 mod matrix;
+mod merge;
 mod pair;
 mod paths;
 mod patterns;

@@ -101,9 +101,9 @@ fn compare_on_the_demo_matches_an_independent_computation() {
     for r in csv::Reader::from_reader(out.stdout.as_slice()).records() {
         let id = r.unwrap()[0].to_string();
         let d = digit(&id);
-        let eager = if d % 7 == 0 {
+        let eager = if d.is_multiple_of(7) {
             "unsure"
-        } else if d % 5 == 0 {
+        } else if d.is_multiple_of(5) {
             "no"
         } else {
             "yes"
