@@ -497,7 +497,8 @@ mod tests {
 
     #[test]
     fn buckets_read_as_ranges() {
-        assert_eq!(bucket(1, &[1, 2, 3, 5]), "1");
+        assert_eq!(bucket(1, &[1, 2, 3, 5]), "0-1");
+        assert_eq!(bucket(2, &[1, 2, 3, 5]), "2");
         assert_eq!(bucket(4, &[1, 2, 3, 5]), "4-5");
         assert_eq!(bucket(9, &[1, 2, 3, 5]), "6+");
         assert_eq!(bucket(0, &[1, 2]), "0-1");
