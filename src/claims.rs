@@ -11,7 +11,8 @@
 use crate::cues::{CueMatch, CueSet, SlotPlace};
 use crate::model::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::normalize::Normalizer;
-use crate::patterns::{Lexicon, PatternSet};
+use crate::patterns::{Lexicon, PatternSet, Role};
+use crate::tagger::{Tag, Tagger};
 use regex::Regex;
 use std::collections::HashSet;
 use std::sync::OnceLock;
@@ -25,6 +26,8 @@ pub struct Token {
     pub word: bool,
     /// The token starts with an upper-case letter.
     pub capital: bool,
+    /// Part of speech, filled in by `Extractor::tag_tokens` for sentences where a cue fired.
+    pub tag: Option<Tag>,
 }
 
 fn token_regex() -> &'static Regex {
@@ -48,6 +51,7 @@ pub fn tokenize(sentence: &str) -> Vec<Token> {
                 lower: s.to_lowercase().replace('’', "'"),
                 word,
                 capital: s.chars().next().is_some_and(char::is_uppercase),
+                tag: None,
             }
         })
         .collect()
@@ -91,6 +95,8 @@ pub struct Extractor {
     verb_group: HashSet<String>,
     right_skip: HashSet<String>,
     single_negators: HashSet<String>,
+    /// The part-of-speech tagger, loaded once per process.
+    tagger: &'static Tagger,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -154,7 +160,16 @@ impl Extractor {
             verb_group,
             right_skip,
             single_negators,
+            tagger: Tagger::load_builtin(),
         })
+    }
+
+    /// Tag the words of a tokenised sentence (only sentences where a cue fired get here).
+    pub fn tag_tokens(&self, sentence: &str, toks: &mut [Token]) {
+        let words: Vec<&str> = toks.iter().map(|t| &sentence[t.start..t.end]).collect();
+        for (t, tag) in toks.iter_mut().zip(self.tagger.tag(&words)) {
+            t.tag = Some(tag);
+        }
     }
 
     fn adverb(&self, w: &str) -> bool {
@@ -488,7 +503,9 @@ impl Extractor {
         if matches.is_empty() {
             return;
         }
-        let toks = tokenize(sent.text);
+        let mut toks = tokenize(sent.text);
+        self.tag_tokens(sent.text, &mut toks);
+        let toks = toks;
         let mut blocked = vec![false; toks.len()];
         let cue_tokens: Vec<(usize, usize)> = matches
             .iter()
@@ -606,6 +623,9 @@ impl Extractor {
                 ));
             }
         }
+        if let Some(why) = self.tagged_noun_use(toks, ca, cue.left == Some(Role::Cause)) {
+            return Some(why);
+        }
         let before = ca.checked_sub(1).map(|i| &toks[i].lower)?;
         if self.lexicon.determiners.contains(before)
             || (self.lexicon.prepositions.contains(before) && before != "to")
@@ -615,6 +635,75 @@ impl Extractor {
             ));
         }
         None
+    }
+
+    /// The tagger's reading of a verb cue's first word. A noun or adjective reading ("tax
+    /// increases hurt growth", "the speed limit proposal") wins only when the clause has another
+    /// finite verb to be its predicate; a past participle between a noun and a noun, with no
+    /// "have" before it, is a modifier ("a purpose driven animal"), not an active statement.
+    fn tagged_noun_use(&self, toks: &[Token], ca: usize, active: bool) -> Option<String> {
+        let tag = toks[ca].tag?;
+        let w = &toks[ca].lower;
+        if tag.is_noun() || tag.is_adjective() {
+            let (a, b) = self.clause_around(toks, ca);
+            // An auxiliary counts only with a verb of its own after it ("was rejected"), not
+            // when it merely opens a question ("Does X cause Y?").
+            let aux = &self.lexicon.auxiliaries;
+            let other_verb = (a..b).any(|i| {
+                let t = &toks[i];
+                if i == ca || !t.tag.is_some_and(Tag::is_finite_verb) {
+                    return false;
+                }
+                if !aux.contains(&t.lower) {
+                    return true;
+                }
+                let mut j = i + 1;
+                while j < b
+                    && (self.single_negators.contains(&toks[j].lower) || self.adverb(&toks[j].lower))
+                {
+                    j += 1;
+                }
+                j < b && j != ca && toks[j].tag.is_some_and(Tag::is_verb)
+            });
+            if other_verb {
+                return Some(format!(
+                    "\"{w}\" is tagged {tag} and the clause has another finite verb: a noun use, not a statement"
+                ));
+            }
+        }
+        if active && tag.is_participle() {
+            let mut i = ca;
+            while i > 0 && toks[i - 1].word && self.adverb(&toks[i - 1].lower) {
+                i -= 1;
+            }
+            let prev = i.checked_sub(1).map(|i| &toks[i]);
+            let perfect = prev.is_some_and(|t| {
+                matches!(t.lower.as_str(), "have" | "has" | "had" | "having" | "'ve" | "'d")
+            });
+            let modifier = prev.is_some_and(|t| t.tag.is_some_and(Tag::is_nominal))
+                && toks
+                    .get(ca + 1)
+                    .is_some_and(|t| t.tag.is_some_and(|g| g.is_noun() || g.is_adjective()));
+            if !perfect && modifier {
+                return Some(format!(
+                    "\"{w}\" is a past participle between nominals: a modifier, not an active statement"
+                ));
+            }
+        }
+        None
+    }
+
+    /// The clause around token `i`: bounded by clause punctuation and clause-breaking words.
+    fn clause_around(&self, toks: &[Token], i: usize) -> (usize, usize) {
+        let mut a = i;
+        while a > 0 && !self.clause_boundary(&toks[a - 1]) && !self.lexicon.relatives.contains(&toks[a - 1].lower) {
+            a -= 1;
+        }
+        let mut b = i + 1;
+        while b < toks.len() && !self.clause_boundary(&toks[b]) && !self.lexicon.relatives.contains(&toks[b].lower) {
+            b += 1;
+        }
+        (a, b)
     }
 
     #[allow(clippy::too_many_arguments)]

@@ -55,6 +55,21 @@ impl Tag {
     pub fn is_adjective(self) -> bool {
         self.as_str().starts_with("JJ")
     }
+    /// Past participle (VBN).
+    pub fn is_participle(self) -> bool {
+        self.as_str() == "VBN"
+    }
+    /// Proper noun, singular or plural.
+    pub fn is_proper_noun(self) -> bool {
+        self.as_str().starts_with("NNP")
+    }
+    /// A word that can stand inside a noun phrase before its head: determiner, adjective,
+    /// number, possessive, noun.
+    pub fn is_nominal(self) -> bool {
+        self.is_noun()
+            || self.is_adjective()
+            || matches!(self.as_str(), "DT" | "CD" | "PRP$" | "POS" | "HYPH" | "PDT")
+    }
 }
 
 impl fmt::Display for Tag {
