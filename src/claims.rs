@@ -127,6 +127,13 @@ struct Chosen {
 
 const CLAUSE_CAP_EXTRA: usize = 4;
 
+/// Prepositions whose phrase may attach to the noun before it inside a span ("cracks in the
+/// walls", "damage to the roof"); agent and source prepositions ("by", "from") never do.
+const PP_ATTACH: &[&str] = &["in", "on", "at", "to", "for", "among", "within", "across", "around"];
+
+/// The longest span, in words, that an attached prepositional phrase may make.
+const PP_MAX_WORDS: usize = 7;
+
 impl Extractor {
     pub fn new(set: &PatternSet) -> Result<Extractor, String> {
         let lexicon = set.lexicon.clone();
@@ -282,10 +289,43 @@ impl Extractor {
             && !(self.np_boundary(&toks[j])
                 && !(j == start && self.single_negators.contains(&toks[j].lower)))
             && !self.lexicon.prepositions.contains(&toks[j].lower)
+            && !(j > start && toks[j].tag.is_some_and(Tag::is_finite_verb))
         {
             j += 1;
         }
-        Span { from: start, to: j }
+        let mut span = Span { from: start, to: j };
+        while let Some(to) = self.attached_pp(toks, span, blocked) {
+            span.to = to;
+        }
+        span
+    }
+
+    /// "damage to the sea wall": a prepositional phrase that belongs to the noun phrase ending
+    /// at `span.to` (a locative or goal preposition followed by a tagged noun phrase). Returns
+    /// the new end, or `None` when there is none or the span would pass `PP_MAX_WORDS`.
+    fn attached_pp(&self, toks: &[Token], span: Span, blocked: &[bool]) -> Option<usize> {
+        let p = span.to;
+        if span.is_empty()
+            || !toks.get(p).is_some_and(|t| PP_ATTACH.contains(&t.lower.as_str()))
+            || blocked[p]
+            || !toks[p - 1].tag.is_some_and(Tag::is_noun)
+        {
+            return None;
+        }
+        let mut j = p + 1;
+        while j < toks.len()
+            && !blocked[j]
+            && toks[j].word
+            && toks[j].tag.is_some_and(Tag::is_nominal)
+            && !self.np_boundary(&toks[j])
+        {
+            j += 1;
+        }
+        // The phrase must end in a noun, and the span stay short enough for a noun phrase.
+        if j == p + 1 || !toks[j - 1].tag.is_some_and(Tag::is_noun) || j - span.from > PP_MAX_WORDS {
+            return None;
+        }
+        Some(j)
     }
 
     /// The clause before token `from`, for connective cues.
@@ -644,32 +684,11 @@ impl Extractor {
     fn tagged_noun_use(&self, toks: &[Token], ca: usize, active: bool) -> Option<String> {
         let tag = toks[ca].tag?;
         let w = &toks[ca].lower;
-        if tag.is_noun() || tag.is_adjective() {
-            let (a, b) = self.clause_around(toks, ca);
-            // An auxiliary counts only with a verb of its own after it ("was rejected"), not
-            // when it merely opens a question ("Does X cause Y?").
-            let aux = &self.lexicon.auxiliaries;
-            let other_verb = (a..b).any(|i| {
-                let t = &toks[i];
-                if i == ca || !t.tag.is_some_and(Tag::is_finite_verb) {
-                    return false;
-                }
-                if !aux.contains(&t.lower) {
-                    return true;
-                }
-                let mut j = i + 1;
-                while j < b
-                    && (self.single_negators.contains(&toks[j].lower) || self.adverb(&toks[j].lower))
-                {
-                    j += 1;
-                }
-                j < b && j != ca && toks[j].tag.is_some_and(Tag::is_verb)
-            });
-            if other_verb {
-                return Some(format!(
-                    "\"{w}\" is tagged {tag} and the clause has another finite verb: a noun use, not a statement"
-                ));
-            }
+        let other_verb = self.other_predicate(toks, ca);
+        if (tag.is_noun() || tag.is_adjective()) && other_verb {
+            return Some(format!(
+                "\"{w}\" is tagged {tag} and the clause has another predicate: a noun use, not a statement"
+            ));
         }
         if active && tag.is_participle() {
             let mut i = ca;
@@ -684,13 +703,41 @@ impl Extractor {
                 && toks
                     .get(ca + 1)
                     .is_some_and(|t| t.tag.is_some_and(|g| g.is_noun() || g.is_adjective()));
-            if !perfect && modifier {
+            if !perfect && modifier && other_verb {
                 return Some(format!(
                     "\"{w}\" is a past participle between nominals: a modifier, not an active statement"
                 ));
             }
         }
         None
+    }
+
+    /// Whether the clause around the cue word at `ca` has a predicate of its own: a copula or
+    /// an auxiliary with its verb ("was rejected"), or a finite verb at least one word away from
+    /// the cue (the tagger is least sure right next to an ambiguous word). An auxiliary that only
+    /// opens a question ("Does X cause Y?") does not count.
+    fn other_predicate(&self, toks: &[Token], ca: usize) -> bool {
+        let (a, b) = self.clause_around(toks, ca);
+        let aux = &self.lexicon.auxiliaries;
+        (a..b).any(|i| {
+            let t = &toks[i];
+            if i == ca || !t.tag.is_some_and(Tag::is_finite_verb) {
+                return false;
+            }
+            if !aux.contains(&t.lower) {
+                return i + 1 < ca || i > ca + 1;
+            }
+            if matches!(t.lower.as_str(), "is" | "are" | "was" | "were" | "am") {
+                return true;
+            }
+            let mut j = i + 1;
+            while j < b
+                && (self.single_negators.contains(&toks[j].lower) || self.adverb(&toks[j].lower))
+            {
+                j += 1;
+            }
+            j < b && j != ca && toks[j].tag.is_some_and(Tag::is_verb)
+        })
     }
 
     /// The clause around token `i`: bounded by clause punctuation and clause-breaking words.
