@@ -129,7 +129,9 @@ const CLAUSE_CAP_EXTRA: usize = 4;
 
 /// Prepositions whose phrase may attach to the noun before it inside a span ("cracks in the
 /// walls", "damage to the roof"); agent and source prepositions ("by", "from") never do.
-const PP_ATTACH: &[&str] = &["in", "on", "at", "to", "for", "among", "within", "across", "around"];
+const PP_ATTACH: &[&str] = &[
+    "in", "on", "at", "to", "for", "among", "within", "across", "around",
+];
 
 /// The longest span, in words, that an attached prepositional phrase may make.
 const PP_MAX_WORDS: usize = 7;
@@ -306,7 +308,9 @@ impl Extractor {
     fn attached_pp(&self, toks: &[Token], span: Span, blocked: &[bool]) -> Option<usize> {
         let p = span.to;
         if span.is_empty()
-            || !toks.get(p).is_some_and(|t| PP_ATTACH.contains(&t.lower.as_str()))
+            || !toks
+                .get(p)
+                .is_some_and(|t| PP_ATTACH.contains(&t.lower.as_str()))
             || blocked[p]
             || !toks[p - 1].tag.is_some_and(Tag::is_noun)
         {
@@ -322,7 +326,8 @@ impl Extractor {
             j += 1;
         }
         // The phrase must end in a noun, and the span stay short enough for a noun phrase.
-        if j == p + 1 || !toks[j - 1].tag.is_some_and(Tag::is_noun) || j - span.from > PP_MAX_WORDS {
+        if j == p + 1 || !toks[j - 1].tag.is_some_and(Tag::is_noun) || j - span.from > PP_MAX_WORDS
+        {
             return None;
         }
         Some(j)
@@ -697,7 +702,10 @@ impl Extractor {
             }
             let prev = i.checked_sub(1).map(|i| &toks[i]);
             let perfect = prev.is_some_and(|t| {
-                matches!(t.lower.as_str(), "have" | "has" | "had" | "having" | "'ve" | "'d")
+                matches!(
+                    t.lower.as_str(),
+                    "have" | "has" | "had" | "having" | "'ve" | "'d"
+                )
             });
             let modifier = prev.is_some_and(|t| t.tag.is_some_and(Tag::is_nominal))
                 && toks
@@ -743,11 +751,17 @@ impl Extractor {
     /// The clause around token `i`: bounded by clause punctuation and clause-breaking words.
     fn clause_around(&self, toks: &[Token], i: usize) -> (usize, usize) {
         let mut a = i;
-        while a > 0 && !self.clause_boundary(&toks[a - 1]) && !self.lexicon.relatives.contains(&toks[a - 1].lower) {
+        while a > 0
+            && !self.clause_boundary(&toks[a - 1])
+            && !self.lexicon.relatives.contains(&toks[a - 1].lower)
+        {
             a -= 1;
         }
         let mut b = i + 1;
-        while b < toks.len() && !self.clause_boundary(&toks[b]) && !self.lexicon.relatives.contains(&toks[b].lower) {
+        while b < toks.len()
+            && !self.clause_boundary(&toks[b])
+            && !self.lexicon.relatives.contains(&toks[b].lower)
+        {
             b += 1;
         }
         (a, b)
