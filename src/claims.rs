@@ -11,7 +11,8 @@
 use crate::cues::{CueMatch, CueSet, SlotPlace};
 use crate::model::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::normalize::Normalizer;
-use crate::patterns::{Lexicon, PatternSet};
+use crate::patterns::{Lexicon, PatternSet, Role};
+use crate::tagger::{Tag, Tagger};
 use regex::Regex;
 use std::collections::HashSet;
 use std::sync::OnceLock;
@@ -25,6 +26,8 @@ pub struct Token {
     pub word: bool,
     /// The token starts with an upper-case letter.
     pub capital: bool,
+    /// Part of speech, filled in by `Extractor::tag_tokens` for sentences where a cue fired.
+    pub tag: Option<Tag>,
 }
 
 fn token_regex() -> &'static Regex {
@@ -48,6 +51,7 @@ pub fn tokenize(sentence: &str) -> Vec<Token> {
                 lower: s.to_lowercase().replace('’', "'"),
                 word,
                 capital: s.chars().next().is_some_and(char::is_uppercase),
+                tag: None,
             }
         })
         .collect()
@@ -91,6 +95,8 @@ pub struct Extractor {
     verb_group: HashSet<String>,
     right_skip: HashSet<String>,
     single_negators: HashSet<String>,
+    /// The part-of-speech tagger, loaded once per process.
+    tagger: &'static Tagger,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -120,6 +126,15 @@ struct Chosen {
 }
 
 const CLAUSE_CAP_EXTRA: usize = 4;
+
+/// Prepositions whose phrase may attach to the noun before it inside a span ("cracks in the
+/// walls", "damage to the roof"); agent and source prepositions ("by", "from") never do.
+const PP_ATTACH: &[&str] = &[
+    "in", "on", "at", "to", "for", "among", "within", "across", "around",
+];
+
+/// The longest span, in words, that an attached prepositional phrase may make.
+const PP_MAX_WORDS: usize = 7;
 
 impl Extractor {
     pub fn new(set: &PatternSet) -> Result<Extractor, String> {
@@ -154,7 +169,16 @@ impl Extractor {
             verb_group,
             right_skip,
             single_negators,
+            tagger: Tagger::load_builtin(),
         })
+    }
+
+    /// Tag the words of a tokenised sentence (only sentences where a cue fired get here).
+    pub fn tag_tokens(&self, sentence: &str, toks: &mut [Token]) {
+        let words: Vec<&str> = toks.iter().map(|t| &sentence[t.start..t.end]).collect();
+        for (t, tag) in toks.iter_mut().zip(self.tagger.tag(&words)) {
+            t.tag = Some(tag);
+        }
     }
 
     fn adverb(&self, w: &str) -> bool {
@@ -267,10 +291,46 @@ impl Extractor {
             && !(self.np_boundary(&toks[j])
                 && !(j == start && self.single_negators.contains(&toks[j].lower)))
             && !self.lexicon.prepositions.contains(&toks[j].lower)
+            && !(j > start && toks[j].tag.is_some_and(Tag::is_finite_verb))
         {
             j += 1;
         }
-        Span { from: start, to: j }
+        let mut span = Span { from: start, to: j };
+        while let Some(to) = self.attached_pp(toks, span, blocked) {
+            span.to = to;
+        }
+        span
+    }
+
+    /// "damage to the sea wall": a prepositional phrase that belongs to the noun phrase ending
+    /// at `span.to` (a locative or goal preposition followed by a tagged noun phrase). Returns
+    /// the new end, or `None` when there is none or the span would pass `PP_MAX_WORDS`.
+    fn attached_pp(&self, toks: &[Token], span: Span, blocked: &[bool]) -> Option<usize> {
+        let p = span.to;
+        if span.is_empty()
+            || !toks
+                .get(p)
+                .is_some_and(|t| PP_ATTACH.contains(&t.lower.as_str()))
+            || blocked[p]
+            || !toks[p - 1].tag.is_some_and(Tag::is_noun)
+        {
+            return None;
+        }
+        let mut j = p + 1;
+        while j < toks.len()
+            && !blocked[j]
+            && toks[j].word
+            && toks[j].tag.is_some_and(Tag::is_nominal)
+            && !self.np_boundary(&toks[j])
+        {
+            j += 1;
+        }
+        // The phrase must end in a noun, and the span stay short enough for a noun phrase.
+        if j == p + 1 || !toks[j - 1].tag.is_some_and(Tag::is_noun) || j - span.from > PP_MAX_WORDS
+        {
+            return None;
+        }
+        Some(j)
     }
 
     /// The clause before token `from`, for connective cues.
@@ -488,7 +548,9 @@ impl Extractor {
         if matches.is_empty() {
             return;
         }
-        let toks = tokenize(sent.text);
+        let mut toks = tokenize(sent.text);
+        self.tag_tokens(sent.text, &mut toks);
+        let toks = toks;
         let mut blocked = vec![false; toks.len()];
         let cue_tokens: Vec<(usize, usize)> = matches
             .iter()
@@ -606,6 +668,9 @@ impl Extractor {
                 ));
             }
         }
+        if let Some(why) = self.tagged_noun_use(toks, ca, cue.left == Some(Role::Cause)) {
+            return Some(why);
+        }
         let before = ca.checked_sub(1).map(|i| &toks[i].lower)?;
         if self.lexicon.determiners.contains(before)
             || (self.lexicon.prepositions.contains(before) && before != "to")
@@ -615,6 +680,91 @@ impl Extractor {
             ));
         }
         None
+    }
+
+    /// The tagger's reading of a verb cue's first word. A noun or adjective reading ("tax
+    /// increases hurt growth", "the speed limit proposal") wins only when the clause has another
+    /// finite verb to be its predicate; a past participle between a noun and a noun, with no
+    /// "have" before it, is a modifier ("a purpose driven animal"), not an active statement.
+    fn tagged_noun_use(&self, toks: &[Token], ca: usize, active: bool) -> Option<String> {
+        let tag = toks[ca].tag?;
+        let w = &toks[ca].lower;
+        let other_verb = self.other_predicate(toks, ca);
+        if (tag.is_noun() || tag.is_adjective()) && other_verb {
+            return Some(format!(
+                "\"{w}\" is tagged {tag} and the clause has another predicate: a noun use, not a statement"
+            ));
+        }
+        if active && tag.is_participle() {
+            let mut i = ca;
+            while i > 0 && toks[i - 1].word && self.adverb(&toks[i - 1].lower) {
+                i -= 1;
+            }
+            let prev = i.checked_sub(1).map(|i| &toks[i]);
+            let perfect = prev.is_some_and(|t| {
+                matches!(
+                    t.lower.as_str(),
+                    "have" | "has" | "had" | "having" | "'ve" | "'d"
+                )
+            });
+            let modifier = prev.is_some_and(|t| t.tag.is_some_and(Tag::is_nominal))
+                && toks
+                    .get(ca + 1)
+                    .is_some_and(|t| t.tag.is_some_and(|g| g.is_noun() || g.is_adjective()));
+            if !perfect && modifier && other_verb {
+                return Some(format!(
+                    "\"{w}\" is a past participle between nominals: a modifier, not an active statement"
+                ));
+            }
+        }
+        None
+    }
+
+    /// Whether the clause around the cue word at `ca` has a predicate of its own: a copula or
+    /// an auxiliary with its verb ("was rejected"), or a finite verb at least one word away from
+    /// the cue (the tagger is least sure right next to an ambiguous word). An auxiliary that only
+    /// opens a question ("Does X cause Y?") does not count.
+    fn other_predicate(&self, toks: &[Token], ca: usize) -> bool {
+        let (a, b) = self.clause_around(toks, ca);
+        let aux = &self.lexicon.auxiliaries;
+        (a..b).any(|i| {
+            let t = &toks[i];
+            if i == ca || !t.tag.is_some_and(Tag::is_finite_verb) {
+                return false;
+            }
+            if !aux.contains(&t.lower) {
+                return i + 1 < ca || i > ca + 1;
+            }
+            if matches!(t.lower.as_str(), "is" | "are" | "was" | "were" | "am") {
+                return true;
+            }
+            let mut j = i + 1;
+            while j < b
+                && (self.single_negators.contains(&toks[j].lower) || self.adverb(&toks[j].lower))
+            {
+                j += 1;
+            }
+            j < b && j != ca && toks[j].tag.is_some_and(Tag::is_verb)
+        })
+    }
+
+    /// The clause around token `i`: bounded by clause punctuation and clause-breaking words.
+    fn clause_around(&self, toks: &[Token], i: usize) -> (usize, usize) {
+        let mut a = i;
+        while a > 0
+            && !self.clause_boundary(&toks[a - 1])
+            && !self.lexicon.relatives.contains(&toks[a - 1].lower)
+        {
+            a -= 1;
+        }
+        let mut b = i + 1;
+        while b < toks.len()
+            && !self.clause_boundary(&toks[b])
+            && !self.lexicon.relatives.contains(&toks[b].lower)
+        {
+            b += 1;
+        }
+        (a, b)
     }
 
     #[allow(clippy::too_many_arguments)]

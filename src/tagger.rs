@@ -12,6 +12,10 @@
 //! when the model is saved, which keeps the file small at almost no cost in accuracy.
 
 use std::collections::HashMap;
+
+/// The tagger's lookup tables: many short-string lookups per word, so a fast non-keyed hash
+/// (the keys come from the shipped model, not from untrusted input, so flooding is not a concern).
+type FastMap<K, V> = HashMap<K, V, rustc_hash::FxBuildHasher>;
 use std::fmt;
 use std::sync::OnceLock;
 
@@ -55,6 +59,21 @@ impl Tag {
     pub fn is_adjective(self) -> bool {
         self.as_str().starts_with("JJ")
     }
+    /// Past participle (VBN).
+    pub fn is_participle(self) -> bool {
+        self.as_str() == "VBN"
+    }
+    /// Proper noun, singular or plural.
+    pub fn is_proper_noun(self) -> bool {
+        self.as_str().starts_with("NNP")
+    }
+    /// A word that can stand inside a noun phrase before its head: determiner, adjective,
+    /// number, possessive, noun.
+    pub fn is_nominal(self) -> bool {
+        self.is_noun()
+            || self.is_adjective()
+            || matches!(self.as_str(), "DT" | "CD" | "PRP$" | "POS" | "HYPH" | "PDT")
+    }
 }
 
 impl fmt::Display for Tag {
@@ -74,8 +93,18 @@ pub struct ModelError {
 /// A trained tagger.
 #[derive(Debug, Clone, Default)]
 pub struct Tagger {
-    weights: HashMap<String, Vec<(u8, f32)>>,
-    dict: HashMap<String, Tag>,
+    weights: FastMap<String, Vec<(u8, f32)>>,
+    dict: FastMap<String, Tag>,
+    /// `weights` keyed by a 64-bit hash of the feature, built on first use: tagging then hashes
+    /// the feature text once and compares integers, not strings.
+    by_hash: OnceLock<FastMap<u64, Vec<(u8, f32)>>>,
+}
+
+fn feature_hash(f: &str) -> u64 {
+    use std::hash::Hasher as _;
+    let mut h = rustc_hash::FxHasher::default();
+    h.write(f.as_bytes());
+    h.finish()
 }
 
 const START: [&str; 2] = ["-START-", "-START2-"];
@@ -122,8 +151,17 @@ fn norm(w: &str) -> String {
     }
 }
 
-/// The features of word `i`, given the two previous tags.
-fn features(words: &[&str], lowered: &[String], i: usize, p1: &str, p2: &str) -> Vec<String> {
+/// Call `f` with each feature of word `i`, given the two previous tags. Features are written into
+/// one reused buffer, so tagging allocates nothing per feature.
+fn visit_features(
+    words: &[&str],
+    lowered: &[String],
+    i: usize,
+    (p1, p2): (&str, &str),
+    buf: &mut String,
+    mut f: impl FnMut(&str),
+) {
+    use std::fmt::Write as _;
     let w = lowered[i].as_str();
     let raw = words[i];
     let prev = if i > 0 {
@@ -138,27 +176,44 @@ fn features(words: &[&str], lowered: &[String], i: usize, p1: &str, p2: &str) ->
     };
     let next = lowered.get(i + 1).map_or("-END-", String::as_str);
     let next2 = lowered.get(i + 2).map_or("-END2-", String::as_str);
-    let first = raw.chars().next().map(String::from).unwrap_or_default();
-    vec![
-        "b".to_string(),
-        format!("w {w}"),
-        format!("s1 {}", suffix(w, 1)),
-        format!("s2 {}", suffix(w, 2)),
-        format!("s3 {}", suffix(w, 3)),
-        format!("s4 {}", suffix(w, 4)),
-        format!("p1 {}", first),
-        format!("sh {}", shape(raw)),
-        format!("t1 {p1}"),
-        format!("t2 {p2} {p1}"),
-        format!("t1w {p1} {w}"),
-        format!("w-1 {prev}"),
-        format!("w-2 {prev2}"),
-        format!("s3-1 {}", suffix(prev, 3)),
-        format!("w+1 {next}"),
-        format!("s3+1 {}", suffix(next, 3)),
-        format!("w+2 {next2}"),
-        format!("first {}", i == 0),
-    ]
+    let first = raw.chars().next();
+    let mut emit = |args: std::fmt::Arguments<'_>| {
+        buf.clear();
+        // Writing into a String cannot fail.
+        let _ = buf.write_fmt(args);
+        f(buf);
+    };
+    emit(format_args!("b"));
+    emit(format_args!("w {w}"));
+    emit(format_args!("s1 {}", suffix(w, 1)));
+    emit(format_args!("s2 {}", suffix(w, 2)));
+    emit(format_args!("s3 {}", suffix(w, 3)));
+    emit(format_args!("s4 {}", suffix(w, 4)));
+    match first {
+        Some(c) => emit(format_args!("p1 {c}")),
+        None => emit(format_args!("p1 ")),
+    }
+    emit(format_args!("sh {}", shape(raw)));
+    emit(format_args!("t1 {p1}"));
+    emit(format_args!("t2 {p2} {p1}"));
+    emit(format_args!("t1w {p1} {w}"));
+    emit(format_args!("w-1 {prev}"));
+    emit(format_args!("w-2 {prev2}"));
+    emit(format_args!("s3-1 {}", suffix(prev, 3)));
+    emit(format_args!("w+1 {next}"));
+    emit(format_args!("s3+1 {}", suffix(next, 3)));
+    emit(format_args!("w+2 {next2}"));
+    emit(format_args!("first {}", i == 0));
+}
+
+/// The features of word `i` as owned strings (training).
+fn features(words: &[&str], lowered: &[String], i: usize, p1: &str, p2: &str) -> Vec<String> {
+    let mut out = Vec::with_capacity(18);
+    let mut buf = String::new();
+    visit_features(words, lowered, i, (p1, p2), &mut buf, |f| {
+        out.push(f.to_string())
+    });
+    out
 }
 
 impl Tagger {
@@ -176,6 +231,13 @@ impl Tagger {
         let lowered: Vec<String> = words.iter().map(|w| norm(w)).collect();
         let mut out: Vec<Tag> = Vec::with_capacity(words.len());
         let mut scores = vec![0f32; TAGS.len()];
+        let mut buf = String::with_capacity(64);
+        let weights = self.by_hash.get_or_init(|| {
+            self.weights
+                .iter()
+                .map(|(f, ws)| (feature_hash(f), ws.clone()))
+                .collect()
+        });
         for i in 0..words.len() {
             if let Some(&t) = self.dict.get(&lowered[i]) {
                 out.push(t);
@@ -184,13 +246,13 @@ impl Tagger {
             let p1 = if i > 0 { out[i - 1].as_str() } else { START[0] };
             let p2 = if i > 1 { out[i - 2].as_str() } else { START[1] };
             scores.iter_mut().for_each(|s| *s = 0.0);
-            for f in features(words, &lowered, i, p1, p2) {
-                if let Some(ws) = self.weights.get(&f) {
+            visit_features(words, &lowered, i, (p1, p2), &mut buf, |f| {
+                if let Some(ws) = weights.get(&feature_hash(f)) {
                     for &(c, w) in ws {
                         scores[c as usize] += w;
                     }
                 }
-            }
+            });
             out.push(Tag(argmax(&scores)));
         }
         out
@@ -368,7 +430,7 @@ pub fn train(
             *counts.entry(norm(w)).or_default().entry(*t).or_default() += 1;
         }
     }
-    let mut dict = HashMap::new();
+    let mut dict = FastMap::default();
     for (w, c) in &counts {
         let total: usize = c.values().sum();
         if let Some((t, n)) = c.iter().max_by_key(|(t, n)| (**n, std::cmp::Reverse(**t))) {
@@ -458,7 +520,7 @@ pub fn train(
             order.swap(i, (rng % (i as u64 + 1)) as usize);
         }
     }
-    let mut weights = HashMap::new();
+    let mut weights = FastMap::default();
     for (f, c) in cells {
         let ws: Vec<(u8, f32)> = (0..nt)
             .map(|k| {
@@ -471,7 +533,11 @@ pub fn train(
             weights.insert(f, ws);
         }
     }
-    Tagger { weights, dict }
+    Tagger {
+        weights,
+        dict,
+        by_hash: OnceLock::new(),
+    }
 }
 
 #[cfg(test)]

@@ -51,11 +51,11 @@ fn because_congressional_hearings_precision_recall_and_sign() {
         r["gold_claims"], 281,
         "events with both a Cause and an Effect"
     );
-    assert!(f(&r["precision"]) >= 0.18, "{r}");
-    assert!(f(&r["recall"]) >= 0.10, "{r}");
-    assert!(f(&r["f1"]) >= 0.13, "{r}");
+    assert!(f(&r["precision"]) >= 0.19, "{r}");
+    assert!(f(&r["recall"]) >= 0.115, "{r}");
+    assert!(f(&r["f1"]) >= 0.145, "{r}");
     assert!(f(&r["sign_accuracy"]["accuracy"]) >= 0.9, "{r}");
-    assert!(r["sign_accuracy"]["labelled"].as_u64().unwrap() >= 25);
+    assert!(r["sign_accuracy"]["labelled"].as_u64().unwrap() >= 32);
 }
 
 /// Source: Causal News Corpus V2, training split, subtask 2 (Tan et al. 2022), CC0;
@@ -77,8 +77,8 @@ fn causal_news_corpus_subtask2_claim_level() {
     );
     assert_eq!(r["gold_claims"], 2257, "one gold pair per CSV row");
     assert_eq!(r["documents"], 1624, "rows grouped by sentence");
-    assert!(f(&r["precision"]) >= 0.18, "{r}");
-    assert!(f(&r["recall"]) >= 0.024, "{r}");
+    assert!(f(&r["precision"]) >= 0.21, "{r}");
+    assert!(f(&r["recall"]) >= 0.030, "{r}");
 }
 
 /// Source: Causal News Corpus V2, training split, subtask 1 (sentence causal or not), CC0;
@@ -114,9 +114,9 @@ fn modality_on_invented_sentences() {
     );
     assert!(r["documents"].as_u64().unwrap() >= 150);
     assert!(f(&m["accuracy"]) >= 0.94, "{r}");
-    assert!(m["labelled"].as_u64().unwrap() >= 135, "{r}");
+    assert!(m["labelled"].as_u64().unwrap() >= 160, "{r}");
     assert!(f(&r["kind_accuracy"]["accuracy"]) >= 0.99, "{r}");
-    assert!(f(&r["recall"]) >= 0.8, "{r}");
+    assert!(f(&r["recall"]) >= 0.95, "{r}");
 }
 
 #[test]
