@@ -17,6 +17,7 @@ pub mod eval;
 pub mod export;
 pub mod gold;
 pub mod graph;
+pub mod html;
 pub mod model;
 pub mod normalize;
 pub mod patterns;

@@ -9,6 +9,7 @@ mod graph;
 mod pair;
 mod patterns;
 mod questions;
+mod report;
 mod scan;
 mod top;
 mod train_tagger;
@@ -102,6 +103,8 @@ pub enum Command {
     Patterns(patterns::PatternsArgs),
     /// Write the question set for a variable list: every ordered pair in every wording.
     Questions(questions::QuestionsArgs),
+    /// Write one self-contained HTML page: summary, claim graph, plots, tables and evidence.
+    Report(report::ReportArgs),
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -159,6 +162,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Patterns(a) => patterns::run(g, a),
         Command::Questions(a) => questions::run(g, a),
         Command::Graph(a) => graph::run(g, a),
+        Command::Report(a) => report::run(g, a),
     }
 }
 
