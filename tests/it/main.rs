@@ -6,5 +6,6 @@ mod external;
 mod graph;
 mod hostile;
 mod quality;
+mod report_html;
 mod store;
 mod subcommands;
