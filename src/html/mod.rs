@@ -209,13 +209,16 @@ pub struct Report {
     pub pair: Option<PairReport>,
 }
 
+/// A `--pair` variable as `report::lookup` found it.
+pub type Looked = (VarMatch, Option<NodeIndex>);
+
 /// What to gather beside the graph.
 pub struct Sources<'a> {
     pub store: &'a mut Store,
     /// Cue id → family name.
     pub families: &'a HashMap<String, String>,
     /// The `--pair` variables, already looked up.
-    pub pair: Option<((VarMatch, Option<NodeIndex>), (VarMatch, Option<NodeIndex>))>,
+    pub pair: Option<(Looked, Looked)>,
 }
 
 /// Gather the report's data.
@@ -564,8 +567,8 @@ pub fn co_mention_pairs(
 pub fn pair_co_mentions(
     g: &ClaimGraph,
     store: &mut Store,
-    x: &(VarMatch, Option<NodeIndex>),
-    y: &(VarMatch, Option<NodeIndex>),
+    x: &Looked,
+    y: &Looked,
 ) -> Result<usize, StoreError> {
     let (xt, yt) = (key_terms(&x.0.key), key_terms(&y.0.key));
     if xt.is_empty() || yt.is_empty() || x.0.key == y.0.key {

@@ -70,9 +70,8 @@ fn fmt(v: f64) -> String {
 
 /// About five round ticks from 0 to `max`.
 fn linear_ticks(max: usize) -> (usize, Vec<(f64, String)>) {
-    let step = [1usize, 2, 5]
-        .iter()
-        .flat_map(|&m| (0..12).map(move |e| m * 10usize.pow(e)))
+    let step = (0..12)
+        .flat_map(|e| [1usize, 2, 5].map(|m| m * 10usize.pow(e)))
         .find(|&s| s * 5 >= max.max(1))
         .unwrap_or(1);
     let top = max.max(1).div_ceil(step) * step;
