@@ -21,6 +21,7 @@ pub mod eval;
 pub mod export;
 pub mod gold;
 pub mod graph;
+pub mod html;
 pub mod model;
 pub mod normalize;
 pub mod patterns;

@@ -15,6 +15,7 @@ mod pair;
 mod paths;
 mod patterns;
 mod questions;
+mod report;
 mod scan;
 mod score;
 mod top;
@@ -127,6 +128,8 @@ pub enum Command {
     Questions(questions::QuestionsArgs),
     /// Set a model's answers to the question set beside what the corpus states.
     Compare(compare::CompareArgs),
+    /// Write one self-contained HTML page: summary, claim graph, plots, tables and evidence.
+    Report(report::ReportArgs),
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -226,6 +229,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Matrix(a) => matrix::run(g, a),
         Command::Score(a) => score::run(g, a),
         Command::Compare(a) => compare::run(g, a),
+        Command::Report(a) => report::run(g, a),
     }
 }
 

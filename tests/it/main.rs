@@ -12,5 +12,6 @@ mod hostile;
 mod merge;
 mod quality;
 mod spark;
+mod report_html;
 mod store;
 mod subcommands;

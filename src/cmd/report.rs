@@ -1,0 +1,88 @@
+//! `hearsay report`: one self-contained HTML page with the corpus summary, the claim graph,
+//! plots, tables and evidence.
+
+use super::{ClaimFilter, Global};
+use anyhow::{Context, Result};
+use clap::Args;
+use hearsay::html::{self, Options, Sources};
+use hearsay::report;
+use std::collections::HashMap;
+use std::io::Write;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+#[derive(Args, Debug)]
+#[command(
+    after_help = "The page has no external resources (styles, script and figures are inlined), \
+so it opens offline and can be sent as one file. Sections: corpus summary, the claim graph \
+(heaviest causal edges; click an edge for its evidence), plots, top relations, conflicts, and \
+pairs named together but never stated causal; --pair adds a section for two variables.\n\n\
+Every number counts statements found in text; none is evidence that a causation is real."
+)]
+pub struct ReportArgs {
+    /// Write the page to FILE (default: stdout).
+    #[arg(long, short = 'o', value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// The page title.
+    #[arg(long, default_value = "Claim report", value_name = "TEXT")]
+    pub title: String,
+    /// Causal edges drawn in the graph picture.
+    #[arg(long, default_value_t = 40, value_name = "N")]
+    pub edges: usize,
+    /// Evidence sentences per edge (and per direction in the pair section).
+    #[arg(long, default_value_t = 3, value_name = "N")]
+    pub evidence: usize,
+    /// Rows per table.
+    #[arg(long, default_value_t = 50, value_name = "N")]
+    pub rows: usize,
+    /// How many of the most-mentioned variables the co-mention table pairs up.
+    #[arg(long, default_value_t = 25, value_name = "N")]
+    pub co_mention_vars: usize,
+    /// Add a section on what the corpus says about two variables.
+    #[arg(long, num_args = 2, value_names = ["X", "Y"])]
+    pub pair: Option<Vec<String>>,
+    #[command(flatten)]
+    pub filter: ClaimFilter,
+}
+
+pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
+    let mut loaded = g.graph(&a.filter.to_filter())?;
+    let families: HashMap<String, String> = g
+        .pattern_set()?
+        .cues
+        .into_iter()
+        .map(|c| (c.id, c.family))
+        .collect();
+    let pair = a.pair.as_deref().and_then(|p| match p {
+        [x, y] => Some((
+            report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, x),
+            report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, y),
+        )),
+        _ => None,
+    });
+    let opts = Options {
+        title: a.title.clone(),
+        edges: a.edges,
+        evidence: a.evidence,
+        rows: a.rows,
+        co_mention_vars: a.co_mention_vars,
+    };
+    let data = html::collect(
+        &loaded.graph,
+        Sources {
+            store: &mut loaded.store,
+            families: &families,
+            pair,
+        },
+        &opts,
+    )
+    .context("cannot gather the report's data from the store")?;
+    let page = html::render(&data);
+    match &a.output {
+        Some(p) => {
+            std::fs::write(p, page).with_context(|| format!("cannot write {}", p.display()))?
+        }
+        None => std::io::stdout().lock().write_all(page.as_bytes())?,
+    }
+    Ok(ExitCode::SUCCESS)
+}
