@@ -226,8 +226,36 @@ impl Tagger {
         })
     }
 
-    /// Tag a tokenised sentence.
+    /// Tag a tokenised sentence. For the built-in model the last sentence tagged on each thread
+    /// is remembered, so the span finder and the confidence model, which both need the tags of a
+    /// sentence with a claim, tag it once.
     pub fn tag(&self, words: &[&str]) -> Vec<Tag> {
+        thread_local! {
+            static LAST: std::cell::RefCell<(Vec<String>, Vec<Tag>)> =
+                const { std::cell::RefCell::new((Vec::new(), Vec::new())) };
+        }
+        if !std::ptr::eq(self, Tagger::load_builtin()) {
+            return self.tag_uncached(words);
+        }
+        let hit = LAST.with(|l| {
+            let l = l.borrow();
+            (l.0.len() == words.len() && l.0.iter().zip(words).all(|(a, b)| a == b))
+                .then(|| l.1.clone())
+        });
+        if let Some(tags) = hit {
+            return tags;
+        }
+        let tags = self.tag_uncached(words);
+        LAST.with(|l| {
+            let mut l = l.borrow_mut();
+            l.0.clear();
+            l.0.extend(words.iter().map(|w| w.to_string()));
+            l.1.clone_from(&tags);
+        });
+        tags
+    }
+
+    fn tag_uncached(&self, words: &[&str]) -> Vec<Tag> {
         let lowered: Vec<String> = words.iter().map(|w| norm(w)).collect();
         let mut out: Vec<Tag> = Vec::with_capacity(words.len());
         let mut scores = vec![0f32; TAGS.len()];

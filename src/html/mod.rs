@@ -600,6 +600,7 @@ mod tests {
             cue: "raise".into(),
             doc: doc.into(),
             line: 1,
+            confidence: 1.0,
             sentence: 0,
             at: ClaimRef {
                 segment: 0,

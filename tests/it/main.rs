@@ -11,7 +11,7 @@ mod graph_analyses;
 mod hostile;
 mod merge;
 mod quality;
-mod spark;
 mod report_html;
+mod spark;
 mod store;
 mod subcommands;
