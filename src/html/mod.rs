@@ -8,9 +8,10 @@
 //! escaped text nodes or attribute values; the inlined script is a constant and reads nothing
 //! but the page's own elements.
 //!
-//! The conflict rule ([`conflicts`]) and the co-mention count ([`co_mention_pairs`],
-//! [`pair_co_mentions`]) are kept as small functions here so that shared library versions can
-//! replace them without touching the page.
+//! Co-mentions are counted with [`crate::comention`], as `pair` and `compare` count them. The
+//! page's conflict marks ([`conflicts`]: opposite signs, or stated and denied, on one edge) are
+//! still a rule of their own; `analysis::conflicts` (which also pairs the two directions) should
+//! replace it.
 
 mod graph_svg;
 pub mod layout;
@@ -236,7 +237,7 @@ pub fn collect(g: &ClaimGraph, src: Sources<'_>, opts: &Options) -> Result<Repor
     co_mentions.truncate(opts.rows);
     let pair = match src.pair {
         Some((x, y)) => {
-            let n = pair_co_mentions(g, store, &x, &y)?;
+            let n = crate::comention::pair_co_mentions(store, g, (&x.0.key, x.1), (&y.0.key, y.1))?;
             Some(report::pair_report(g, x, y, n, opts.evidence, |r| {
                 evidence_text(g, store, r)
             }))
@@ -489,16 +490,6 @@ fn family_counts(g: &ClaimGraph, families: &HashMap<String, String>) -> Vec<(Str
     v
 }
 
-/// Sentences (document, start) in which any claim joins `a` and `b`, in either order.
-fn claimed_sentences(g: &ClaimGraph, a: NodeIndex, b: NodeIndex) -> BTreeSet<(String, u64)> {
-    [g.edge(a, b), g.edge(b, a), g.association(a, b)]
-        .into_iter()
-        .flatten()
-        .flat_map(|rel| rel.rows.iter())
-        .map(|&r| (g.rows[r].doc.clone(), g.rows[r].sentence))
-        .collect()
-}
-
 /// True when every index term of one key is a term of the other, so that every sentence naming
 /// the longer one names the shorter one too.
 fn nested(a: &str, b: &str) -> bool {
@@ -540,11 +531,14 @@ pub fn co_mention_pairs(
             {
                 continue;
             }
-            let claimed = claimed_sentences(g, a, b);
-            let sentences = sets[i]
-                .intersection(&sets[j])
-                .filter(|s| !claimed.contains(*s))
-                .count();
+            let sentences = crate::comention::unclaimed(
+                g,
+                Some(a),
+                Some(b),
+                sets[i]
+                    .intersection(&sets[j])
+                    .map(|(d, s)| (d.as_str(), *s)),
+            );
             if sentences > 0 {
                 out.push(CoMention {
                     a: g.graph[a].label.clone(),
@@ -561,25 +555,6 @@ pub fn co_mention_pairs(
             .then_with(|| (&x.a, &x.b).cmp(&(&y.a, &y.b)))
     });
     Ok(out)
-}
-
-/// Sentences naming both variables of the `--pair` section with no claim between them.
-pub fn pair_co_mentions(
-    g: &ClaimGraph,
-    store: &mut Store,
-    x: &Looked,
-    y: &Looked,
-) -> Result<usize, StoreError> {
-    let (xt, yt) = (key_terms(&x.0.key), key_terms(&y.0.key));
-    if xt.is_empty() || yt.is_empty() || x.0.key == y.0.key {
-        return Ok(0);
-    }
-    let both = store.sentence_ids_with(&[&xt, &yt])?;
-    let claimed = match (x.1, y.1) {
-        (Some(a), Some(b)) => claimed_sentences(g, a, b),
-        _ => BTreeSet::new(),
-    };
-    Ok(both.difference(&claimed).count())
 }
 
 #[cfg(test)]
