@@ -1,6 +1,6 @@
 //! `hearsay compare ANSWERS`: a model's answers to the question set beside the corpus's support.
 
-use super::{escape, write_rows, Format, Global};
+use super::{escape, write_rows, Format, Global, Loaded};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
 use hearsay::comention::MentionIndex;
@@ -11,7 +11,7 @@ use hearsay::graph::Filter;
 use hearsay::questions as q;
 use hearsay::report;
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 #[derive(Args, Debug)]
@@ -65,27 +65,34 @@ pub enum View {
     Pairs,
 }
 
-pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
-    let mut loaded = g.graph(&Filter::default())?;
-    let wordings = q::load_wordings(a.questions.as_deref()).context("cannot load the wordings")?;
-    let questions = if a.vars.is_some() || a.pairs.is_some() {
-        let pairs = super::questions::read_pairs(
-            &loaded.normalizer,
-            a.vars.as_deref(),
-            a.pairs.as_deref(),
-        )?;
+/// The answers file and the question set it refers to (shared with `report --compare`).
+pub struct AnswerSource<'a> {
+    pub answers: &'a Path,
+    pub vars: Option<&'a Path>,
+    pub pairs: Option<&'a Path>,
+    pub questions: Option<&'a Path>,
+}
+
+/// Read the answers and index the mentions of every variable they ask about.
+pub fn load_answers(
+    loaded: &mut Loaded,
+    src: &AnswerSource<'_>,
+) -> Result<(Vec<cmp::Answer>, Vec<cmp::Asked>, MentionIndex)> {
+    let wordings = q::load_wordings(src.questions).context("cannot load the wordings")?;
+    let questions = if src.vars.is_some() || src.pairs.is_some() {
+        let pairs = super::questions::read_pairs(&loaded.normalizer, src.vars, src.pairs)?;
         q::questions(&pairs, &wordings, true)
     } else {
         Vec::new()
     };
-    let text = std::fs::read_to_string(&a.answers)
-        .with_context(|| format!("cannot read {}", a.answers.display()))?;
+    let text = std::fs::read_to_string(src.answers)
+        .with_context(|| format!("cannot read {}", src.answers.display()))?;
     let cx = AnswerContext {
         normalizer: &loaded.normalizer,
         wordings: &wordings,
         questions: &questions,
     };
-    let answers = cmp::read_answers(&a.answers, &text, &cx)?;
+    let answers = cmp::read_answers(src.answers, &text, &cx)?;
     let asked = cmp::asked(&answers);
     let keys: Vec<String> = asked
         .iter()
@@ -94,6 +101,20 @@ pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
         .collect();
     let mentions = MentionIndex::build(&mut loaded.store, keys.iter().map(String::as_str))
         .context("cannot search the sentence index")?;
+    Ok((answers, asked, mentions))
+}
+
+pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
+    let mut loaded = g.graph(&Filter::default())?;
+    let (answers, asked, mentions) = load_answers(
+        &mut loaded,
+        &AnswerSource {
+            answers: &a.answers,
+            vars: a.vars.as_deref(),
+            pairs: a.pairs.as_deref(),
+            questions: a.questions.as_deref(),
+        },
+    )?;
     let corpus = Corpus {
         graph: &loaded.graph,
         aliases: &loaded.aliases,

@@ -16,7 +16,8 @@ use std::process::ExitCode;
     after_help = "The page has no external resources (styles, script and figures are inlined), \
 so it opens offline and can be sent as one file. Sections: corpus summary, the claim graph \
 (heaviest causal edges; click an edge for its evidence), plots, top relations, conflicts, and \
-pairs named together but never stated causal; --pair adds a section for two variables.\n\n\
+pairs named together but never stated causal; --pair adds a section for two variables, and \
+--compare ANSWERS (with --vars or --pairs) the model-comparison summary of `hearsay compare`.\n\n\
 Every number counts statements found in text; none is evidence that a causation is real."
 )]
 pub struct ReportArgs {
@@ -41,6 +42,23 @@ pub struct ReportArgs {
     /// Add a section on what the corpus says about two variables.
     #[arg(long, num_args = 2, value_names = ["X", "Y"])]
     pub pair: Option<Vec<String>>,
+    /// Add the model-comparison summary of `hearsay compare` for this answers file.
+    #[arg(long, value_name = "ANSWERS")]
+    pub compare: Option<PathBuf>,
+    /// With --compare: the variable list the questions were made from (to look up ids).
+    #[arg(
+        long,
+        value_name = "FILE",
+        requires = "compare",
+        conflicts_with = "pairs"
+    )]
+    pub vars: Option<PathBuf>,
+    /// With --compare: the pair list the questions were made from (to look up ids).
+    #[arg(long, value_name = "FILE", requires = "compare")]
+    pub pairs: Option<PathBuf>,
+    /// With --compare: support a question needs for the corpus answer to be yes.
+    #[arg(long, default_value_t = 1, value_name = "N")]
+    pub threshold: usize,
     #[command(flatten)]
     pub filter: ClaimFilter,
 }
@@ -67,7 +85,29 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
         rows: a.rows,
         co_mention_vars: a.co_mention_vars,
     };
-    let data = html::collect(
+    let comparison = match &a.compare {
+        Some(path) => {
+            let (answers, asked, mentions) = super::compare::load_answers(
+                &mut loaded,
+                &super::compare::AnswerSource {
+                    answers: path,
+                    vars: a.vars.as_deref(),
+                    pairs: a.pairs.as_deref(),
+                    questions: None,
+                },
+            )?;
+            let corpus = hearsay::compare::Corpus {
+                graph: &loaded.graph,
+                aliases: &loaded.aliases,
+                mentions: &mentions,
+                sentences: loaded.store.manifest.totals().1,
+            };
+            let profiles = hearsay::compare::profiles(&corpus, &asked, a.threshold.max(1));
+            Some(hearsay::compare::summarise(&answers, &profiles).summaries)
+        }
+        None => None,
+    };
+    let mut data = html::collect(
         &loaded.graph,
         Sources {
             store: &mut loaded.store,
@@ -77,6 +117,7 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
         &opts,
     )
     .context("cannot gather the report's data from the store")?;
+    data.comparison = comparison;
     let page = html::render(&data);
     match &a.output {
         Some(p) => {

@@ -208,6 +208,8 @@ pub struct Report {
     pub conflicts: Vec<Conflict>,
     pub co_mentions: Vec<CoMention>,
     pub pair: Option<PairReport>,
+    /// With `--compare`: the per-model, per-family summaries of `hearsay compare`.
+    pub comparison: Option<Vec<crate::compare::Summary>>,
 }
 
 /// A `--pair` variable as `report::lookup` found it.
@@ -258,6 +260,7 @@ pub fn collect(g: &ClaimGraph, src: Sources<'_>, opts: &Options) -> Result<Repor
         conflicts,
         co_mentions,
         pair,
+        comparison: None,
     })
 }
 

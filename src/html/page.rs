@@ -38,6 +38,7 @@ pub fn render(r: &Report) -> String {
                         a href="#conflicts" { "Conflicts" } " · "
                         a href="#co-mentions" { "Co-mentioned, never stated" }
                         @if r.pair.is_some() { " · " a href="#pair" { "Pair" } }
+                        @if r.comparison.is_some() { " · " a href="#compare" { "Model answers" } }
                     }
                 }
                 main {
@@ -57,6 +58,7 @@ pub fn render(r: &Report) -> String {
                     (conflicts_table(r))
                     (co_mention_table(r))
                     @if let Some(p) = &r.pair { (pair_section(p)) }
+                    @if let Some(c) = &r.comparison { (compare_section(c)) }
                 }
                 footer { p { "Written by hearsay " (r.summary.hearsay_version) ". " (CAVEAT) } }
                 script { (PreEscaped(SCRIPT)) }
@@ -168,6 +170,36 @@ fn conflicts_table(r: &Report) -> Markup {
                                 td.num { (c.increase) } td.num { (c.decrease) } td.num { (c.affirming) }
                                 td.num { (c.denying) } td.num { (c.documents) }
                             }
+                        }
+                    }
+                }
+            }
+        }
+    }
+}
+
+fn compare_section(rows: &[crate::compare::Summary]) -> Markup {
+    let num = |v: Option<f64>| v.map_or_else(|| "–".to_string(), |x| format!("{x:.3}"));
+    html! {
+        section #compare {
+            h2 { "Model answers beside the corpus" }
+            p { "Per model and wording family, how closely the answers follow what the corpus states (as " code { "hearsay compare" } " reports it): agreement with the corpus answer, Cohen's kappa, ROC AUC of corpus support as a predictor of a yes, Spearman correlation of support and the probability of yes, yes in both directions, and questions whose wordings got different answers. Agreement means an answer repeats the text, not that it is right." }
+            table.sortable {
+                thead { tr {
+                    (th("model", false)) (th("family", false)) (th("questions", true))
+                    (th("yes", true)) (th("corpus yes", true)) (th("agreement", true))
+                    (th("kappa", true)) (th("AUC", true)) (th("Spearman", true))
+                    (th("yes both ways", true)) (th("corpus states both", true))
+                    (th("wordings differ", true))
+                } }
+                tbody {
+                    @for c in rows {
+                        tr {
+                            td { (c.model) } td { (c.family) } td.num { (c.questions) }
+                            td.num { (c.yes) } td.num { (c.corpus_yes) } td.num { (num(c.agreement)) }
+                            td.num { (num(c.kappa)) } td.num { (num(c.auc)) } td.num { (num(c.spearman)) }
+                            td.num { (c.model_yes_both) } td.num { (c.corpus_states_both) }
+                            td.num { (c.wording_differ) }
                         }
                     }
                 }
