@@ -204,7 +204,7 @@ pub fn legend() -> Markup {
                 }
             }
             li { span.badge-key { "?" } " at least half the claims hedged, conditional or asked" }
-            li { span.badge-key.disputed { "!" } " disputed: opposite signs, or stated and denied (see Conflicts)" }
+            li { span.badge-key.disputed { "!" } " disputed: stated both ways, with opposite signs, or stated and denied (see Conflicts)" }
             li { "Line width: support (claims not negated). Circle size: mentions of the variable." }
         }
     }

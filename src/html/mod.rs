@@ -9,9 +9,7 @@
 //! but the page's own elements.
 //!
 //! Co-mentions are counted with [`crate::comention`], as `pair` and `compare` count them. The
-//! page's conflict marks ([`conflicts`]: opposite signs, or stated and denied, on one edge) are
-//! still a rule of their own; `analysis::conflicts` (which also pairs the two directions) should
-//! replace it.
+//! page's conflicts are `analysis::conflicts`, as `hearsay conflicts` lists them.
 
 mod graph_svg;
 pub mod layout;
@@ -154,23 +152,6 @@ pub struct PictureEdge {
     pub evidence: Vec<EvidenceLine>,
 }
 
-/// Why a relation is listed as a conflict.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct Conflict {
-    pub cause: String,
-    pub effect: String,
-    pub cause_key: String,
-    pub effect_key: String,
-    pub increase: usize,
-    pub decrease: usize,
-    /// Claims stating an effect (not negated, not "no effect").
-    pub affirming: usize,
-    /// Negated and "no effect" claims.
-    pub denying: usize,
-    pub documents: usize,
-    pub reason: &'static str,
-}
-
 /// A pair of variables named together in sentences but never in a causal claim.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct CoMention {
@@ -205,7 +186,8 @@ pub struct Report {
     /// Cue family → claims.
     pub families: Vec<(String, usize)>,
     pub top: Vec<TopRelation>,
-    pub conflicts: Vec<Conflict>,
+    /// `analysis::conflicts`, as `hearsay conflicts` lists them.
+    pub conflicts: Vec<crate::analysis::Conflict>,
     pub co_mentions: Vec<CoMention>,
     pub pair: Option<PairReport>,
     /// With `--compare`: the per-model, per-family summaries of `hearsay compare`.
@@ -227,10 +209,15 @@ pub struct Sources<'a> {
 /// Gather the report's data.
 pub fn collect(g: &ClaimGraph, src: Sources<'_>, opts: &Options) -> Result<Report, StoreError> {
     let store = src.store;
-    let conflicts = conflicts(g);
+    let conflicts = crate::analysis::conflicts(g, 1);
+    // A conflict marks the edges it is about: both of them when the two directions are stated.
     let disputed: BTreeSet<(&str, &str)> = conflicts
         .iter()
-        .map(|c| (c.cause_key.as_str(), c.effect_key.as_str()))
+        .flat_map(|c| {
+            let (x, y) = (c.x.as_str(), c.y.as_str());
+            let both = c.kind == crate::analysis::ConflictKind::BothDirections;
+            std::iter::once((x, y)).chain(both.then_some((y, x)))
+        })
         .collect();
     let (nodes, edges) = picture(g, store, opts, &disputed);
     let mut top = report::top_relations(g, 1, 1);
@@ -397,61 +384,6 @@ fn picture(
     (nodes, edges)
 }
 
-/// Relations whose claims disagree: opposite signs, or an effect both stated and denied.
-/// Ranked by the number of claims on the smaller side, then by documents.
-pub fn conflicts(g: &ClaimGraph) -> Vec<Conflict> {
-    let mut out = Vec::new();
-    for (a, b, rel) in g.edges() {
-        let c = &rel.counts;
-        let increase = c.polarity(Polarity::Increase);
-        let decrease = c.polarity(Polarity::Decrease) + c.polarity(Polarity::Prevent);
-        let mut denying = 0;
-        let mut affirming = 0;
-        for &r in &rel.rows {
-            let row = &g.rows[r];
-            if row.modality == Modality::Negated || row.polarity == Polarity::None {
-                denying += 1;
-            } else if row.modality != Modality::Question {
-                affirming += 1;
-            }
-        }
-        let reason = match (increase > 0 && decrease > 0, affirming > 0 && denying > 0) {
-            (true, true) => "opposite signs; stated and denied",
-            (true, false) => "opposite signs",
-            (false, true) => "stated and denied",
-            (false, false) => continue,
-        };
-        out.push(Conflict {
-            cause: g.graph[a].label.clone(),
-            effect: g.graph[b].label.clone(),
-            cause_key: g.graph[a].key.clone(),
-            effect_key: g.graph[b].key.clone(),
-            increase,
-            decrease,
-            affirming,
-            denying,
-            documents: rel.docs.len(),
-            reason,
-        });
-    }
-    let minor = |c: &Conflict| {
-        let sign = if c.increase > 0 && c.decrease > 0 {
-            c.increase.min(c.decrease)
-        } else {
-            0
-        };
-        let deny = if c.affirming > 0 { c.denying } else { 0 };
-        sign.max(deny.min(c.affirming))
-    };
-    out.sort_by(|x, y| {
-        minor(y)
-            .cmp(&minor(x))
-            .then(y.documents.cmp(&x.documents))
-            .then_with(|| (&x.cause_key, &x.effect_key).cmp(&(&y.cause_key, &y.effect_key)))
-    });
-    out
-}
-
 /// Pairs stated in both directions.
 fn both_ways(g: &ClaimGraph) -> Vec<BothWays> {
     let mut out = Vec::new();
@@ -586,36 +518,6 @@ mod tests {
                 len: 0,
             },
         }
-    }
-
-    #[test]
-    fn conflicts_are_opposite_signs_or_stated_and_denied() {
-        use Modality::*;
-        use Polarity::*;
-        let rows = vec![
-            row("a", "b", Increase, Asserted, "d1"),
-            row("a", "b", Decrease, Asserted, "d2"),
-            row("c", "d", Unsigned, Asserted, "d1"),
-            row("c", "d", Unsigned, Negated, "d2"),
-            row("e", "f", Increase, Asserted, "d1"),
-            row("e", "f", Increase, Hedged, "d2"),
-            row("g", "h", None, Asserted, "d3"),
-            row("g", "h", Unsigned, Question, "d3"),
-        ];
-        let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
-        let c = conflicts(&g);
-        let got: Vec<(&str, &str, &str)> = c
-            .iter()
-            .map(|c| (c.cause_key.as_str(), c.effect_key.as_str(), c.reason))
-            .collect();
-        assert_eq!(
-            got,
-            vec![
-                ("a", "b", "opposite signs"),
-                ("c", "d", "stated and denied")
-            ]
-        );
-        assert_eq!((c[1].affirming, c[1].denying), (1, 1));
     }
 
     #[test]

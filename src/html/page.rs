@@ -153,22 +153,27 @@ fn conflicts_table(r: &Report) -> Markup {
     html! {
         section #conflicts {
             h2 { "Conflicts" }
-            p { "Causal relations whose claims disagree: some say the cause increases the effect and others that it decreases (or prevents) it, or some state an effect and others deny it. Marked with " span.badge-key.disputed { "!" } " in the graph." }
+            p { "Pairs the corpus states inconsistently (as " code { "hearsay conflicts" } " lists them): both directions stated, an increase and a decrease (or prevention) stated, or an effect both stated and denied. Ranked by the claims on both sides. Marked with " span.badge-key.disputed { "!" } " in the graph." }
             @if r.conflicts.is_empty() {
                 p { "No conflicting relations." }
             } @else {
                 table.sortable {
                     thead { tr {
-                        (th("cause", false)) (th("effect", false)) (th("why", false))
-                        (th("increase", true)) (th("decrease", true)) (th("stating", true))
-                        (th("denying", true)) (th("documents", true))
+                        (th("kind", false)) (th("variable", false)) (th("variable", false))
+                        (th("one side", false)) (th("claims", true)) (th("documents", true))
+                        (th("other side", false)) (th("claims", true)) (th("documents", true))
+                        (th("claims in all", true))
                     } }
                     tbody {
                         @for c in &r.conflicts {
                             tr {
-                                td { (c.cause) } td { (c.effect) } td { (c.reason) }
-                                td.num { (c.increase) } td.num { (c.decrease) } td.num { (c.affirming) }
-                                td.num { (c.denying) } td.num { (c.documents) }
+                                td { (c.kind.as_str()) } td { (c.x_label) } td { (c.y_label) }
+                                @for s in &c.sides {
+                                    @let (from, to) = if s.cause == c.x { (&c.x_label, &c.y_label) } else { (&c.y_label, &c.x_label) };
+                                    td { (s.reading) " (" (from) " → " (to) ")" }
+                                    td.num { (s.claims) } td.num { (s.documents) }
+                                }
+                                td.num { (c.support) }
                             }
                         }
                     }

@@ -242,7 +242,7 @@ fn report_renders_in_headless_chromium_with_the_expected_graph() {
 /// `--compare` adds the summary `hearsay compare` prints. The answers are INVENTED (one made-up
 /// model); the check is that the page shows, row for row, what the compare command reports.
 #[test]
-fn report_compare_section_shows_the_compare_summary() {
+fn report_compare_and_conflicts_sections_match_the_commands() {
     let dir = tempfile::tempdir().unwrap();
     let store = demo_store(dir.path());
     let answers = dir.path().join("answers.csv");
@@ -266,6 +266,14 @@ fn report_compare_section_shows_the_compare_summary() {
     let want = json_lines(&["compare", a], &store);
     assert!(!want.is_empty());
     let text = write_report(&store, &dir.path().join("r.html"), &["--compare", a]);
+    // The conflicts table lists what `hearsay conflicts` lists (fewer than the 50-row cap here).
+    let listed = json_lines(&["conflicts"], &store);
+    assert!(!listed.is_empty());
+    let conflict_rows = Selector::parse("section#conflicts tbody tr").unwrap();
+    assert_eq!(
+        Html::parse_document(&text).select(&conflict_rows).count(),
+        listed.len()
+    );
     let doc = Html::parse_document(&text);
     assert_self_contained(&doc, &text);
     let row_sel = Selector::parse("section#compare tbody tr").unwrap();
