@@ -298,3 +298,16 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
     });
     out
 }
+
+/// (location, sentence) of graph row `r`, read from its full claim record in the store; when the
+/// record cannot be read, the row's `doc:line` and the reason.
+pub fn evidence_text(g: &ClaimGraph, store: &crate::store::Store, r: usize) -> (String, String) {
+    let row = &g.rows[r];
+    match store.claim(row.at) {
+        Ok(c) => (c.location(), c.sentence),
+        Err(e) => (
+            format!("{}:{}", row.doc, row.line),
+            format!("(evidence unavailable: {e})"),
+        ),
+    }
+}

@@ -1,10 +1,10 @@
 //! `hearsay cycles`: directed cycles among well-stated edges.
 
-use super::graph::{evidence, print_evidence, EvidenceOut, WeightArgs};
+use super::graph::{hops_out, print_evidence, HopOut, WeightArgs};
 use super::{escape, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::analysis::{self, Hop};
+use hearsay::analysis;
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -39,13 +39,6 @@ pub struct CyclesArgs {
 }
 
 #[derive(Serialize)]
-struct HopOut<'a> {
-    #[serde(flatten)]
-    hop: &'a Hop,
-    evidence: Vec<EvidenceOut>,
-}
-
-#[derive(Serialize)]
 struct CycleOut<'a> {
     support: f64,
     sign: analysis::Sign,
@@ -61,14 +54,7 @@ pub fn run(g: &Global, a: &CyclesArgs) -> Result<ExitCode> {
         .map(|c| CycleOut {
             support: c.support,
             sign: c.sign,
-            hops: c
-                .hops
-                .iter()
-                .map(|h| HopOut {
-                    hop: h,
-                    evidence: evidence(&loaded, &h.rows, a.evidence),
-                })
-                .collect(),
+            hops: hops_out(&loaded, &c.hops, a.evidence),
         })
         .collect();
     let mut out = std::io::stdout().lock();

@@ -313,19 +313,36 @@ pub fn evidence(loaded: &Loaded, rows: &[usize], n: usize) -> Vec<EvidenceOut> {
         .take(n)
         .map(|&r| {
             let row = &loaded.graph.rows[r];
-            let (location, sentence) = match loaded.store.claim(row.at) {
-                Ok(c) => (c.location(), c.sentence),
-                Err(e) => (
-                    format!("{}:{}", row.doc, row.line),
-                    format!("(evidence unavailable: {e})"),
-                ),
-            };
+            let (location, sentence) =
+                hearsay::report::evidence_text(&loaded.graph, &loaded.store, r);
             EvidenceOut {
                 location,
                 polarity: row.polarity,
                 modality: row.modality,
                 sentence,
             }
+        })
+        .collect()
+}
+
+/// A hop of a chain or cycle with its evidence sentences.
+#[derive(serde::Serialize)]
+pub struct HopOut<'a> {
+    #[serde(flatten)]
+    pub hop: &'a hearsay::analysis::Hop,
+    pub evidence: Vec<EvidenceOut>,
+}
+
+/// The hops of a chain or cycle, each with its first `n` evidence sentences.
+pub fn hops_out<'a>(
+    loaded: &Loaded,
+    hops: &'a [hearsay::analysis::Hop],
+    n: usize,
+) -> Vec<HopOut<'a>> {
+    hops.iter()
+        .map(|h| HopOut {
+            hop: h,
+            evidence: evidence(loaded, &h.rows, n),
         })
         .collect()
 }

@@ -93,14 +93,7 @@ pub(super) fn report_with_evidence(
 ) -> PairReport {
     let (store, graph) = (&loaded.store, &loaded.graph);
     report::pair_report(graph, x, y, co_mentions, evidence, |r| {
-        let row = &graph.rows[r];
-        match store.claim(row.at) {
-            Ok(c) => (c.location(), c.sentence),
-            Err(e) => (
-                format!("{}:{}", row.doc, row.line),
-                format!("(evidence unavailable: {e})"),
-            ),
-        }
+        report::evidence_text(graph, store, r)
     })
 }
 

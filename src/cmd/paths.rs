@@ -1,10 +1,10 @@
 //! `hearsay paths X Y`: indirect chains of stated edges from X to Y.
 
-use super::graph::{evidence, find_var, print_evidence, EvidenceOut, WeightArgs};
+use super::graph::{find_var, hops_out, print_evidence, HopOut, WeightArgs};
 use super::{escape, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::analysis::{self, Chain, Hop};
+use hearsay::analysis::{self, Chain};
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -48,13 +48,6 @@ pub struct PathsArgs {
 }
 
 #[derive(Serialize)]
-struct HopOut<'a> {
-    #[serde(flatten)]
-    hop: &'a Hop,
-    evidence: Vec<EvidenceOut>,
-}
-
-#[derive(Serialize)]
 struct ChainOut<'a> {
     rank: usize,
     support: f64,
@@ -84,14 +77,7 @@ pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
             support: c.support,
             product: c.product,
             sign: c.sign,
-            hops: c
-                .hops
-                .iter()
-                .map(|h| HopOut {
-                    hop: h,
-                    evidence: evidence(&loaded, &h.rows, a.evidence),
-                })
-                .collect(),
+            hops: hops_out(&loaded, &c.hops, a.evidence),
         })
         .collect();
     let mut out = std::io::stdout().lock();

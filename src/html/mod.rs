@@ -228,7 +228,7 @@ pub fn collect(g: &ClaimGraph, src: Sources<'_>, opts: &Options) -> Result<Repor
         Some((x, y)) => {
             let n = crate::comention::pair_co_mentions(store, g, (&x.0.key, x.1), (&y.0.key, y.1))?;
             Some(report::pair_report(g, x, y, n, opts.evidence, |r| {
-                evidence_text(g, store, r)
+                report::evidence_text(g, store, r)
             }))
         }
         None => None,
@@ -275,23 +275,11 @@ fn summary(g: &ClaimGraph, store: &Store) -> Summary {
     s
 }
 
-/// (location, sentence) of a graph row, from its full claim record.
-fn evidence_text(g: &ClaimGraph, store: &Store, r: usize) -> (String, String) {
-    let row = &g.rows[r];
-    match store.claim(row.at) {
-        Ok(c) => (c.location(), c.sentence),
-        Err(e) => (
-            format!("{}:{}", row.doc, row.line),
-            format!("(evidence unavailable: {e})"),
-        ),
-    }
-}
-
 fn evidence(g: &ClaimGraph, store: &Store, rel: &Relation, n: usize) -> Vec<EvidenceLine> {
     report::strongest_rows(g, rel, n)
         .into_iter()
         .map(|r| {
-            let (location, sentence) = evidence_text(g, store, r);
+            let (location, sentence) = report::evidence_text(g, store, r);
             let row = &g.rows[r];
             EvidenceLine {
                 location,

@@ -71,3 +71,15 @@ pub fn copy_tree(from: &Path, to: &Path) {
         }
     }
 }
+
+/// Scan the invented demo corpus into `dir/store` and return the store's path.
+pub fn demo_store_in(dir: &Path) -> PathBuf {
+    let store = dir.join("store");
+    hearsay()
+        .arg("--store")
+        .arg(&store)
+        .args(["-q", "scan", "corpora-demo"])
+        .assert()
+        .success();
+    store
+}

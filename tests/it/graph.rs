@@ -2,7 +2,7 @@
 //! `pydot`, both installed by `.ci/run`) and rendered with Graphviz `dot` (Debian package
 //! `graphviz`). The demo corpus and the hostile labels below are invented data.
 
-use crate::common::hearsay;
+use crate::common::{demo_store_in, hearsay};
 use hearsay::export::{self, Export, ExportEdge, ExportNode};
 use std::path::Path;
 use std::process::Command;
@@ -20,17 +20,6 @@ fn python(script: &str, args: &[&Path]) -> String {
         String::from_utf8_lossy(&out.stderr)
     );
     String::from_utf8_lossy(&out.stdout).into_owned()
-}
-
-fn demo_store(dir: &Path) -> std::path::PathBuf {
-    let store = dir.join("store");
-    hearsay()
-        .arg("--store")
-        .arg(&store)
-        .args(["-q", "scan", "corpora-demo"])
-        .assert()
-        .success();
-    store
 }
 
 /// Every export of the demo graph, written by the binary.
@@ -112,7 +101,7 @@ print(g.number_of_nodes(), g.number_of_edges())
 #[test]
 fn every_export_round_trips_through_networkx() {
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let files = write_all(&store, dir.path(), &["--evidence"]);
     let refs: Vec<&Path> = files.iter().map(|p| p.as_path()).collect();
     let out = python(ROUND_TRIP, &refs);
@@ -251,7 +240,7 @@ fn edges_of(store: &Path, args: &[&str]) -> Vec<serde_json::Value> {
 fn filters_select_the_asked_part() {
     // Behaviour guards on the invented demo corpus.
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let all = edges_of(&store, &[]);
     let three = edges_of(&store, &["--min-docs", "3"]);
     assert!(!three.is_empty() && three.len() < all.len());
@@ -303,7 +292,7 @@ fn dedupe_counts_copied_boilerplate_once() {
     // The demo corpus repeats "Fertiliser runoff causes algae blooms." in seven files
     // (corpora-demo/EXPECTED.md, rows 1-7): with --dedupe they count as one mention.
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let out = hearsay()
         .arg("--store")
         .arg(&store)

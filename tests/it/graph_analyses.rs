@@ -11,7 +11,7 @@
 //! `networkx`): with node names fixed, edit distance = missing + extra + 2 × reversed, while SHD
 //! counts a reversal once.
 
-use crate::common::hearsay;
+use crate::common::{demo_store_in, hearsay};
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -217,17 +217,6 @@ fn score_agrees_with_an_independent_computation_on_asia() {
         .stderr(predicates::str::contains("bad.csv:2:"));
 }
 
-fn demo_store(dir: &Path) -> PathBuf {
-    let store = dir.join("store");
-    hearsay()
-        .arg("--store")
-        .arg(&store)
-        .args(["-q", "scan", "corpora-demo"])
-        .assert()
-        .success();
-    store
-}
-
 fn lines(store: &Path, args: &[&str]) -> Vec<serde_json::Value> {
     crate::common::json_lines(args, store)
 }
@@ -236,7 +225,7 @@ fn lines(store: &Path, args: &[&str]) -> Vec<serde_json::Value> {
 fn paths_conflicts_cycles_and_matrix_on_the_demo() {
     // Behaviour guards on the invented demo corpus (see corpora-demo/EXPECTED.md).
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let chains = lines(&store, &["paths", "fertiliser runoff", "tourism revenue"]);
     assert!(!chains.is_empty());
     let c = &chains[0];

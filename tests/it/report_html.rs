@@ -2,7 +2,7 @@
 //! crate) and rendered in headless Chromium (Debian package `chromium`, installed by `.ci/run`).
 //! The demo corpus and every count expected from it are invented data (corpora-demo/EXPECTED.md).
 
-use crate::common::{hearsay, json_lines};
+use crate::common::{demo_store_in, hearsay, json_lines};
 use scraper::{Html, Selector};
 use std::path::{Path, PathBuf};
 use std::process::Command;
@@ -11,17 +11,6 @@ use std::process::Command;
 /// in the default 40-edge picture).
 const DEMO_EDGES: usize = 16;
 const DEMO_NODES: usize = 20;
-
-fn demo_store(dir: &Path) -> PathBuf {
-    let store = dir.join("store");
-    hearsay()
-        .arg("--store")
-        .arg(&store)
-        .args(["-q", "scan", "corpora-demo"])
-        .assert()
-        .success();
-    store
-}
 
 fn write_report(store: &Path, out: &Path, extra: &[&str]) -> String {
     hearsay()
@@ -63,7 +52,7 @@ fn assert_self_contained(doc: &Html, text: &str) {
 #[test]
 fn report_page_is_well_formed_self_contained_and_escaped() {
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let out = dir.path().join("report.html");
     let text = write_report(
         &store,
@@ -129,7 +118,7 @@ fn report_page_is_well_formed_self_contained_and_escaped() {
 #[test]
 fn report_graph_keeps_the_heaviest_edges_of_the_graph_export() {
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let text = write_report(&store, &dir.path().join("r.html"), &["--edges", "5"]);
     let doc = Html::parse_document(&text);
     // The same selection through the node-link export (`hearsay graph --top 5`).
@@ -197,7 +186,7 @@ fn headless(browser: &Path, profile: &Path) -> Command {
 fn report_renders_in_headless_chromium_with_the_expected_graph() {
     let Some(browser) = chromium() else { return };
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let page = dir.path().join("report.html");
     write_report(&store, &page, &[]);
     let url = format!("file://{}", page.display());
@@ -244,7 +233,7 @@ fn report_renders_in_headless_chromium_with_the_expected_graph() {
 #[test]
 fn report_compare_and_conflicts_sections_match_the_commands() {
     let dir = tempfile::tempdir().unwrap();
-    let store = demo_store(dir.path());
+    let store = demo_store_in(dir.path());
     let answers = dir.path().join("answers.csv");
     let mut csv = String::from("x,y,family,answer,model\n");
     for (x, y) in [
