@@ -192,7 +192,7 @@ impl Extractor {
             || l.clause_breaks.contains(&t.lower)
             || l.relatives.contains(&t.lower)
             || l.auxiliaries.contains(&t.lower)
-            || l.reporting_verbs.contains(&t.lower)
+            || (l.reporting_verbs.contains(&t.lower) && !t.tag.is_some_and(Tag::is_noun))
             || self.single_negators.contains(&t.lower)
     }
 
@@ -254,6 +254,7 @@ impl Extractor {
             && end - i < self.lexicon.max_words
             && !blocked[i - 1]
             && !self.np_boundary(&toks[i - 1])
+            && !(i < end && toks[i - 1].tag.is_some_and(Tag::is_finite_verb))
         {
             i -= 1;
         }
@@ -544,7 +545,25 @@ impl Extractor {
         out: &mut Vec<Claim>,
         mut trace: Option<&mut Vec<Attempt>>,
     ) {
-        let matches = self.cues.match_sentence(sent.text, candidates);
+        let mut matches = self.cues.match_sentence(sent.text, candidates);
+        // Before any tagging: an outcome cue whose effect ends right before it ("headaches from")
+        // needs an outcome noun there; most "from"s in a text are not causal and stop here.
+        matches.retain(|m| {
+            let Some(word) = self.outcome_word_missing(m, sent.text) else {
+                return true;
+            };
+            if let Some(t) = trace.as_deref_mut() {
+                t.push(Attempt {
+                    cue: self.cues.cues[m.cue].spec.id.clone(),
+                    matched: collapse(&sent.text[m.start..m.end]),
+                    result: Err(format!(
+                        "\"{word}\" before the cue is not an outcome noun ([outcomes] in lexicon.toml)"
+                    )),
+                    notes: Vec::new(),
+                });
+            }
+            false
+        });
         if matches.is_empty() {
             return;
         }
@@ -643,6 +662,46 @@ impl Extractor {
         }
     }
 
+    /// For an outcome cue whose effect comes right before it: the word before the cue, when it
+    /// is not an outcome noun (`None` when the cue needs no check or the word is one).
+    fn outcome_word_missing(&self, m: &CueMatch, sentence: &str) -> Option<String> {
+        if !self.cues.cues[m.cue].spec.outcome_effect || m.effect != SlotPlace::Before {
+            return None;
+        }
+        let before = sentence[..m.start].trim_end();
+        let word: String = before
+            .rsplit(|c: char| !c.is_alphanumeric())
+            .next()
+            .unwrap_or("")
+            .to_lowercase();
+        // "Heat is produced by": a verb group stands between; the head is checked after the spans.
+        let verb_group = self.verb_group.contains(&word) || self.adverb(&word);
+        (!verb_group && !self.lexicon.outcomes.contains(&word)).then_some(word)
+    }
+
+    /// Whether an effect span's head noun is an outcome noun: the last word before any
+    /// preposition ("heat in the engine" → "heat"), tagged as a noun when tags are known.
+    fn outcome_head(&self, toks: &[Token], sent: SentenceRef<'_>, c: &Chosen) -> bool {
+        let (a, b) = token_range(
+            toks,
+            c.start.saturating_sub(sent.offset),
+            c.end.saturating_sub(sent.offset),
+        );
+        let mut head = None;
+        for t in &toks[a..b.min(toks.len())] {
+            if t.word && (t.lower == "of" || self.lexicon.prepositions.contains(&t.lower)) {
+                break;
+            }
+            if t.word {
+                head = Some(t);
+            }
+        }
+        head.is_some_and(|t| {
+            let last = t.lower.rsplit('-').next().unwrap_or(&t.lower);
+            self.lexicon.outcomes.contains(last) && t.tag.is_none_or(Tag::is_noun)
+        })
+    }
+
     /// A verb cue right after a determiner or preposition is a noun or adjective use ("an
     /// increase in", "the increased risk"): not this cue.
     fn noun_use(&self, m: &CueMatch, toks: &[Token], ca: usize) -> Option<String> {
@@ -672,7 +731,10 @@ impl Extractor {
             return Some(why);
         }
         let before = ca.checked_sub(1).map(|i| &toks[i].lower)?;
-        if self.lexicon.determiners.contains(before)
+        // "the germ that causes ulcers": a relative pronoun, not a determiner, before a verb.
+        let relative = self.lexicon.relatives.contains(before)
+            && toks[ca].tag.is_some_and(Tag::is_finite_verb);
+        if (self.lexicon.determiners.contains(before) && !relative)
             || (self.lexicon.prepositions.contains(before) && before != "to")
         {
             return Some(format!(
@@ -909,7 +971,15 @@ impl Extractor {
             modality = Modality::Negated;
         }
         let causes: Vec<Chosen> = std::iter::once(cause).chain(cause_extra).collect();
-        let effects: Vec<Chosen> = std::iter::once(effect).chain(effect_extra).collect();
+        let mut effects: Vec<Chosen> = std::iter::once(effect).chain(effect_extra).collect();
+        if spec.outcome_effect {
+            effects.retain(|e| cross_sentence || self.outcome_head(toks, sent, e));
+            if effects.is_empty() {
+                return Err(
+                    "the effect's head is not an outcome noun ([outcomes] in lexicon.toml)".into(),
+                );
+            }
+        }
         let mut claims = Vec::new();
         let mut first_err = None;
         for c in &causes {

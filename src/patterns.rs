@@ -94,6 +94,9 @@ pub struct CueSpec {
     pub clause_spans: bool,
     pub reject_after: Option<String>,
     pub reject_before: Option<String>,
+    /// The cue only counts when the effect's head noun is one of the lexicon's outcome nouns
+    /// ("headaches from mold", "friction produces heat", not "a man from Oslo").
+    pub outcome_effect: bool,
     pub examples: Vec<Example>,
     pub counter_examples: Vec<String>,
     /// Where the entry was defined, for messages.
@@ -121,6 +124,9 @@ pub struct Lexicon {
     pub decrease_nouns: HashSet<String>,
     pub change_links: HashSet<String>,
     pub stopwords: HashSet<String>,
+    /// Nouns that name an outcome (pain, damage, heat), with their plurals: the heads that a cue
+    /// marked `outcome_effect` needs.
+    pub outcomes: HashSet<String>,
 }
 
 /// Everything loaded from one pattern folder.
@@ -255,6 +261,8 @@ struct RawCue {
     reject_after: Option<String>,
     reject_before: Option<String>,
     #[serde(default)]
+    outcome_effect: bool,
+    #[serde(default)]
     examples: Vec<RawExample>,
     #[serde(default)]
     counter_examples: Vec<String>,
@@ -350,6 +358,7 @@ pub fn parse_cue_file(
             clause_spans,
             reject_after: raw.reject_after,
             reject_before: raw.reject_before,
+            outcome_effect: raw.outcome_effect,
             examples,
             counter_examples: raw.counter_examples,
             origin: (path.to_path_buf(), line),
@@ -575,6 +584,13 @@ struct RawLexicon {
     modality: RawModality,
     sign: RawSign,
     keys: RawKeys,
+    #[serde(default)]
+    outcomes: RawOutcomes,
+}
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct RawOutcomes {
+    nouns: Vec<String>,
 }
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -664,7 +680,26 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
         decrease_nouns: set(raw.sign.decrease_nouns),
         change_links: set(raw.sign.change_links),
         stopwords: set(raw.keys.stopwords),
+        outcomes: raw
+            .outcomes
+            .nouns
+            .iter()
+            .flat_map(|n| {
+                let n = n.to_lowercase();
+                [plural(&n), n]
+            })
+            .collect(),
     })
+}
+
+/// The regular English plural of a noun ("injury" → "injuries", "ash" → "ashes").
+fn plural(n: &str) -> String {
+    let b = n.as_bytes();
+    match b {
+        [.., c, b'y'] if !b"aeiou".contains(c) => format!("{}ies", &n[..n.len() - 1]),
+        [.., b's'] | [.., b'x'] | [.., b'z'] | [.., b'c', b'h'] | [.., b's', b'h'] => format!("{n}es"),
+        _ => format!("{n}s"),
+    }
 }
 
 /// Parse an alias file: `surface form<TAB>variable name` per line, `#` comments.
