@@ -11,7 +11,7 @@
 use crate::cues::{CueMatch, CueSet, SlotPlace};
 use crate::model::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::normalize::Normalizer;
-use crate::patterns::{Lexicon, PatternSet, Role};
+use crate::patterns::{Lexicon, PatternSet, PatternToken, Role};
 use crate::tagger::{Tag, Tagger};
 use regex::Regex;
 use std::collections::HashSet;
@@ -133,6 +133,40 @@ const PP_ATTACH: &[&str] = &[
     "in", "on", "at", "to", "for", "among", "within", "across", "around",
 ];
 
+/// Words naming a quantity of what follows "of": the head of "most of the noise" is "noise".
+const QUANTITIES: &[&str] = &[
+    "most",
+    "some",
+    "much",
+    "part",
+    "half",
+    "amount",
+    "amounts",
+    "lot",
+    "lots",
+    "level",
+    "levels",
+    "deal",
+    "bit",
+    "all",
+    "majority",
+    "share",
+    "proportion",
+    "fraction",
+    "rest",
+    "degree",
+    "kind",
+    "type",
+    "sort",
+    "form",
+    "source",
+    "sources",
+    "cases",
+    "case",
+    "number",
+    "percent",
+];
+
 /// The longest span, in words, that an attached prepositional phrase may make.
 const PP_MAX_WORDS: usize = 7;
 
@@ -221,6 +255,7 @@ impl Extractor {
         &self,
         toks: &[Token],
         from: usize,
+        noun_cue: bool,
         blocked: &[bool],
         notes: &mut Vec<String>,
     ) -> Span {
@@ -228,10 +263,21 @@ impl Extractor {
         while i > 0 && matches!(toks[i - 1].lower.as_str(), "," | ";") {
             i -= 1;
         }
+        // "X is one of the commonest causes of Y": before a noun cue, adjectives and adverbs
+        // belong to the copula group, not to the slot.
+        let noun_cue = noun_cue
+            && toks
+                .get(from)
+                .is_some_and(|t| t.tag.is_some_and(Tag::is_noun));
         while i > 0
             && !blocked[i - 1]
             && toks[i - 1].word
-            && (self.verb_group.contains(&toks[i - 1].lower) || self.adverb(&toks[i - 1].lower))
+            && (self.verb_group.contains(&toks[i - 1].lower)
+                || self.adverb(&toks[i - 1].lower)
+                || (noun_cue
+                    && toks[i - 1]
+                        .tag
+                        .is_some_and(|g| g.is_adjective() || g.as_str().starts_with("RB"))))
         {
             i -= 1;
         }
@@ -254,11 +300,26 @@ impl Extractor {
             && end - i < self.lexicon.max_words
             && !blocked[i - 1]
             && !self.np_boundary(&toks[i - 1])
-            && !(i < end && toks[i - 1].tag.is_some_and(Tag::is_finite_verb))
+            && !(i < end && self.verb_stop(toks, i - 1))
         {
             i -= 1;
         }
         self.strip_determiners(toks, Span { from: i, to: end })
+    }
+
+    /// A verb that ends a span walked back: a finite verb, or a base form after "to" or an
+    /// auxiliary ("to escape the floodwaters caused by rain" stops at "escape").
+    fn verb_stop(&self, toks: &[Token], k: usize) -> bool {
+        match toks[k].tag {
+            Some(g) if g.is_finite_verb() => true,
+            Some(g) if g.as_str() == "VB" => {
+                k > 0 && {
+                    let p = &toks[k - 1].lower;
+                    p == "to" || self.lexicon.auxiliaries.contains(p)
+                }
+            }
+            _ => false,
+        }
     }
 
     /// Walk forward from token `from`: the noun phrase after a cue.
@@ -687,19 +748,36 @@ impl Extractor {
             c.start.saturating_sub(sent.offset),
             c.end.saturating_sub(sent.offset),
         );
+        // The head of each phrase between prepositions: "most of the noise" → "most", "noise".
+        let mut heads: Vec<&Token> = Vec::new();
         let mut head = None;
+        let mut of_before = Vec::new();
         for t in &toks[a..b.min(toks.len())] {
             if t.word && (t.lower == "of" || self.lexicon.prepositions.contains(&t.lower)) {
-                break;
-            }
-            if t.word {
+                heads.extend(head.take());
+                of_before.push(t.lower == "of");
+                if heads.is_empty() {
+                    break;
+                }
+            } else if t.word {
                 head = Some(t);
             }
         }
-        head.is_some_and(|t| {
+        heads.extend(head);
+        let is_outcome = |t: &Token| {
             let last = t.lower.rsplit('-').next().unwrap_or(&t.lower);
             self.lexicon.outcomes.contains(last) && t.tag.is_none_or(Tag::is_noun)
-        })
+        };
+        match heads.as_slice() {
+            [] => false,
+            [first, rest @ ..] => {
+                is_outcome(first)
+                    // "most of the noise", "a great deal of pleasure": the quantity's object.
+                    || (QUANTITIES.contains(&first.lower.as_str())
+                        && of_before.first() == Some(&true)
+                        && rest.first().is_some_and(|t| is_outcome(t)))
+            }
+        }
     }
 
     /// A verb cue right after a determiner or preposition is a noun or adjective use ("an
@@ -886,7 +964,7 @@ impl Extractor {
                     let span = if clause {
                         self.clause_back(toks, ca)
                     } else {
-                        self.walk_back(toks, ca, blocked, notes)
+                        self.walk_back(toks, ca, noun_first(spec), blocked, notes)
                     };
                     let extra = if clause || span.is_empty() {
                         Vec::new()
@@ -1174,6 +1252,15 @@ impl Extractor {
         }
         out.into_iter().map(|(s, _)| s).collect()
     }
+}
+
+/// The cue's first literal is a noun with its plural (`cause+ of`), not a verb or adjective.
+fn noun_first(spec: &crate::patterns::CueSpec) -> bool {
+    spec.tokens.iter().find_map(|t| match t {
+        PatternToken::Word { forms, verb } => Some(!verb && forms.len() > 1),
+        PatternToken::Glued { .. } => Some(false),
+        _ => None,
+    }) == Some(true)
 }
 
 /// Nothing but punctuation, conjunctions and fillers stands before token `ca`.

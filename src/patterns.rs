@@ -697,7 +697,9 @@ fn plural(n: &str) -> String {
     let b = n.as_bytes();
     match b {
         [.., c, b'y'] if !b"aeiou".contains(c) => format!("{}ies", &n[..n.len() - 1]),
-        [.., b's'] | [.., b'x'] | [.., b'z'] | [.., b'c', b'h'] | [.., b's', b'h'] => format!("{n}es"),
+        [.., b's'] | [.., b'x'] | [.., b'z'] | [.., b'c', b'h'] | [.., b's', b'h'] => {
+            format!("{n}es")
+        }
         _ => format!("{n}s"),
     }
 }
