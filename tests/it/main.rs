@@ -11,6 +11,8 @@ mod graph_analyses;
 mod hostile;
 mod merge;
 mod quality;
+mod readers_generated;
+mod readers_real;
 mod report_html;
 mod spark;
 mod store;
