@@ -12,6 +12,7 @@ mod hostile;
 mod merge;
 mod quality;
 mod readers_generated;
+mod readers_jsonl;
 mod readers_real;
 mod report_html;
 mod spark;

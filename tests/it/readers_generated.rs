@@ -222,3 +222,100 @@ fn encrypted_pdf_is_a_warning_and_the_scan_goes_on() {
         "{claims:?}"
     );
 }
+
+/// Invented page (a behaviour guard): site chrome around one article.
+const PAGE: &str = r#"<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8"><title>Harbour notes</title>
+<style>body { font-family: serif }</style>
+<script>var tracker = "Subscribe now";</script></head>
+<body>
+<header><a href="/">Quorvin Weekly</a> <span>Timetables and Tickets</span></header>
+<nav><ul><li><a href="/a">Archive</a></li><li><a href="/b">Careers</a></li></ul></nav>
+<div class="menu"><a href="/c">Horoscopes</a> <a href="/d">Crosswords</a></div>
+<ul><li><a href="/e">Classifieds</a></li><li><a href="/f">Obituaries</a></li></ul>
+<article>
+<h1>Notes from the southern harbour</h1>
+<p>The southern harbour was rebuilt after a long dispute about its cost. Dredging of the
+channel increases the turbidity of the harbour water for several weeks.</p>
+<p>Winter storms bring cold air from the mountains. Strong wind leads to higher waves on the
+open water, and the harbour master closes the outer pier when the flags stand straight out.</p>
+<h2>Along the shore</h2>
+<ul><li>Shade from the reeds lowers the temperature of the shallow water.</li>
+<li>Crowds on the beach are associated with more litter along the promenade.</li></ul>
+<p>Volunteers collect the litter each morning &amp; sort it into separate bins.</p>
+<script>document.write("Advertisement");</script>
+</article>
+<aside>Weather widget: Sunshine</aside>
+<footer>Copyright Quorvin Weekly. Contact the newsroom.</footer>
+</body></html>
+"#;
+
+/// Words of the site chrome: none may reach the sentences.
+const MENU_WORDS: &[&str] = &[
+    "Quorvin",
+    "Timetables",
+    "Archive",
+    "Careers",
+    "Horoscopes",
+    "Crosswords",
+    "Classifieds",
+    "Obituaries",
+    "Subscribe",
+    "Advertisement",
+    "Sunshine",
+    "Copyright",
+    "newsroom",
+];
+
+/// The text of the `<article>` element by Python's html.parser (standard library), without
+/// its scripts and styles.
+const ARTICLE_TEXT: &str = r#"
+import sys
+from html.parser import HTMLParser
+class P(HTMLParser):
+    def __init__(s):
+        super().__init__(convert_charrefs=True); s.depth=0; s.skip=0; s.out=[]
+    def handle_starttag(s, t, a):
+        if t=="article": s.depth+=1
+        if t in ("script","style"): s.skip+=1
+    def handle_endtag(s, t):
+        if t=="article": s.depth-=1
+        if t in ("script","style"): s.skip-=1
+    def handle_data(s, d):
+        if s.depth and not s.skip: s.out.append(d)
+p=P(); p.feed(open(sys.argv[1],encoding="utf-8").read()); print(" ".join(p.out))
+"#;
+
+#[test]
+fn generated_html_page_agrees_with_html_parser_article_text() {
+    let tmp = tempfile::tempdir().unwrap();
+    let page = tmp.path().join("harbour.html");
+    std::fs::write(&page, PAGE).unwrap();
+    let out = Command::new("python3")
+        .args(["-c", ARTICLE_TEXT])
+        .arg(&page)
+        .output()
+        .expect("python3 runs");
+    assert!(out.status.success());
+    let reference = String::from_utf8(out.stdout).unwrap();
+    let ours = sentences_read(&page, &[]).join("\n");
+    let f1 = bag_of_words_f1(&ours, &reference);
+    eprintln!("generated HTML: bag-of-words F1 against html.parser article text {f1:.4}");
+    assert!(f1 >= 0.98, "agreement {f1:.3} under 0.98:\n{ours}");
+    for w in MENU_WORDS {
+        assert!(PAGE.contains(w));
+        assert!(!ours.contains(w), "menu word {w:?} in:\n{ours}");
+    }
+    // Blocks are sentence boundaries: the heading and each list item stand alone.
+    let sentences = sentences_read(&page, &[]);
+    assert!(
+        sentences.contains(&"Along the shore".to_string()),
+        "{sentences:?}"
+    );
+    assert!(
+        sentences.contains(
+            &"Volunteers collect the litter each morning & sort it into separate bins.".to_string()
+        ),
+        "{sentences:?}"
+    );
+}
