@@ -72,8 +72,8 @@ fn section_of(sentence: &str) -> usize {
         + 1
 }
 
-/// Build `dir/name.pdf` from the source with groff and ps2pdf.
-fn build_pdf(dir: &Path) -> std::path::PathBuf {
+/// Build `dir/lake.pdf` from the source with groff and ps2pdf.
+pub(crate) fn build_pdf(dir: &Path) -> std::path::PathBuf {
     let ms = dir.join("lake.ms");
     std::fs::write(&ms, groff_source()).unwrap();
     let ps = dir.join("lake.ps");
@@ -134,7 +134,7 @@ fn claims_of(path: &Path) -> Vec<(ClaimKey, String, Option<u64>)> {
         .collect()
 }
 
-fn tools() -> bool {
+pub(crate) fn tools() -> bool {
     external_tool("groff", "groff") && external_tool("ps2pdf", "ghostscript")
 }
 
