@@ -13,6 +13,7 @@ mod merge;
 mod quality;
 mod readers_generated;
 mod readers_jsonl;
+mod readers_props;
 mod readers_real;
 mod report_html;
 mod spark;

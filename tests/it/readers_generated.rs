@@ -13,7 +13,6 @@
 //! 0.98) and hold no menu words.
 
 use crate::common::*;
-use std::collections::BTreeMap;
 use std::path::Path;
 use std::process::Command;
 
