@@ -113,6 +113,30 @@ fn running_lines(pages: &[Vec<&str>]) -> HashMap<String, usize> {
     seen
 }
 
+/// Shortest masked line that is matched against running lines by containment.
+const MIN_RUNNING: usize = 16;
+
+/// Whether an edge line (digit-masked) is page furniture: a running line itself, a part of one
+/// (the first page often carries the running footer without its "Page 1 of 10"), or a running
+/// line with a little more on it (a page number glued to the footer).
+fn is_running(masked: &str, running: &HashMap<String, usize>) -> bool {
+    running.contains_key(masked)
+        || (masked.len() >= MIN_RUNNING
+            && running.keys().any(|r| {
+                r.contains(masked)
+                    || (r.len() >= MIN_RUNNING
+                        && masked.len() <= r.len() + MIN_RUNNING
+                        && masked.contains(r.as_str()))
+            }))
+}
+
+/// A running line at a page edge, or a long one anywhere (a first page may draw its footer
+/// before the text of a box, so that it lands mid-page in content order).
+fn is_furniture_line(line: &str, at_edge: bool, running: &HashMap<String, usize>) -> bool {
+    let m = mask_digits(line);
+    (at_edge || m.len() >= MIN_RUNNING) && is_running(&m, running)
+}
+
 /// Clean page texts into one text with the byte offset of each page after the first.
 pub fn clean_pages(pages: &[String], cut_references: bool) -> (String, Vec<usize>) {
     let split: Vec<Vec<&str>> = pages
@@ -138,7 +162,7 @@ pub fn clean_pages(pages: &[String], cut_references: bool) -> (String, Vec<usize
             idx += 1;
             if is_page_number(line)
                 || is_glyph_soup(line)
-                || (at_edge && running.contains_key(&mask_digits(line)))
+                || is_furniture_line(line, at_edge, &running)
             {
                 continue;
             }
@@ -197,6 +221,189 @@ fn push_para(out: &mut String, para: &mut String, pending: &mut bool, starts: &m
     para.clear();
 }
 
+/// One page's text from pdf-extract's stream of positioned glyphs. pdf-extract's own text
+/// output decides word breaks only where a text-showing operator starts, so words that a
+/// typesetter places with kerning offsets inside one operator (groff, many table cells) run
+/// together; here the gap before every glyph is measured. At an operator start, a move down and
+/// back to the left is a line break, a move down of one and a half lines a blank line
+/// (pdf-extract's thresholds).
+/// Within a line, a gap wider than the line's typical gap between letters (its median, which
+/// is about zero when the font's widths are right and larger when they are not) by a tenth of
+/// the font size is a space.
+/// The gap (in font sizes) inside one text operator that counts as a word break.
+const INNER_SPACE: f64 = 0.2;
+
+#[derive(Default)]
+struct PageText {
+    text: String,
+    height: f64,
+    last_end: f64,
+    last_y: f64,
+    started: bool,
+    /// Whether the next glyph starts a text-showing operator's word.
+    word_start: bool,
+    /// The current line: each glyph with the gap before it (a negative value for a glyph
+    /// inside an operator), and the font size.
+    line: Vec<(String, Option<f64>, f64, bool)>,
+}
+
+impl PageText {
+    fn flush_line(&mut self) {
+        let mut gaps: Vec<f64> = self.line.iter().filter_map(|g| g.1).collect();
+        gaps.sort_by(f64::total_cmp);
+        let typical = gaps.get(gaps.len() / 2).copied().unwrap_or(0.0).max(0.0);
+        for (ch, gap, size, word_start) in self.line.drain(..) {
+            // Inside one operator, only a gap of about a space's width (a fifth of the font
+            // size) breaks a word: some fonts' widths are off by less than that.
+            let need = if word_start { 0.1 } else { INNER_SPACE };
+            if gap.is_some_and(|g| g > typical + size * need)
+                && !self.text.ends_with(char::is_whitespace)
+                && !ch.starts_with(char::is_whitespace)
+            {
+                self.text.push(' ');
+            }
+            self.text.push_str(&ch);
+        }
+    }
+}
+
+impl pdf_extract::OutputDev for PageText {
+    fn begin_page(
+        &mut self,
+        _page: u32,
+        media_box: &pdf_extract::MediaBox,
+        _art_box: Option<(f64, f64, f64, f64)>,
+    ) -> Result<(), pdf_extract::OutputError> {
+        self.height = media_box.ury - media_box.lly;
+        Ok(())
+    }
+    fn end_page(&mut self) -> Result<(), pdf_extract::OutputError> {
+        self.flush_line();
+        Ok(())
+    }
+    fn output_character(
+        &mut self,
+        trm: &pdf_extract::Transform,
+        width: f64,
+        _spacing: f64,
+        font_size: f64,
+        ch: &str,
+    ) -> Result<(), pdf_extract::OutputError> {
+        // Device position with y growing down the page, and the font size after the text
+        // matrix (the side of a square of the same area as the transformed em box).
+        let (x, y) = (trm.m31, self.height - trm.m32);
+        let size = (font_size * (trm.m11 + trm.m21) * font_size * (trm.m12 + trm.m22))
+            .abs()
+            .sqrt();
+        let mut gap = None;
+        if self.started {
+            let dy = (y - self.last_y).abs();
+            // Line breaks are decided where an operator starts, as pdf-extract does: glyphs
+            // inside one operator stay on its line whatever their jitter.
+            let blank = self.word_start && dy > size * 1.5;
+            let back = self.word_start && x < self.last_end && dy > size * 0.5;
+            if blank || back {
+                self.flush_line();
+                self.text
+                    .push_str(if blank && back { "\n\n" } else { "\n" });
+            } else {
+                gap = Some(x - self.last_end);
+            }
+        }
+        self.line.push((ch.to_string(), gap, size, self.word_start));
+        self.word_start = false;
+        self.started = true;
+        self.last_y = y;
+        self.last_end = x + width * size;
+        Ok(())
+    }
+    fn begin_word(&mut self) -> Result<(), pdf_extract::OutputError> {
+        self.word_start = true;
+        Ok(())
+    }
+    fn end_word(&mut self) -> Result<(), pdf_extract::OutputError> {
+        Ok(())
+    }
+    fn end_line(&mut self) -> Result<(), pdf_extract::OutputError> {
+        Ok(())
+    }
+}
+
+/// Spell out the "move to the next line and show text" operators `'` and `"` (PDF 1.7,
+/// 9.4.3), which pdf-extract does not interpret, so their text would be lost (ghostscript
+/// writes them for groff's output): `'` is `T*` then `Tj`; `"` sets `Tw` and `Tc` first. Pages
+/// whose content cannot be decoded are left as they are.
+fn expand_quote_operators(doc: &mut pdf_extract::Document) {
+    use pdf_extract::content::Operation;
+    let ids: Vec<pdf_extract::ObjectId> = doc.get_pages().values().copied().collect();
+    for id in ids {
+        let Ok(mut content) = doc.get_and_decode_page_content(id) else {
+            continue;
+        };
+        if !content
+            .operations
+            .iter()
+            .any(|o| o.operator == "'" || o.operator == "\"")
+        {
+            continue;
+        }
+        let mut ops = Vec::with_capacity(content.operations.len() * 2);
+        for op in content.operations.drain(..) {
+            match op.operator.as_str() {
+                "'" => {
+                    ops.push(Operation::new("T*", vec![]));
+                    ops.push(Operation::new("Tj", op.operands));
+                }
+                "\"" => match <[pdf_extract::Object; 3]>::try_from(op.operands) {
+                    Ok([aw, ac, text]) => {
+                        ops.push(Operation::new("Tw", vec![aw]));
+                        ops.push(Operation::new("Tc", vec![ac]));
+                        ops.push(Operation::new("T*", vec![]));
+                        ops.push(Operation::new("Tj", vec![text]));
+                    }
+                    Err(operands) => ops.push(Operation::new("\"", operands)),
+                },
+                _ => ops.push(op),
+            }
+        }
+        content.operations = ops;
+        if let Ok(bytes) = content.encode() {
+            // On failure the page keeps its original content.
+            let _ = doc.change_page_content(id, bytes);
+        }
+    }
+}
+
+/// The text of every page. An encrypted PDF is opened with the empty password (owner-only
+/// protection); one that needs a real password is an error saying so. A page that cannot be
+/// read is a warning and an empty page, so later pages keep their numbers.
+fn page_texts(
+    label: &str,
+    bytes: &[u8],
+    warnings: &mut Warnings,
+) -> Result<Vec<String>, ReadError> {
+    let mut doc = pdf_extract::Document::load_mem(bytes)
+        .map_err(|e| ReadError::Malformed(format!("cannot read this PDF: {e}")))?;
+    if doc.is_encrypted() && doc.decrypt("").is_err() {
+        return Err(ReadError::Malformed(
+            "encrypted PDF that needs a password (hearsay reads only PDFs that open without one)"
+                .into(),
+        ));
+    }
+    expand_quote_operators(&mut doc);
+    let numbers: Vec<u32> = doc.get_pages().keys().copied().collect();
+    let mut pages = Vec::with_capacity(numbers.len());
+    for n in numbers {
+        let mut page = PageText::default();
+        if let Err(e) = pdf_extract::output_doc_page(&doc, &mut page, n) {
+            warnings.push(format!("{label}: page {n}: cannot read its text: {e}"));
+            page.text.clear();
+        }
+        pages.push(page.text);
+    }
+    Ok(pages)
+}
+
 impl Reader for PdfReader {
     fn name(&self) -> &'static str {
         "pdf"
@@ -206,11 +413,10 @@ impl Reader for PdfReader {
         label: &str,
         bytes: &[u8],
         opts: &ReadOptions,
-        _warnings: &mut Warnings,
+        warnings: &mut Warnings,
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError> {
-        let pages = pdf_extract::extract_text_from_mem_by_pages(bytes)
-            .map_err(|e| ReadError::Malformed(format!("cannot read this PDF: {e}")))?;
+        let pages = page_texts(label, bytes, warnings)?;
         if pages.iter().all(|p| p.trim().is_empty()) {
             return Err(ReadError::NoText(format!(
                 "{} page(s) and no extractable text (a scanned PDF?)",
@@ -248,6 +454,22 @@ mod tests {
         assert_eq!(starts, vec![t.find("Rain").unwrap()]);
         let (t, _) = clean_pages(&pages, false);
         assert!(t.contains("A. Author"));
+    }
+
+    #[test]
+    fn a_part_of_a_running_footer_on_the_first_page_is_dropped() {
+        let footer =
+            |n: u32| format!("Lake Journal 2014, 14:1 Page {n} of 3\nhttp://lake.example/14/1");
+        let pages = vec![
+            "Wind moves the water.\nLake Journal 2014, 14:1\nhttp://lake.example/14/1\n"
+                .to_string(),
+            format!("Rain fills the lake.\n{}\n", footer(2)),
+            format!("Sun warms the bay.\n{}\n", footer(3)),
+        ];
+        assert_eq!(
+            clean_pages(&pages, true).0,
+            "Wind moves the water.\n\nRain fills the lake.\n\nSun warms the bay."
+        );
     }
 
     #[test]

@@ -83,3 +83,87 @@ pub fn demo_store_in(dir: &Path) -> PathBuf {
         .success();
     store
 }
+
+/// Whether an external program (from the Debian package `package`, installed by .ci/run) is on
+/// the path. A test that needs it fails when it is missing, unless `HEARSAY_SKIP_EXTERNAL=1` is
+/// set, in which case this returns `false` and the test says it was skipped.
+pub fn external_tool(name: &str, package: &str) -> bool {
+    let found = std::process::Command::new("sh")
+        .args(["-c", &format!("command -v {name}")])
+        .output()
+        .is_ok_and(|o| o.status.success());
+    if found {
+        return true;
+    }
+    if std::env::var("HEARSAY_SKIP_EXTERNAL").is_ok_and(|v| v == "1") {
+        eprintln!("SKIPPED: {name} is not installed (Debian package {package})");
+        return false;
+    }
+    panic!("{name} not found (install the Debian package {package}, or set HEARSAY_SKIP_EXTERNAL=1 to skip)");
+}
+
+/// The sentences hearsay reads from `path` (`extract --sentences`), in order, as one string per
+/// sentence; extra arguments go before the path.
+pub fn sentences_read(path: &Path, extra: &[&str]) -> Vec<String> {
+    let out = hearsay()
+        .args(["-q", "extract", "--sentences"])
+        .args(extra)
+        .arg(path)
+        .output()
+        .expect("runs");
+    assert!(
+        out.status.success(),
+        "extract {} failed: {}",
+        path.display(),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    String::from_utf8(out.stdout)
+        .expect("utf-8")
+        .lines()
+        .filter_map(|l| {
+            let v: serde_json::Value = serde_json::from_str(l).expect("json line");
+            v.get("sentence_of")?;
+            Some(v["text"].as_str().expect("text").to_string())
+        })
+        .collect()
+}
+
+/// Lower-cased words (runs of letters; digits and punctuation are not words).
+pub fn words(text: &str) -> Vec<String> {
+    text.split(|c: char| !c.is_alphabetic())
+        .filter(|w| !w.is_empty())
+        .map(str::to_lowercase)
+        .collect()
+}
+
+/// Bag-of-words agreement of `ours` with `reference`: the F1 of word multisets (common count
+/// over the mean size), 1.0 when the two texts use the same words equally often in any order.
+pub fn bag_of_words_f1(ours: &str, reference: &str) -> f64 {
+    use std::collections::HashMap;
+    let bag = |t: &str| {
+        let mut m: HashMap<String, usize> = HashMap::new();
+        for w in words(t) {
+            *m.entry(w).or_default() += 1;
+        }
+        m
+    };
+    let (a, b) = (bag(ours), bag(reference));
+    let common: usize = a
+        .iter()
+        .map(|(w, n)| (*n).min(b.get(w).copied().unwrap_or(0)))
+        .sum();
+    let (na, nb): (usize, usize) = (a.values().sum(), b.values().sum());
+    if na + nb == 0 {
+        return 1.0;
+    }
+    2.0 * common as f64 / (na + nb) as f64
+}
+
+/// Words joined by single spaces, for substring checks that ignore line breaks and punctuation.
+pub fn word_string(text: &str) -> String {
+    text.split(|c: char| !c.is_alphanumeric())
+        .filter(|w| !w.is_empty())
+        .map(str::to_lowercase)
+        .collect::<Vec<_>>()
+        .join(" ")
+}

@@ -210,3 +210,134 @@ fn hostile_corpus_costs_only_its_bad_files() {
     std::fs::remove_dir_all(&store).unwrap();
     assert_eq!(run(true).status.code(), Some(1));
 }
+
+/// The "done when": a mixed folder (a groff-built PDF, an encrypted copy of it, HTML,
+/// Markdown, text, JSON Lines in zstd, and the hostile cases) scans to completion; the summary
+/// names each bad file with its reason; `claims` and `pair` show the page of PDF claims and the
+/// record id of JSON Lines claims.
+#[test]
+fn mixed_folder_keeps_good_files_and_shows_pages_and_record_ids() {
+    if !crate::readers_generated::tools() || !external_tool("qpdf", "qpdf") {
+        return;
+    }
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    let (_, bad) = build(&corpus);
+    let pdf = crate::readers_generated::build_pdf(tmp.path());
+    std::fs::copy(&pdf, corpus.join("lake.pdf")).unwrap();
+    let st = std::process::Command::new("qpdf")
+        .args(["--encrypt", "reader-pw", "owner-pw", "256", "--"])
+        .arg(&pdf)
+        .arg(corpus.join("locked.pdf"))
+        .status()
+        .unwrap();
+    assert!(st.success());
+    let store = tmp.path().join("store");
+    let out = hearsay()
+        .arg("--store")
+        .arg(&store)
+        .args([
+            "--format",
+            "json",
+            "--max-decompressed",
+            "8M",
+            "--max-record",
+            "8M",
+            "scan",
+        ])
+        .arg(&corpus)
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "{stderr}");
+    let summary: serde_json::Value =
+        serde_json::from_slice(out.stdout.split(|&b| b == b'\n').next().unwrap()).unwrap();
+    let listed: Vec<(String, String)> = ["failed", "skipped"]
+        .iter()
+        .flat_map(|k| summary[k].as_array().unwrap().clone())
+        .map(|f| {
+            (
+                f["path"].as_str().unwrap().to_string(),
+                f["reason"].as_str().unwrap().to_string(),
+            )
+        })
+        .collect();
+    let in_summary = |file: &str, reason: &str| {
+        listed
+            .iter()
+            .any(|(p, r)| p.ends_with(file) && r.contains(reason))
+    };
+    assert!(in_summary("locked.pdf", "encrypted"), "{summary}");
+    for (file, reason) in &bad {
+        // Per-record JSON Lines warnings and empty files are warnings, not failed files.
+        if file.ends_with(".jsonl") || file.starts_with("empty") || *file == "unreadable.txt" {
+            continue;
+        }
+        assert!(
+            in_summary(file, reason),
+            "{file} ({reason}) not in the summary: {summary}"
+        );
+    }
+
+    let claims = json_lines(&["claims"], &store);
+    for g in [
+        "good.txt",
+        "good.md",
+        "good.html",
+        "good.jsonl.zst",
+        "lake.pdf",
+    ] {
+        assert!(
+            claims
+                .iter()
+                .any(|c| c["source"]["path"].as_str().unwrap().ends_with(g)),
+            "no claim from {g}"
+        );
+    }
+    let on_page_2 = claims
+        .iter()
+        .find(|c| c["source"]["page"] == 2)
+        .expect("a PDF claim on page 2");
+    let table = String::from_utf8(
+        hearsay()
+            .arg("--store")
+            .arg(&store)
+            .args(["--format", "table", "claims"])
+            .output()
+            .unwrap()
+            .stdout,
+    )
+    .unwrap();
+    assert!(
+        table
+            .lines()
+            .any(|l| l.contains("lake.pdf:") && l.contains("(p. 2)")),
+        "{table}"
+    );
+    let pair = |x: &str, y: &str| {
+        let out = hearsay()
+            .arg("--store")
+            .arg(&store)
+            .args(["--format", "table", "pair", x, y])
+            .output()
+            .unwrap();
+        assert!(out.status.success());
+        String::from_utf8(out.stdout).unwrap()
+    };
+    let p = pair(
+        on_page_2["cause"]["text"].as_str().unwrap(),
+        on_page_2["effect"]["text"].as_str().unwrap(),
+    );
+    assert!(
+        p.lines()
+            .any(|l| l.contains("lake.pdf:") && l.contains("p. 2")),
+        "{p}"
+    );
+    let p = pair("late frost", "shoot dieback");
+    assert!(
+        p.lines()
+            .any(|l| l.contains("good.jsonl.zst:") && l.contains("[r1]")),
+        "{p}"
+    );
+}

@@ -1,0 +1,123 @@
+//! JSON Lines dumps read like the files they were made from.
+//!
+//! Source: the eLife corpus, ../shared/data/elife-articles/SOURCE.txt (plain text, one
+//! paragraph a line). Eight articles (every 120th in file-name order, so the test stays a few
+//! seconds) are written as one JSON Lines file (`{"id": file stem, "text": file text}`), then
+//! compressed with Python's `gzip` module and the `zstd` program (Debian zstd). All three must
+//! give exactly the claims of the folder of `.txt` files: cause, effect, cue, polarity,
+//! modality and sentence, with each record id naming its file.
+
+use crate::common::*;
+use std::collections::BTreeMap;
+use std::path::Path;
+use std::process::Command;
+
+type Claims = BTreeMap<String, Vec<[String; 6]>>;
+
+/// Claims per document: by record id for JSON Lines, by file stem for text files.
+fn claims_by_document(paths: &[&Path]) -> BTreeMap<String, Claims> {
+    let out = hearsay()
+        .args(["-q", "extract"])
+        .args(paths)
+        .output()
+        .expect("runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let mut by_input: BTreeMap<String, Claims> = BTreeMap::new();
+    for l in String::from_utf8(out.stdout).unwrap().lines() {
+        let c: serde_json::Value = serde_json::from_str(l).unwrap();
+        let s = |v: &serde_json::Value| v.as_str().unwrap_or_default().to_string();
+        let path = s(&c["source"]["path"]);
+        let (input, doc) = match c["source"]["record"].as_str() {
+            Some(r) => (path, r.to_string()),
+            None => (
+                "txt".to_string(),
+                Path::new(&path)
+                    .file_stem()
+                    .unwrap()
+                    .to_string_lossy()
+                    .into_owned(),
+            ),
+        };
+        by_input
+            .entry(input)
+            .or_default()
+            .entry(doc)
+            .or_default()
+            .push([
+                s(&c["cause"]["text"]),
+                s(&c["effect"]["text"]),
+                s(&c["cue"]),
+                s(&c["polarity"]),
+                s(&c["modality"]),
+                s(&c["sentence"]),
+            ]);
+    }
+    by_input
+}
+
+#[test]
+fn elife_as_jsonl_gz_and_zst_gives_the_claims_of_the_text_files() {
+    let Some(articles) = shared_data("elife-articles/articles") else {
+        return;
+    };
+    if !external_tool("zstd", "zstd") {
+        return;
+    }
+    let mut files: Vec<_> = std::fs::read_dir(&articles)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "txt"))
+        .collect();
+    files.sort();
+    let picked: Vec<_> = files.iter().step_by(120).take(8).collect();
+    assert_eq!(picked.len(), 8);
+
+    let tmp = tempfile::tempdir().unwrap();
+    let txt = tmp.path().join("txt");
+    std::fs::create_dir_all(&txt).unwrap();
+    let mut jsonl = String::new();
+    for f in &picked {
+        std::fs::copy(f, txt.join(f.file_name().unwrap())).unwrap();
+        let id = f.file_stem().unwrap().to_string_lossy();
+        let text = std::fs::read_to_string(f).unwrap();
+        jsonl.push_str(&serde_json::json!({"id": id, "text": text}).to_string());
+        jsonl.push('\n');
+    }
+    let dump = tmp.path().join("elife.jsonl");
+    std::fs::write(&dump, jsonl).unwrap();
+    let gz = tmp.path().join("elife2.jsonl.gz");
+    let st = Command::new("python3")
+        .args([
+            "-c",
+            "import gzip,shutil,sys; shutil.copyfileobj(open(sys.argv[1],'rb'), gzip.open(sys.argv[2],'wb'))",
+        ])
+        .arg(&dump)
+        .arg(&gz)
+        .status()
+        .expect("python3 runs");
+    assert!(st.success());
+    let zst = tmp.path().join("elife3.jsonl.zst");
+    let st = Command::new("zstd")
+        .args(["-q", "-o"])
+        .arg(&zst)
+        .arg(&dump)
+        .status()
+        .expect("zstd runs");
+    assert!(st.success());
+
+    let all = claims_by_document(&[&txt, &dump, &gz, &zst]);
+    let from_txt = &all["txt"];
+    let n: usize = from_txt.values().map(Vec::len).sum();
+    assert!(n >= 100, "only {n} claims from the text files");
+    assert_eq!(from_txt.len(), 8, "every article states something");
+    for p in [&dump, &gz, &zst] {
+        let got = all
+            .get(&p.to_string_lossy().into_owned())
+            .unwrap_or_else(|| panic!("no claims from {}", p.display()));
+        assert_eq!(got, from_txt, "{} differs from the text files", p.display());
+    }
+}
