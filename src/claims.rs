@@ -123,7 +123,12 @@ struct Chosen {
     key_text: String,
     sign: Option<Polarity>,
     negated: bool,
+    /// The pronoun written in the sentence, when the span is its antecedent instead.
+    pronoun: Option<String>,
 }
+
+/// Pronouns that a slot may consist of and that are resolved to an antecedent.
+const PRONOUNS: &[&str] = &["it", "they", "this", "these"];
 
 const CLAUSE_CAP_EXTRA: usize = 4;
 
@@ -322,6 +327,102 @@ impl Extractor {
         }
     }
 
+    /// "This caused delays.": a demonstrative standing alone before a cue (its span was emptied
+    /// because it is also a determiner). Returns its token.
+    fn bare_demonstrative(&self, toks: &[Token], ca: usize) -> Option<usize> {
+        let mut i = ca;
+        while i > 0
+            && toks[i - 1].word
+            && (self.verb_group.contains(&toks[i - 1].lower) || self.adverb(&toks[i - 1].lower))
+        {
+            i -= 1;
+        }
+        let p = i.checked_sub(1)?;
+        let opens = p == 0 || self.clause_boundary(&toks[p - 1]);
+        (opens && matches!(toks[p].lower.as_str(), "this" | "these")).then_some(p)
+    }
+
+    /// The antecedent of the pronoun at token `p`: the subject noun phrase of the clause before
+    /// it in the sentence, else of the previous sentence. The subject is the run of nominal words
+    /// right before the first finite verb, and must hold a noun that is not itself a pronoun.
+    fn antecedent(
+        &self,
+        toks: &[Token],
+        p: usize,
+        sent: SentenceRef<'_>,
+        prev: Option<SentenceRef<'_>>,
+        effect_side: bool,
+    ) -> Option<(Chosen, bool)> {
+        let subject = |toks: &[Token], upto: usize| -> Option<Span> {
+            // The tagger often reads a plural verb after a noun as a base form ("crayfish reach").
+            let v = (1..upto).find(|&i| {
+                toks[i].tag.is_some_and(|g| {
+                    g.is_finite_verb() || (g.as_str() == "VB" && toks[i - 1].lower != "to")
+                })
+            })?;
+            let mut i = v;
+            while i > 0
+                && toks[i - 1].word
+                && toks[i - 1].tag.is_some_and(|g| g.is_nominal())
+                && !self.np_boundary(&toks[i - 1])
+                && v - i < self.lexicon.max_words
+            {
+                i -= 1;
+            }
+            let span = self.strip_determiners(toks, Span { from: i, to: v });
+            let ok = !span.is_empty()
+                && toks[span.from..span.to]
+                    .iter()
+                    .any(|t| t.tag.is_some_and(Tag::is_noun))
+                && !toks[span.from..span.to]
+                    .iter()
+                    .any(|t| PRONOUNS.contains(&t.lower.as_str()) || t.lower == "they");
+            ok.then_some(span)
+        };
+        // "If boat traffic rises, it ...": the noun phrase after a clause opener, for when the
+        // tagger missed the verb ("rises" read as a plural noun). A run that fills the whole
+        // clause has swallowed its verb and gives that word back.
+        let opener_np = || -> Option<Span> {
+            toks.first()
+                .filter(|t| self.lexicon.clause_breaks.contains(&t.lower))?;
+            let comma = (1..p).find(|&i| toks[i].lower == ",")?;
+            let from = (1..comma).find(|&i| !self.lexicon.determiners.contains(&toks[i].lower))?;
+            let mut j = from;
+            while j < comma
+                && toks[j].word
+                && toks[j].tag.is_some_and(|g| g.is_nominal())
+                && !self.np_boundary(&toks[j])
+            {
+                j += 1;
+            }
+            if j == comma && j - from > 1 {
+                j -= 1;
+            }
+            let span = Span { from, to: j };
+            (!span.is_empty()
+                && toks[span.from..span.to]
+                    .iter()
+                    .any(|t| t.tag.is_some_and(Tag::is_noun)))
+            .then_some(span)
+        };
+        if let Some(span) = subject(toks, p).or_else(opener_np) {
+            let mut c = self.choose(toks, sent, span, effect_side)?;
+            c.pronoun = Some(toks[p].lower.clone());
+            return Some((c, false));
+        }
+        // Only a pronoun that opens its sentence looks back to the previous one.
+        if toks[..p].iter().any(|t| t.word) {
+            return None;
+        }
+        let prev = prev?;
+        let mut ptoks = tokenize(prev.text);
+        self.tag_tokens(prev.text, &mut ptoks);
+        let span = subject(&ptoks, ptoks.len())?;
+        let mut c = self.choose(&ptoks, prev, span, effect_side)?;
+        c.pronoun = Some(toks[p].lower.clone());
+        Some((c, true))
+    }
+
     /// Walk forward from token `from`: the noun phrase after a cue.
     fn walk_forward(&self, toks: &[Token], from: usize, blocked: &[bool]) -> Span {
         let mut j = from;
@@ -516,6 +617,7 @@ impl Extractor {
             key_text,
             sign,
             negated,
+            pronoun: None,
         })
     }
 
@@ -810,7 +912,10 @@ impl Extractor {
         }
         let before = ca.checked_sub(1).map(|i| &toks[i].lower)?;
         // "the germ that causes ulcers": a relative pronoun, not a determiner, before a verb.
-        let relative = self.lexicon.relatives.contains(before)
+        // "This reduced fish numbers.": a demonstrative standing alone is a pronoun.
+        let pronoun = matches!(before.as_str(), "this" | "these")
+            && (ca == 1 || self.clause_boundary(&toks[ca - 2]));
+        let relative = (self.lexicon.relatives.contains(before) || pronoun)
             && toks[ca].tag.is_some_and(Tag::is_finite_verb);
         if (self.lexicon.determiners.contains(before) && !relative)
             || (self.lexicon.prepositions.contains(before) && before != "to")
@@ -1041,6 +1146,36 @@ impl Extractor {
                 effect = filled;
             }
         }
+        // "If the crayfish reach the lakes, they will ...": a slot that is only a pronoun takes
+        // its antecedent, and the claim says so.
+        for (slot, place, effect_side) in
+            [(&mut cause, m.cause, false), (&mut effect, m.effect, true)]
+        {
+            let pronoun_at = match slot {
+                Some(c) => {
+                    let (a, b) = token_range(toks, c.start - sent.offset, c.end - sent.offset);
+                    (b == a + 1 && PRONOUNS.contains(&toks[a].lower.as_str())).then_some(a)
+                }
+                None if place == SlotPlace::Before => self.bare_demonstrative(toks, ca),
+                None => None,
+            };
+            if let Some(p) = pronoun_at {
+                if let Some((c, cross)) = self.antecedent(toks, p, sent, prev, effect_side) {
+                    notes.push(format!(
+                        "\"{}\" resolved to \"{}\"{}",
+                        toks[p].lower,
+                        c.text,
+                        if cross {
+                            " in the previous sentence"
+                        } else {
+                            ""
+                        }
+                    ));
+                    cross_sentence |= cross;
+                    *slot = Some(c);
+                }
+            }
+        }
         let cause = cause.ok_or("no cause span found")?;
         let effect = effect.ok_or("no effect span found")?;
         let mut modality = self.modality(toks, ca, sent.text, notes);
@@ -1133,12 +1268,14 @@ impl Extractor {
                 key: ckey,
                 start: cause.start,
                 end: cause.end,
+                pronoun: cause.pronoun.clone(),
             },
             effect: Slot {
                 text: effect.text.clone(),
                 key: ekey,
                 start: effect.start,
                 end: effect.end,
+                pronoun: effect.pronoun.clone(),
             },
             kind: spec.kind,
             polarity,

@@ -102,6 +102,11 @@ pub struct Slot {
     pub start: usize,
     /// Byte offset one past the span's end in the document.
     pub end: usize,
+    /// When the sentence has a pronoun here ("they", "it", "this"), the pronoun as written; the
+    /// text, key and offsets are then those of its antecedent (see `Claim::cross_sentence` for
+    /// one in the previous sentence). Absent otherwise.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pronoun: Option<String>,
 }
 
 /// Where a claim was found.
@@ -184,6 +189,7 @@ mod tests {
             key: "rain".into(),
             start: 0,
             end: 4,
+            pronoun: None,
         };
         let c = Claim {
             schema: SCHEMA_VERSION,
