@@ -10,6 +10,7 @@ mod graph;
 mod graph_analyses;
 mod hostile;
 mod merge;
+mod pair_fast;
 mod quality;
 mod report_html;
 mod spark;
