@@ -161,6 +161,7 @@ fn visit_features(
     buf: &mut String,
     mut f: impl FnMut(&str),
 ) {
+    use std::fmt::Write as _;
     let w = lowered[i].as_str();
     let raw = words[i];
     let prev = if i > 0 {
@@ -176,37 +177,33 @@ fn visit_features(
     let next = lowered.get(i + 1).map_or("-END-", String::as_str);
     let next2 = lowered.get(i + 2).map_or("-END2-", String::as_str);
     let first = raw.chars().next();
-    // Each feature is its name and parts joined by single spaces, built with `push_str` (the
-    // formatting machinery cost more than the weight lookup).
-    let mut emit = |parts: &[&str]| {
+    let mut emit = |args: std::fmt::Arguments<'_>| {
         buf.clear();
-        for (k, p) in parts.iter().enumerate() {
-            if k > 0 {
-                buf.push(' ');
-            }
-            buf.push_str(p);
-        }
+        // Writing into a String cannot fail.
+        let _ = buf.write_fmt(args);
         f(buf);
     };
-    emit(&["b"]);
-    emit(&["w", w]);
-    emit(&["s1", suffix(w, 1)]);
-    emit(&["s2", suffix(w, 2)]);
-    emit(&["s3", suffix(w, 3)]);
-    emit(&["s4", suffix(w, 4)]);
-    let mut c_buf = [0u8; 4];
-    emit(&["p1", first.map_or("", |c| c.encode_utf8(&mut c_buf))]);
-    emit(&["sh", &shape(raw)]);
-    emit(&["t1", p1]);
-    emit(&["t2", p2, p1]);
-    emit(&["t1w", p1, w]);
-    emit(&["w-1", prev]);
-    emit(&["w-2", prev2]);
-    emit(&["s3-1", suffix(prev, 3)]);
-    emit(&["w+1", next]);
-    emit(&["s3+1", suffix(next, 3)]);
-    emit(&["w+2", next2]);
-    emit(&["first", if i == 0 { "true" } else { "false" }]);
+    emit(format_args!("b"));
+    emit(format_args!("w {w}"));
+    emit(format_args!("s1 {}", suffix(w, 1)));
+    emit(format_args!("s2 {}", suffix(w, 2)));
+    emit(format_args!("s3 {}", suffix(w, 3)));
+    emit(format_args!("s4 {}", suffix(w, 4)));
+    match first {
+        Some(c) => emit(format_args!("p1 {c}")),
+        None => emit(format_args!("p1 ")),
+    }
+    emit(format_args!("sh {}", shape(raw)));
+    emit(format_args!("t1 {p1}"));
+    emit(format_args!("t2 {p2} {p1}"));
+    emit(format_args!("t1w {p1} {w}"));
+    emit(format_args!("w-1 {prev}"));
+    emit(format_args!("w-2 {prev2}"));
+    emit(format_args!("s3-1 {}", suffix(prev, 3)));
+    emit(format_args!("w+1 {next}"));
+    emit(format_args!("s3+1 {}", suffix(next, 3)));
+    emit(format_args!("w+2 {next2}"));
+    emit(format_args!("first {}", i == 0));
 }
 
 /// The features of word `i` as owned strings (training).
