@@ -850,7 +850,7 @@ mod tests {
             effect: "effect ünïcode".into(),
             cause_text: format!("The {cause}"),
             effect_text: "effects".into(),
-            kind: if i % 2 == 0 {
+            kind: if i.is_multiple_of(2) {
                 Kind::Causal
             } else {
                 Kind::Association
