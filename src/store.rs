@@ -239,6 +239,69 @@ impl Store {
         Ok(out)
     }
 
+    /// The raw compact rows of every live segment, read once so that many queries can select
+    /// from them (see [`Store::rows_where`]).
+    pub fn row_bytes(&self) -> Result<RowBytes, StoreError> {
+        let mut segs = HashMap::new();
+        for seg in self.manifest.segments() {
+            let p = self.dir.join(seg_name(seg, "rows"));
+            let bytes = fs::read(&p).map_err(|e| StoreError::io(&p, e))?;
+            segs.insert(seg, bytes);
+        }
+        Ok(RowBytes { segs })
+    }
+
+    /// The live rows whose (cause key, effect key), as UTF-8 bytes, `keep` accepts, in the order
+    /// of [`Store::rows`]. Rows are decoded without copying their text; only kept rows are
+    /// copied, so selecting a few rows costs one pass over the bytes instead of building every row.
+    pub fn rows_where(
+        &self,
+        bytes: &RowBytes,
+        mut keep: impl FnMut(&[u8], &[u8]) -> bool,
+    ) -> Result<Vec<ClaimRow>, StoreError> {
+        let mut by_seg: HashMap<u32, Vec<(usize, ClaimRow)>> = HashMap::new();
+        let mut lens: HashMap<u32, usize> = HashMap::new();
+        for (&seg, b) in &bytes.segs {
+            let p = self.dir.join(seg_name(seg, "rows"));
+            let corrupt = |message: String| StoreError::Corrupt {
+                path: p.clone(),
+                message,
+            };
+            let rows: Vec<RowView> = postcard::from_bytes(b).map_err(|e| corrupt(e.to_string()))?;
+            lens.insert(seg, rows.len());
+            let mut kept = Vec::new();
+            for (i, r) in rows.iter().enumerate() {
+                if keep(r.cause, r.effect) {
+                    kept.push((i, r.to_row().map_err(|e| corrupt(e.to_string()))?));
+                }
+            }
+            by_seg.insert(seg, kept);
+        }
+        let mut out = Vec::new();
+        for f in &self.manifest.files {
+            if f.claims == 0 {
+                continue;
+            }
+            let (Some(rows), Some(&len)) = (by_seg.get(&f.segment), lens.get(&f.segment)) else {
+                return Err(StoreError::Corrupt {
+                    path: self.dir.clone(),
+                    message: format!("segment {} missing", f.segment),
+                });
+            };
+            let (a, b) = (f.rows.0 as usize, f.rows.1 as usize);
+            if a > b || b > len {
+                return Err(StoreError::Corrupt {
+                    path: self.dir.clone(),
+                    message: format!("rows {a}..{b} out of range for {}", f.path),
+                });
+            }
+            let from = rows.partition_point(|(i, _)| *i < a);
+            let to = rows.partition_point(|(i, _)| *i < b);
+            out.extend(rows[from..to].iter().map(|(_, r)| r.clone()));
+        }
+        Ok(out)
+    }
+
     /// The full claim record a row points at.
     pub fn claim(&self, at: ClaimRef) -> Result<Claim, StoreError> {
         let p = self.dir.join(seg_name(at.segment, "jsonl"));
@@ -344,6 +407,53 @@ impl Store {
         let (count, _) = self.sentences_with(groups, 0)?;
         let (_, hits) = self.sentences_with(groups, count)?;
         Ok(hits.into_iter().map(|h| (h.path, h.start)).collect())
+    }
+}
+
+/// The compact rows of a store's live segments, as read from disk (see [`Store::row_bytes`]).
+#[derive(Debug, Default)]
+pub struct RowBytes {
+    segs: HashMap<u32, Vec<u8>>,
+}
+
+/// A [`ClaimRow`] decoded in place: the same fields in the same order (postcard has no field
+/// names, and encodes a string and a byte string alike), with the text borrowed from the row
+/// bytes as bytes, so that only the rows kept pay for the UTF-8 check.
+#[derive(Debug, Deserialize)]
+struct RowView<'a> {
+    cause: &'a [u8],
+    effect: &'a [u8],
+    cause_text: &'a [u8],
+    effect_text: &'a [u8],
+    kind: crate::model::Kind,
+    polarity: crate::model::Polarity,
+    modality: crate::model::Modality,
+    cue: &'a [u8],
+    doc: &'a [u8],
+    line: u32,
+    sentence: u64,
+    at: ClaimRef,
+    confidence: f32,
+}
+
+impl RowView<'_> {
+    fn to_row(&self) -> Result<ClaimRow, std::string::FromUtf8Error> {
+        let s = |b: &[u8]| String::from_utf8(b.to_vec());
+        Ok(ClaimRow {
+            cause: s(self.cause)?,
+            effect: s(self.effect)?,
+            cause_text: s(self.cause_text)?,
+            effect_text: s(self.effect_text)?,
+            kind: self.kind,
+            polarity: self.polarity,
+            modality: self.modality,
+            cue: s(self.cue)?,
+            doc: s(self.doc)?,
+            line: self.line,
+            sentence: self.sentence,
+            at: self.at,
+            confidence: self.confidence,
+        })
     }
 }
 
@@ -727,4 +837,45 @@ pub fn key_terms(key: &str) -> Vec<String> {
         .filter(|t| !t.is_empty())
         .map(str::to_string)
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{Kind, Modality, Polarity};
+
+    fn row(i: u64, cause: &str) -> ClaimRow {
+        ClaimRow {
+            cause: cause.into(),
+            effect: "effect ünïcode".into(),
+            cause_text: format!("The {cause}"),
+            effect_text: "effects".into(),
+            kind: if i.is_multiple_of(2) {
+                Kind::Causal
+            } else {
+                Kind::Association
+            },
+            polarity: Polarity::Decrease,
+            modality: Modality::Hedged,
+            cue: "leads to".into(),
+            doc: format!("d{i}.txt#r"),
+            line: i as u32 + 1,
+            sentence: i * 1000,
+            at: ClaimRef {
+                segment: 3,
+                offset: i * 77,
+                len: 70,
+            },
+            confidence: 0.25 + i as f32,
+        }
+    }
+
+    #[test]
+    fn rows_decoded_in_place_equal_the_owned_rows() {
+        let rows: Vec<ClaimRow> = (0..5).map(|i| row(i, &format!("c{i}"))).collect();
+        let bytes = postcard::to_stdvec(&rows).unwrap();
+        let views: Vec<RowView> = postcard::from_bytes(&bytes).unwrap();
+        let back: Vec<ClaimRow> = views.iter().map(|v| v.to_row().unwrap()).collect();
+        assert_eq!(back, rows);
+    }
 }

@@ -572,6 +572,39 @@ pub fn train(
 mod tests {
     use super::*;
 
+    /// The feature strings are the model's keys: a change here silently changes every tag.
+    #[test]
+    fn feature_strings_are_the_model_keys() {
+        let words = ["The", "Storm"];
+        let lowered: Vec<String> = words.iter().map(|w| norm(w)).collect();
+        let want = [
+            "b",
+            "w storm",
+            "s1 m",
+            "s2 rm",
+            "s3 orm",
+            "s4 torm",
+            "p1 S",
+            "sh Xx",
+            "t1 DT",
+            "t2 -START- DT",
+            "t1w DT storm",
+            "w-1 the",
+            "w-2 -START2-",
+            "s3-1 the",
+            "w+1 -END-",
+            "s3+1 ND-",
+            "w+2 -END2-",
+            "first false",
+        ];
+        assert_eq!(features(&words, &lowered, 1, "DT", "-START-"), want);
+        let first = features(&[""], &[String::new()], 0, "-START-", "-START2-");
+        assert_eq!(
+            (first[6].as_str(), first[17].as_str()),
+            ("p1 ", "first true")
+        );
+    }
+
     #[test]
     fn builtin_model_loads_and_tags_a_sentence() {
         let t = Tagger::load_builtin();

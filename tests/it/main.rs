@@ -10,6 +10,7 @@ mod graph;
 mod graph_analyses;
 mod hostile;
 mod merge;
+mod pair_fast;
 mod quality;
 mod readers_generated;
 mod readers_jsonl;
