@@ -327,6 +327,36 @@ impl Extractor {
         }
     }
 
+    /// "Fish numbers have fallen since the dam opened": the effect clause is in the perfect and
+    /// the cause clause has no present-tense or modal verb, so "since" gives a time.
+    fn reads_as_time(
+        &self,
+        toks: &[Token],
+        sent: SentenceRef<'_>,
+        cause: &Chosen,
+        effect: &Chosen,
+    ) -> bool {
+        let range = |c: &Chosen| {
+            let (a, b) = token_range(toks, c.start - sent.offset, c.end - sent.offset);
+            &toks[a..b]
+        };
+        // The effect clause may start before its chosen span ("The town has grown since ...").
+        let e = range(effect);
+        let perfect = e.iter().enumerate().any(|(i, t)| {
+            matches!(t.lower.as_str(), "has" | "have" | "had" | "'ve")
+                && e[i + 1..]
+                    .iter()
+                    .take(3)
+                    .any(|n| n.lower == "been" || n.tag.is_some_and(Tag::is_participle))
+        });
+        let present = range(cause).iter().any(|t| {
+            matches!(t.lower.as_str(), "is" | "are" | "am")
+                || t.tag
+                    .is_some_and(|g| matches!(g.as_str(), "VBZ" | "VBP" | "MD"))
+        });
+        perfect && !present
+    }
+
     /// "This caused delays.": a demonstrative standing alone before a cue (its span was emptied
     /// because it is also a determiner). Returns its token.
     fn bare_demonstrative(&self, toks: &[Token], ca: usize) -> Option<usize> {
@@ -1178,6 +1208,11 @@ impl Extractor {
         }
         let cause = cause.ok_or("no cause span found")?;
         let effect = effect.ok_or("no effect span found")?;
+        if spec.time_sense && !cross_sentence && self.reads_as_time(toks, sent, &cause, &effect) {
+            return Err(
+                "a perfect-tense clause beside a past-tense or verbless one: the time sense".into(),
+            );
+        }
         let mut modality = self.modality(toks, ca, sent.text, notes);
         let polarity = spec.polarity;
         if polarity == Polarity::None && modality != Modality::Question {

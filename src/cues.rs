@@ -311,11 +311,6 @@ impl CueSet {
                         continue;
                     }
                 }
-                if let Some(r) = &cue.reject_before {
-                    if r.is_match(sentence[..m.start()].trim_end()) {
-                        continue;
-                    }
-                }
                 let place = |role: Role| -> SlotPlace {
                     if cue.left == Some(role) {
                         return SlotPlace::Before;
@@ -339,6 +334,12 @@ impl CueSet {
                     }
                     _ => m.start(),
                 };
+                // Anchored at the cue's own start: for "CAUSE -mediated", right after the glued word.
+                if let Some(r) = &cue.reject_before {
+                    if r.is_match(sentence[..start].trim_end()) {
+                        continue;
+                    }
+                }
                 found.push(CueMatch {
                     cue: ci,
                     start,

@@ -97,6 +97,9 @@ pub struct CueSpec {
     /// The cue only counts when the effect's head noun is one of the lexicon's outcome nouns
     /// ("headaches from mold", "friction produces heat", not "a man from Oslo").
     pub outcome_effect: bool,
+    /// The connective also has a time sense ("since"): a perfect-tense effect clause beside a
+    /// past-tense or verbless cause clause reads as time, not reason, and gives no claim.
+    pub time_sense: bool,
     pub examples: Vec<Example>,
     pub counter_examples: Vec<String>,
     /// Where the entry was defined, for messages.
@@ -263,6 +266,8 @@ struct RawCue {
     #[serde(default)]
     outcome_effect: bool,
     #[serde(default)]
+    time_sense: bool,
+    #[serde(default)]
     examples: Vec<RawExample>,
     #[serde(default)]
     counter_examples: Vec<String>,
@@ -359,6 +364,7 @@ pub fn parse_cue_file(
             reject_after: raw.reject_after,
             reject_before: raw.reject_before,
             outcome_effect: raw.outcome_effect,
+            time_sense: raw.time_sense,
             examples,
             counter_examples: raw.counter_examples,
             origin: (path.to_path_buf(), line),
