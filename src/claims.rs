@@ -316,7 +316,15 @@ impl Extractor {
     /// auxiliary ("to escape the floodwaters caused by rain" stops at "escape").
     fn verb_stop(&self, toks: &[Token], k: usize) -> bool {
         match toks[k].tag {
-            Some(g) if g.is_finite_verb() => true,
+            // A finite verb needs a noun or pronoun subject right before it: "Farmers lost
+            // income", but not the mis-tagged nouns in "On the farms, buffer strips prevent
+            // runoff" or "report that boat traffic increases erosion".
+            Some(g) if g.is_finite_verb() => {
+                k > 0
+                    && toks[k - 1]
+                        .tag
+                        .is_some_and(|p| p.is_noun() || p.as_str().starts_with("PRP"))
+            }
             Some(g) if g.as_str() == "VB" => {
                 k > 0 && {
                     let p = &toks[k - 1].lower;
@@ -337,7 +345,11 @@ impl Extractor {
         effect: &Chosen,
     ) -> bool {
         let range = |c: &Chosen| {
-            let (a, b) = token_range(toks, c.start - sent.offset, c.end - sent.offset);
+            let (a, b) = token_range(
+                toks,
+                c.start.saturating_sub(sent.offset),
+                c.end.saturating_sub(sent.offset),
+            );
             &toks[a..b]
         };
         // The effect clause may start before its chosen span ("The town has grown since ...").
@@ -1182,10 +1194,12 @@ impl Extractor {
             [(&mut cause, m.cause, false), (&mut effect, m.effect, true)]
         {
             let pronoun_at = match slot {
-                Some(c) => {
+                // A slot already taken from the previous sentence is not this sentence's words.
+                Some(c) if c.start >= sent.offset => {
                     let (a, b) = token_range(toks, c.start - sent.offset, c.end - sent.offset);
                     (b == a + 1 && PRONOUNS.contains(&toks[a].lower.as_str())).then_some(a)
                 }
+                Some(_) => None,
                 None if place == SlotPlace::Before => self.bare_demonstrative(toks, ca),
                 None => None,
             };
@@ -1568,8 +1582,16 @@ mod tests {
             .3,
             Modality::Conditional
         );
-        // A pronoun names no variable.
-        assert!(claims(&e, "If the dam breaks, it will cause flooding downstream.").is_empty());
+        // A pronoun takes the subject of the clause before it, and the slot keeps the pronoun.
+        let cs = claims(&e, "If the dam breaks, it will cause flooding downstream.");
+        assert_eq!(cs.len(), 1);
+        assert_eq!(
+            (cs[0].cause.key.as_str(), cs[0].cause.pronoun.as_deref()),
+            ("dam", Some("it"))
+        );
+        assert_eq!(cs[0].modality, Modality::Conditional);
+        // A pronoun with no antecedent names no variable.
+        assert!(claims(&e, "It will cause flooding downstream.").is_empty());
         let (c, ef, _, m) = one(&e, "The flooding was caused by heavy rain.");
         assert_eq!(
             (c.as_str(), ef.as_str(), m),
