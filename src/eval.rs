@@ -286,16 +286,27 @@ fn overlaps(c: &Claim, g: GoldSpan) -> bool {
     side(&c.cause) || side(&c.effect)
 }
 
+/// Is a SemEval label the catch-all `Other` (no relation of the scheme)?
+fn is_other(label: &str) -> bool {
+    label.trim().eq_ignore_ascii_case("other")
+}
+
 /// Score extraction on SemEval-style items (one marked pair each).
 pub fn score_pairs(ex: &Extractor, items: &[GoldItem]) -> (Scores, Vec<Scored>) {
     let (s, scored, _) = score_pairs_judged(ex, items);
     (s, scored)
 }
 
-/// Like [`score_pairs`], also judging single claims. A claim is right when it matches the gold
-/// pair; it is wrong when it gives the marked pair in the wrong direction, relates the marked pair
-/// of a negative item, or touches a gold nominal of a positive item without matching. Other
-/// claims (about words the annotation does not speak of) are not judged.
+/// Like [`score_pairs`], also judging single claims: is hearsay's reading of the sentence right,
+/// as far as the annotation can tell? A claim is right when it matches the gold pair. It is wrong
+/// when it gives the marked pair of a Cause-Effect item in the wrong direction or touches one of
+/// its nominals without matching, and when it relates the marked pair of an item whose label
+/// names another, non-causal relation (the pair is a part and its whole, a product and its
+/// producer, ...: a causal reading of that pair is a misreading). A claim on the pair of an item
+/// labelled `Other` is not judged: that label says only that none of the nine relations applies,
+/// and the scheme's Cause-Effect is narrower than a stated effect ("X reduces Y" is often
+/// `Other`), so it cannot tell a right reading from a wrong one. Other claims (about words the
+/// annotation does not speak of) are not judged either.
 pub fn score_pairs_judged(
     ex: &Extractor,
     items: &[GoldItem],
@@ -348,6 +359,7 @@ pub fn score_pairs_judged(
                 Some((cause, effect)) => {
                     (overlaps(c, cause) || overlaps(c, effect)).then_some(false)
                 }
+                None if is_other(&it.label) => None,
                 None => (fwd(&c, a, b) || fwd(&c, b, a)).then_some(false),
             };
             if let Some(ok) = verdict {
