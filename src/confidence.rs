@@ -19,8 +19,10 @@
 use crate::claims::{tokenize, Extractor, Token};
 use crate::model::Claim;
 use crate::tagger::{Tag, Tagger};
+use rustc_hash::FxHashMap;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
+use std::hash::Hasher as _;
 use std::sync::OnceLock;
 
 /// The header every model file carries.
@@ -29,12 +31,22 @@ pub const FORMAT: &str = "hearsay-confidence 1";
 /// The model shipped in the binary.
 const BUILTIN: &str = include_str!("../patterns/confidence.toml");
 
-/// A trained model: a bias and one weight per feature name.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+/// A trained model: a bias and one weight per feature name. The names are what the file shows;
+/// at load time each is hashed ([`feature_hash`]) so that scoring a claim looks weights up
+/// without building any string.
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Model {
     pub format: String,
     pub bias: f64,
     pub weights: BTreeMap<String, f64>,
+    #[serde(skip)]
+    by_hash: FxHashMap<u64, f64>,
+}
+
+impl PartialEq for Model {
+    fn eq(&self, other: &Model) -> bool {
+        self.format == other.format && self.bias == other.bias && self.weights == other.weights
+    }
 }
 
 /// Errors from reading a model file.
@@ -45,24 +57,66 @@ pub struct ModelError {
     pub message: String,
 }
 
+/// The hash of a feature `key=value` (or `key`), computed from its parts so that scoring need
+/// not join them. Deterministic (FxHash, no random seed).
+pub fn feature_hash(key: &str, value: Option<&str>) -> u64 {
+    let mut h = rustc_hash::FxHasher::default();
+    h.write(key.as_bytes());
+    if let Some(v) = value {
+        h.write_u8(b'=');
+        h.write(v.as_bytes());
+    }
+    h.finish()
+}
+
+/// The hash of a feature by its full name: the part before the first `=` is the key.
+fn name_hash(name: &str) -> u64 {
+    match name.split_once('=') {
+        Some((k, v)) => feature_hash(k, Some(v)),
+        None => feature_hash(name, None),
+    }
+}
+
 impl Model {
+    /// A model from its bias and named weights.
+    pub fn new(bias: f64, weights: BTreeMap<String, f64>) -> Model {
+        let mut m = Model {
+            format: FORMAT.to_string(),
+            bias,
+            weights,
+            by_hash: FxHashMap::default(),
+        };
+        m.index();
+        m
+    }
+
+    fn index(&mut self) {
+        self.by_hash = self
+            .weights
+            .iter()
+            .map(|(k, &w)| (name_hash(k), w))
+            .collect();
+    }
+
     /// Parse a model file; `path` names it in errors.
     pub fn parse(path: &str, text: &str) -> Result<Model, ModelError> {
-        let m: Model = toml::from_str(text).map_err(|e| ModelError {
+        let err = |message: String| ModelError {
             path: path.to_string(),
-            message: e.to_string(),
-        })?;
+            message,
+        };
+        let mut m: Model = toml::from_str(text).map_err(|e| err(e.to_string()))?;
         if m.format != FORMAT {
-            return Err(ModelError {
-                path: path.to_string(),
-                message: format!("format is \"{}\", expected \"{FORMAT}\"", m.format),
-            });
+            return Err(err(format!(
+                "format is \"{}\", expected \"{FORMAT}\"",
+                m.format
+            )));
         }
         if let Some((k, _)) = m.weights.iter().find(|(_, w)| !w.is_finite()) {
-            return Err(ModelError {
-                path: path.to_string(),
-                message: format!("weight of \"{k}\" is not a finite number"),
-            });
+            return Err(err(format!("weight of \"{k}\" is not a finite number")));
+        }
+        m.index();
+        if m.by_hash.len() != m.weights.len() {
+            return Err(err("two feature names have the same hash".to_string()));
         }
         Ok(m)
     }
@@ -76,13 +130,31 @@ impl Model {
         })
     }
 
-    /// The probability for a set of features.
+    /// The probability for a set of named features.
     pub fn probability<S: AsRef<str>>(&self, features: &[S]) -> f64 {
         let z = self.bias
             + features
                 .iter()
                 .filter_map(|f| self.weights.get(f.as_ref()))
                 .sum::<f64>();
+        sigmoid(z)
+    }
+
+    /// The probability for one claim of a tagged sentence, by hashed look-up (the same value as
+    /// [`Model::probability`] of [`features`]).
+    pub fn score(
+        &self,
+        c: &Claim,
+        family: &str,
+        s: &TaggedSentence<'_>,
+        claims_here: usize,
+    ) -> f64 {
+        let mut z = self.bias;
+        visit_features(c, family, s, claims_here, &mut |k, v| {
+            if let Some(w) = self.by_hash.get(&feature_hash(k, v)) {
+                z += w;
+            }
+        });
         sigmoid(z)
     }
 
@@ -146,21 +218,35 @@ fn coarse(t: Tag) -> &'static str {
     }
 }
 
-fn bucket(n: usize, edges: &[usize]) -> String {
-    // `edges` are inclusive upper bounds; above the last one is "N+".
-    let mut lo = 0;
-    for &e in edges {
-        if n <= e {
-            return if lo == e {
-                e.to_string()
-            } else {
-                format!("{lo}-{e}")
-            };
-        }
-        lo = e + 1;
-    }
-    format!("{lo}+")
+/// Bucket `n` by inclusive upper bounds `edges`, naming each bucket as a range ("0-1", "2",
+/// "4-5", "6+"). Every edge list the features use has its names written out once, so scoring
+/// allocates nothing.
+fn bucket(n: usize, b: &Buckets) -> &'static str {
+    let i = b.edges.partition_point(|&e| e < n);
+    b.names[i]
 }
+
+struct Buckets {
+    edges: &'static [usize],
+    names: &'static [&'static str],
+}
+
+const CLAIMS_HERE: Buckets = Buckets {
+    edges: &[1, 2],
+    names: &["0-1", "2", "3+"],
+};
+const SENTENCE_WORDS: Buckets = Buckets {
+    edges: &[10, 20, 30, 45],
+    names: &["0-10", "11-20", "21-30", "31-45", "46+"],
+};
+const SPAN_WORDS: Buckets = Buckets {
+    edges: &[1, 2, 3, 5, 8],
+    names: &["0-1", "2", "3", "4-5", "6-8", "9+"],
+};
+const BETWEEN_WORDS: Buckets = Buckets {
+    edges: &[1, 2, 3, 5, 9],
+    names: &["0-1", "2", "3", "4-5", "6-9", "10+"],
+};
 
 /// A sentence tokenised and tagged once, for the features of every claim in it.
 pub struct TaggedSentence<'a> {
@@ -201,104 +287,166 @@ impl<'a> TaggedSentence<'a> {
     }
 }
 
-/// The features of one claim. `family` is its cue's family; `claims_here` how many claims its
-/// sentence gave.
+/// The feature keys of one side of a claim.
+struct SideKeys {
+    outside: &'static str,
+    words: &'static str,
+    first: &'static str,
+    head: &'static str,
+    opens_sentence: &'static str,
+    ends_sentence: &'static str,
+    finite_verb: &'static str,
+    comma: &'static str,
+    paren: &'static str,
+}
+
+const CAUSE: SideKeys = SideKeys {
+    outside: "cause_outside",
+    words: "cause_words",
+    first: "cause_first",
+    head: "cause_head",
+    opens_sentence: "cause_opens_sentence",
+    ends_sentence: "cause_ends_sentence",
+    finite_verb: "cause_finite_verb",
+    comma: "cause_comma",
+    paren: "cause_paren",
+};
+
+const EFFECT: SideKeys = SideKeys {
+    outside: "effect_outside",
+    words: "effect_words",
+    first: "effect_first",
+    head: "effect_head",
+    opens_sentence: "effect_opens_sentence",
+    ends_sentence: "effect_ends_sentence",
+    finite_verb: "effect_finite_verb",
+    comma: "effect_comma",
+    paren: "effect_paren",
+};
+
+/// Visit the features of one claim: each is a key with an optional value, named `key=value` (or
+/// `key`) in the model file. `family` is the claim's cue family; `claims_here` how many claims
+/// its sentence gave. Nothing is allocated, so scoring costs a few hash look-ups per claim.
+pub fn visit_features(
+    c: &Claim,
+    family: &str,
+    s: &TaggedSentence<'_>,
+    claims_here: usize,
+    f: &mut impl FnMut(&str, Option<&str>),
+) {
+    f("cue", Some(&c.cue));
+    f("family", Some(family));
+    f("kind", Some(c.kind.as_str()));
+    f("polarity", Some(c.polarity.as_str()));
+    f("modality", Some(c.modality.as_str()));
+    f("claims_here", Some(bucket(claims_here, &CLAIMS_HERE)));
+    if c.cross_sentence {
+        f("cross_sentence", None);
+    }
+    let sentence_words = s.tokens.iter().filter(|t| t.word).count();
+    f(
+        "sentence_words",
+        Some(bucket(sentence_words, &SENTENCE_WORDS)),
+    );
+    for (mark, name) in [
+        (";", "sentence_semicolon"),
+        ("(", "sentence_paren"),
+        ("\"", "sentence_quote"),
+        (":", "sentence_colon"),
+    ] {
+        if s.text.contains(mark) {
+            f(name, None);
+        }
+    }
+    let last_word = s.tokens.iter().rposition(|t| t.word);
+    let mut inside = 0;
+    let mut ranges = [None, None];
+    for (i, (k, slot)) in [(&CAUSE, &c.cause), (&EFFECT, &c.effect)]
+        .into_iter()
+        .enumerate()
+    {
+        let Some(r) = s.tokens_in(slot.start, slot.end) else {
+            f(k.outside, None);
+            continue;
+        };
+        let words = s.word_count(r.clone());
+        inside += words;
+        f(k.words, Some(bucket(words, &SPAN_WORDS)));
+        let first = r.clone().find(|&i| s.tokens[i].word);
+        let last = r.clone().rev().find(|&i| s.tokens[i].word);
+        if let (Some(a), Some(b)) = (first, last) {
+            f(k.first, Some(coarse(s.tags[a])));
+            f(k.head, Some(coarse(s.tags[b])));
+            if a == 0 {
+                f(k.opens_sentence, None);
+            }
+            if Some(b) == last_word {
+                f(k.ends_sentence, None);
+            }
+        }
+        if r.clone().any(|i| s.tags[i].is_finite_verb()) {
+            f(k.finite_verb, None);
+        }
+        let text = &s.text[s.tokens[r.start].start..s.tokens[r.end - 1].end];
+        if text.contains(',') {
+            f(k.comma, None);
+        }
+        if text.contains(['(', ')']) {
+            f(k.paren, None);
+        }
+        ranges[i] = Some(r);
+    }
+    if let [Some(a), Some(b)] = &ranges {
+        let (first, second, order) = if a.start <= b.start {
+            (a, b, "cause_first")
+        } else {
+            (b, a, "effect_first")
+        };
+        f("order", Some(order));
+        if second.start >= first.end {
+            let gap = first.end..second.start;
+            f(
+                "between_words",
+                Some(bucket(s.word_count(gap.clone()), &BETWEEN_WORDS)),
+            );
+            if s.tokens[gap].iter().any(|t| t.lower == ",") {
+                f("between_comma", None);
+            }
+        }
+        let share = inside as f64 / sentence_words.max(1) as f64;
+        f(
+            "coverage",
+            Some(match share {
+                x if x < 0.25 => "low",
+                x if x < 0.5 => "mid",
+                x if x < 0.75 => "high",
+                _ => "most",
+            }),
+        );
+    }
+}
+
+/// The name of a feature as the model file writes it.
+pub fn feature_name(key: &str, value: Option<&str>) -> String {
+    match value {
+        Some(v) => format!("{key}={v}"),
+        None => key.to_string(),
+    }
+}
+
+/// The features of one claim by name (for training and for `explain`; scoring uses
+/// [`visit_features`] and the hashed weights instead).
 pub fn features(
     c: &Claim,
     family: &str,
     s: &TaggedSentence<'_>,
     claims_here: usize,
 ) -> Vec<String> {
-    let mut f = vec![
-        format!("cue={}", c.cue),
-        format!("family={family}"),
-        format!("kind={}", c.kind),
-        format!("polarity={}", c.polarity),
-        format!("modality={}", c.modality),
-        format!("claims_here={}", bucket(claims_here, &[1, 2])),
-    ];
-    if c.cross_sentence {
-        f.push("cross_sentence".into());
-    }
-    let sentence_words = s.tokens.iter().filter(|t| t.word).count();
-    f.push(format!(
-        "sentence_words={}",
-        bucket(sentence_words, &[10, 20, 30, 45])
-    ));
-    for (mark, name) in [
-        (";", "semicolon"),
-        ("(", "paren"),
-        ("\"", "quote"),
-        (":", "colon"),
-    ] {
-        if s.text.contains(mark) {
-            f.push(format!("sentence_{name}"));
-        }
-    }
-    let last_word = s.tokens.iter().rposition(|t| t.word);
-    let mut inside = 0;
-    let mut ranges = Vec::new();
-    for (side, slot) in [("cause", &c.cause), ("effect", &c.effect)] {
-        let Some(r) = s.tokens_in(slot.start, slot.end) else {
-            f.push(format!("{side}_outside"));
-            ranges.push(None);
-            continue;
-        };
-        let words = s.word_count(r.clone());
-        inside += words;
-        f.push(format!("{side}_words={}", bucket(words, &[1, 2, 3, 5, 8])));
-        let word_idx: Vec<usize> = r.clone().filter(|&i| s.tokens[i].word).collect();
-        if let (Some(&a), Some(&b)) = (word_idx.first(), word_idx.last()) {
-            f.push(format!("{side}_first={}", coarse(s.tags[a])));
-            f.push(format!("{side}_head={}", coarse(s.tags[b])));
-            if a == 0 {
-                f.push(format!("{side}_opens_sentence"));
-            }
-            if Some(b) == last_word {
-                f.push(format!("{side}_ends_sentence"));
-            }
-        }
-        if r.clone().any(|i| s.tags[i].is_finite_verb()) {
-            f.push(format!("{side}_finite_verb"));
-        }
-        let text = &s.text[s.tokens[r.start].start..s.tokens[r.end - 1].end];
-        if text.contains(',') {
-            f.push(format!("{side}_comma"));
-        }
-        if text.contains(['(', ')']) {
-            f.push(format!("{side}_paren"));
-        }
-        ranges.push(Some(r));
-    }
-    if let [Some(a), Some(b)] = ranges.as_slice() {
-        let (first, second, order) = if a.start <= b.start {
-            (a, b, "cause_first")
-        } else {
-            (b, a, "effect_first")
-        };
-        f.push(format!("order={order}"));
-        if second.start >= first.end {
-            let gap = first.end..second.start;
-            f.push(format!(
-                "between_words={}",
-                bucket(s.word_count(gap.clone()), &[1, 2, 3, 5, 9])
-            ));
-            if s.tokens[gap].iter().any(|t| t.lower == ",") {
-                f.push("between_comma".into());
-            }
-        }
-        let share = inside as f64 / sentence_words.max(1) as f64;
-        f.push(format!(
-            "coverage={}",
-            match share {
-                x if x < 0.25 => "low",
-                x if x < 0.5 => "mid",
-                x if x < 0.75 => "high",
-                _ => "most",
-            }
-        ));
-    }
-    f
+    let mut out = Vec::new();
+    visit_features(c, family, s, claims_here, &mut |k, v| {
+        out.push(feature_name(k, v))
+    });
+    out
 }
 
 /// The family of a cue id, from the extractor's cue set ("" when unknown).
@@ -310,30 +458,59 @@ pub fn family<'e>(ex: &'e Extractor, cue: &str) -> &'e str {
         .map_or("", |c| c.spec.family.as_str())
 }
 
-/// The features of every claim of one sentence (`sentence` starts at document offset `offset`).
-pub fn sentence_features(
-    ex: &Extractor,
-    claims: &[Claim],
-    sentence: &str,
-    offset: usize,
-) -> Vec<Vec<String>> {
-    if claims.is_empty() {
-        return Vec::new();
-    }
-    let s = TaggedSentence::new(sentence, offset);
-    claims
-        .iter()
-        .map(|c| features(c, family(ex, &c.cue), &s, claims.len()))
-        .collect()
-}
-
 /// Set the confidence of the claims of one sentence with the model in force.
 pub fn score_sentence(ex: &Extractor, claims: &mut [Claim], sentence: &str, offset: usize) {
-    let m = model();
-    let feats = sentence_features(ex, claims, sentence, offset);
-    for (c, f) in claims.iter_mut().zip(feats) {
-        c.confidence = (m.probability(&f) * 1000.0).round() / 1000.0;
+    if claims.is_empty() {
+        return;
     }
+    let m = model();
+    let s = TaggedSentence::new(sentence, offset);
+    let n = claims.len();
+    for c in claims.iter_mut() {
+        let p = m.score(c, family(ex, &c.cue), &s, n);
+        c.confidence = (p * 1000.0).round() / 1000.0;
+    }
+}
+
+/// One feature's share in a claim's confidence, for `explain`.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Contribution {
+    pub feature: String,
+    pub weight: f64,
+}
+
+/// How the model in force scored one claim, for `explain`: the confidence the pipeline gives it
+/// and the features that carry a weight, largest effect first. `doc_text` is the text the claim's
+/// offsets point into; `all` the claims found in it (for the claims-per-sentence feature).
+pub fn explain(
+    ex: &Extractor,
+    c: &Claim,
+    doc_text: &str,
+    all: &[Claim],
+) -> (f64, Vec<Contribution>) {
+    let m = model();
+    let (a, b) = (c.source.start, c.source.end);
+    let sentence = doc_text.get(a..b).unwrap_or("");
+    let s = TaggedSentence::new(sentence, a);
+    let here = all.iter().filter(|o| o.source.start == a).count().max(1);
+    let names = features(c, family(ex, &c.cue), &s, here);
+    let p = (m.probability(&names) * 1000.0).round() / 1000.0;
+    let mut out: Vec<Contribution> = names
+        .into_iter()
+        .filter_map(|f| {
+            m.weights.get(&f).map(|&w| Contribution {
+                feature: f,
+                weight: w,
+            })
+        })
+        .collect();
+    out.sort_by(|x, y| {
+        y.weight
+            .abs()
+            .total_cmp(&x.weight.abs())
+            .then_with(|| x.feature.cmp(&y.feature))
+    });
+    (p, out)
 }
 
 /// One labelled example for training: its features and whether the claim was right.
@@ -426,16 +603,15 @@ pub fn train(examples: &[Example], opts: TrainOptions) -> Model {
             break;
         }
     }
-    Model {
-        format: FORMAT.to_string(),
-        bias: round4(w[0]),
-        weights: names
+    Model::new(
+        round4(w[0]),
+        names
             .iter()
             .enumerate()
             .map(|(i, k)| (k.to_string(), round4(w[i + 1])))
             .filter(|(_, x)| *x != 0.0)
             .collect(),
-    }
+    )
 }
 
 /// Solve `A x = b` for a symmetric positive definite `A` (row-major, `n`×`n`) by Cholesky
@@ -497,11 +673,36 @@ mod tests {
 
     #[test]
     fn buckets_read_as_ranges() {
-        assert_eq!(bucket(1, &[1, 2, 3, 5]), "0-1");
-        assert_eq!(bucket(2, &[1, 2, 3, 5]), "2");
-        assert_eq!(bucket(4, &[1, 2, 3, 5]), "4-5");
-        assert_eq!(bucket(9, &[1, 2, 3, 5]), "6+");
-        assert_eq!(bucket(0, &[1, 2]), "0-1");
+        assert_eq!(bucket(1, &SPAN_WORDS), "0-1");
+        assert_eq!(bucket(2, &SPAN_WORDS), "2");
+        assert_eq!(bucket(4, &SPAN_WORDS), "4-5");
+        assert_eq!(bucket(6, &SPAN_WORDS), "6-8");
+        assert_eq!(bucket(9, &SPAN_WORDS), "9+");
+        assert_eq!(bucket(0, &CLAIMS_HERE), "0-1");
+        assert_eq!(bucket(46, &SENTENCE_WORDS), "46+");
+        assert_eq!(bucket(10, &BETWEEN_WORDS), "10+");
+        // Every bucket list names one more bucket than it has edges.
+        for b in [&CLAIMS_HERE, &SENTENCE_WORDS, &SPAN_WORDS, &BETWEEN_WORDS] {
+            assert_eq!(b.names.len(), b.edges.len() + 1);
+        }
+    }
+
+    #[test]
+    fn hashed_scoring_equals_scoring_by_name() {
+        let ex = Extractor::new(&crate::patterns::PatternSet::builtin().unwrap()).unwrap();
+        let text = "Heavy rain probably causes severe flooding in the valley, officials said.";
+        let (claims, _) = crate::pipeline::sentence_attempts(&ex, text);
+        assert!(!claims.is_empty());
+        let m = Model::builtin();
+        let s = TaggedSentence::new(text, 0);
+        for c in &claims {
+            let fam = family(&ex, &c.cue);
+            let names = features(c, fam, &s, claims.len());
+            assert!(names.iter().any(|n| n.starts_with("cue=")), "{names:?}");
+            let by_name = m.probability(&names);
+            let by_hash = m.score(c, fam, &s, claims.len());
+            assert!((by_name - by_hash).abs() < 1e-12, "{by_name} {by_hash}");
+        }
     }
 
     #[test]

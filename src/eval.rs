@@ -286,16 +286,50 @@ fn overlaps(c: &Claim, g: GoldSpan) -> bool {
     side(&c.cause) || side(&c.effect)
 }
 
+/// The verdict on a claim of a Cause-Effect item that does not match its pair: wrong when it
+/// gives the pair backwards, puts a gold nominal on the wrong side, or has a span that touches a
+/// gold nominal without covering it within the allowance; not judged when one side reads its
+/// gold nominal right and the other touches neither (the sentence may state more than the one
+/// marked pair: in "A and B cause C" the annotation marks one of A and B), nor when the claim
+/// touches no gold nominal.
+fn judge_causal_item(text: &str, c: &Claim, cause: GoldSpan, effect: GoldSpan) -> Option<bool> {
+    let touches = |s: &crate::model::Slot, g: GoldSpan| s.start < g.end && g.start < s.end;
+    let reads = |s: &crate::model::Slot, g: GoldSpan| covers(text, s.start, s.end, g);
+    if touches(&c.cause, effect) || touches(&c.effect, cause) || c.kind != Kind::Causal {
+        return (overlaps(c, cause) || overlaps(c, effect)).then_some(false);
+    }
+    let cause_ok = reads(&c.cause, cause);
+    let effect_ok = reads(&c.effect, effect);
+    let cause_bad = touches(&c.cause, cause) && !cause_ok;
+    let effect_bad = touches(&c.effect, effect) && !effect_ok;
+    if cause_bad || effect_bad {
+        Some(false)
+    } else {
+        None
+    }
+}
+
+/// Is a SemEval label the catch-all `Other` (no relation of the scheme)?
+fn is_other(label: &str) -> bool {
+    label.trim().eq_ignore_ascii_case("other")
+}
+
 /// Score extraction on SemEval-style items (one marked pair each).
 pub fn score_pairs(ex: &Extractor, items: &[GoldItem]) -> (Scores, Vec<Scored>) {
     let (s, scored, _) = score_pairs_judged(ex, items);
     (s, scored)
 }
 
-/// Like [`score_pairs`], also judging single claims. A claim is right when it matches the gold
-/// pair; it is wrong when it gives the marked pair in the wrong direction, relates the marked pair
-/// of a negative item, or touches a gold nominal of a positive item without matching. Other
-/// claims (about words the annotation does not speak of) are not judged.
+/// Like [`score_pairs`], also judging single claims: is hearsay's reading of the sentence right,
+/// as far as the annotation can tell? A claim is right when it matches the gold pair. On a
+/// Cause-Effect item it is wrong when it misreads the marked pair ([`judge_causal_item`]). It is
+/// also wrong when it relates the marked pair of an item whose label
+/// names another, non-causal relation (the pair is a part and its whole, a product and its
+/// producer, ...: a causal reading of that pair is a misreading). A claim on the pair of an item
+/// labelled `Other` is not judged: that label says only that none of the nine relations applies,
+/// and the scheme's Cause-Effect is narrower than a stated effect ("X reduces Y" is often
+/// `Other`), so it cannot tell a right reading from a wrong one. Other claims (about words the
+/// annotation does not speak of) are not judged either.
 pub fn score_pairs_judged(
     ex: &Extractor,
     items: &[GoldItem],
@@ -345,9 +379,8 @@ pub fn score_pairs_judged(
         for c in &claims {
             let verdict = match it.causal {
                 Some((cause, effect)) if fwd(&c, cause, effect) => Some(true),
-                Some((cause, effect)) => {
-                    (overlaps(c, cause) || overlaps(c, effect)).then_some(false)
-                }
+                Some((cause, effect)) => judge_causal_item(&it.text, c, cause, effect),
+                None if is_other(&it.label) => None,
                 None => (fwd(&c, a, b) || fwd(&c, b, a)).then_some(false),
             };
             if let Some(ok) = verdict {

@@ -82,10 +82,19 @@ pub struct Filter {
 
 impl Filter {
     pub fn accepts(&self, r: &ClaimRow) -> bool {
-        self.min_confidence.is_none_or(|m| r.confidence >= m)
-            && self.kind.is_none_or(|k| k == r.kind)
-            && self.polarity.is_none_or(|p| p == r.polarity)
-            && self.modality.is_none_or(|m| m == r.modality)
+        self.accepts_parts(r.kind, r.polarity, r.modality, r.confidence)
+    }
+
+    /// The same test on a claim as extracted (`extract --min-confidence` and the like).
+    pub fn accepts_claim(&self, c: &crate::model::Claim) -> bool {
+        self.accepts_parts(c.kind, c.polarity, c.modality, c.confidence as f32)
+    }
+
+    fn accepts_parts(&self, kind: Kind, polarity: Polarity, modality: Modality, p: f32) -> bool {
+        self.min_confidence.is_none_or(|m| p >= m)
+            && self.kind.is_none_or(|k| k == kind)
+            && self.polarity.is_none_or(|x| x == polarity)
+            && self.modality.is_none_or(|m| m == modality)
     }
 }
 

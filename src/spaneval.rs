@@ -201,8 +201,14 @@ pub fn score_spans(ex: &Extractor, docs: &[GoldDoc]) -> (SpanReport, Vec<SpanErr
     (r, errors)
 }
 
-/// Like [`score_spans`], also returning each claim judged: right when matched, wrong otherwise
-/// (documents labelled only per sentence give no judgements).
+/// Like [`score_spans`], also returning the claims judged for the reliability table and for
+/// training: right when matched, or when its spans lie inside the spans of one gold claim
+/// ([`reads_inside`]); wrong otherwise when one of its spans shares a word
+/// with a span of a gold claim in the same sentence (the annotators read that part of the
+/// sentence, and hearsay read it differently: wrong spans or the wrong direction). An unmatched
+/// claim that touches no gold span is not judged: the annotation scheme may simply not cover
+/// that relation (a stated change, say), so it cannot tell a right reading from a wrong one.
+/// Documents labelled only per sentence give no judgements.
 pub fn score_spans_judged(
     ex: &Extractor,
     docs: &[GoldDoc],
@@ -330,7 +336,10 @@ pub fn score_spans_judged(
             }
         }
         for (pi, c) in claims.iter().enumerate() {
-            judged.push(Judged::new(c, &claims, &d.text, &d.id, pred_used[pi]));
+            let right = pred_used[pi] || reads_inside(&words, c, &d.claims);
+            if right || touches_gold(&words, c, &d.claims) {
+                judged.push(Judged::new(c, &claims, &d.text, &d.id, right));
+            }
             if pred_used[pi] {
                 continue;
             }
@@ -381,6 +390,42 @@ pub fn score_spans_judged(
     }
     r.reliability = Reliability::from_judged(&judged);
     (r, errors, judged)
+}
+
+/// Do the cause and effect of `c` lie, word for word, inside the cause and the effect of one gold
+/// claim? Then hearsay read the relation the annotators marked, with shorter spans: event-level
+/// annotation (the Causal News Corpus) marks whole clauses where hearsay takes the noun phrase.
+fn reads_inside(words: &Words, c: &Claim, gold: &[GoldClaim]) -> bool {
+    let within = |x: std::ops::Range<usize>, y: std::ops::Range<usize>| {
+        !x.is_empty() && y.start <= x.start && x.end <= y.end
+    };
+    let cause = words.within(c.cause.start, c.cause.end);
+    let effect = words.within(c.effect.start, c.effect.end);
+    c.kind == Kind::Causal
+        && gold.iter().any(|g| {
+            within(cause.clone(), words.within(g.cause.start, g.cause.end))
+                && within(effect.clone(), words.within(g.effect.start, g.effect.end))
+        })
+}
+
+/// Does a span of `c` share a word with a span of a gold claim in the claim's sentence?
+fn touches_gold(words: &Words, c: &Claim, gold: &[GoldClaim]) -> bool {
+    let (a, b) = (c.source.start, c.source.end);
+    let inside = |g: GoldSpan| g.start < b && a < g.end;
+    let shares = |x: std::ops::Range<usize>, y: std::ops::Range<usize>| {
+        x.start.max(y.start) < x.end.min(y.end)
+    };
+    let mine = [
+        words.within(c.cause.start, c.cause.end),
+        words.within(c.effect.start, c.effect.end),
+    ];
+    gold.iter()
+        .flat_map(|g| [g.cause, g.effect])
+        .filter(|&g| inside(g))
+        .any(|g| {
+            let w = words.within(g.start, g.end);
+            mine.iter().any(|m| shares(m.clone(), w.clone()))
+        })
 }
 
 /// Documents longer than one sentence need the splitter to name an error's sentence.

@@ -3,6 +3,7 @@
 use super::{escape, Format, Global};
 use anyhow::Result;
 use clap::Args;
+use hearsay::confidence::{self, Contribution};
 use hearsay::pipeline;
 use serde::Serialize;
 use std::io::Write;
@@ -11,7 +12,8 @@ use std::process::ExitCode;
 #[derive(Args, Debug)]
 #[command(
     after_help = "The debugging tool for pattern authors: for every cue that matched, the \
-spans chosen, the sign and modality and the reasons; when no claim results, why not. Several \
+spans chosen, the sign and modality, the confidence with the features that weigh most in it, \
+and the reasons; when no claim results, why not. Several \
 sentences may be given in one string; a connective that opens a sentence looks at the one before."
 )]
 pub struct ExplainArgs {
@@ -26,24 +28,38 @@ struct Explained {
     claim: Option<hearsay::Claim>,
     rejected: Option<String>,
     notes: Vec<String>,
+    /// The features behind the claim's confidence, largest effect first.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    confidence_features: Vec<Contribution>,
 }
+
+/// How many features the table output lists under a claim's confidence.
+const TOP_FEATURES: usize = 6;
 
 pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
     let ex = g.extractor()?;
-    let (_, attempts) = pipeline::sentence_attempts(&ex, &a.text);
+    let (claims, attempts) = pipeline::sentence_attempts(&ex, &a.text);
     let rows: Vec<Explained> = attempts
         .into_iter()
         .map(|t| {
-            let (claim, rejected) = match t.result {
+            let (mut claim, rejected) = match t.result {
                 Ok(c) => (Some(c), None),
                 Err(e) => (None, Some(e)),
             };
+            // Attempts are recorded before scoring: score each claim as the pipeline does.
+            let mut confidence_features = Vec::new();
+            if let Some(c) = claim.as_mut() {
+                let (p, why) = confidence::explain(&ex, c, &a.text, &claims);
+                c.confidence = p;
+                confidence_features = why;
+            }
             Explained {
                 cue: t.cue,
                 matched: t.matched,
                 claim,
                 rejected,
                 notes: t.notes,
+                confidence_features,
             }
         })
         .collect();
@@ -105,6 +121,23 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
                 if c.cross_sentence {
                     writeln!(out, "  (a slot was taken from the previous sentence)")?;
                 }
+                let top: Vec<String> = r
+                    .confidence_features
+                    .iter()
+                    .take(TOP_FEATURES)
+                    .map(|f| format!("{} {:+.2}", f.feature, f.weight))
+                    .collect();
+                writeln!(
+                    out,
+                    "  confidence: {:.3}  (bias {:+.2}; largest weights: {})",
+                    c.confidence,
+                    confidence::model().bias,
+                    if top.is_empty() {
+                        "none".to_string()
+                    } else {
+                        escape(&top.join(", "))
+                    }
+                )?;
             }
             (None, Some(why)) => writeln!(out, "  no claim: {}", escape(why))?,
             (None, None) => {}

@@ -1,7 +1,7 @@
 //! `hearsay extract PATH...|-`: claims as JSON Lines on stdout, no store. The map step for
 //! pipelines and clusters: its output is what `merge` (and any reducer) consumes.
 
-use super::{check_paths, Global};
+use super::{check_paths, ClaimFilter, Global};
 use anyhow::Result;
 use clap::Args;
 use hearsay::claims::collapse;
@@ -33,6 +33,9 @@ pub struct ExtractArgs {
     /// that `hearsay merge` can rebuild the search index and co-mention counts.
     #[arg(long)]
     pub sentences: bool,
+    /// Print only the claims that pass these filters (sentence and file records are kept).
+    #[command(flatten)]
+    pub filter: ClaimFilter,
 }
 
 pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
@@ -40,6 +43,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     check_paths(&a.paths)?;
     let ex = g.extractor()?;
     let opts = g.read.options();
+    let filter = a.filter.to_filter();
     let (inputs, skipped) = corpus::discover(&a.paths);
     for s in &skipped {
         if a.paths.iter().any(|p| p == &s.path) {
@@ -54,7 +58,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     for group in inputs.chunks(chunk.max(1)) {
         let results: Vec<Extracted> = group
             .par_iter()
-            .map(|i| one(&ex, &opts, i, a.sentences))
+            .map(|i| one(&ex, &opts, i, a.sentences, &filter))
             .collect();
         for (input, (r, warnings)) in group.iter().zip(results) {
             for w in warnings {
@@ -100,6 +104,7 @@ fn one(
     opts: &corpus::ReadOptions,
     input: &Input,
     with_sentences: bool,
+    filter: &hearsay::graph::Filter,
 ) -> Extracted {
     let mut warnings = Vec::new();
     let r = (|| {
@@ -117,6 +122,9 @@ fn one(
             b += d.text.len();
             docs += 1;
             for c in pipeline::document_claims(ex, &d) {
+                if !filter.accepts_claim(&c) {
+                    continue;
+                }
                 push(&mut text, serde_json::to_string(&c));
                 n += 1;
             }

@@ -57,14 +57,17 @@ fn parse_gold(s: &str) -> Result<(GoldFormat, PathBuf), String> {
     Ok((format, PathBuf::from(p)))
 }
 
+fn format_name(f: GoldFormat) -> String {
+    f.to_possible_value()
+        .map_or_else(String::new, |v| v.get_name().to_string())
+}
+
 pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
     let ex = g.extractor()?;
     let mut judged: Vec<(String, Judged)> = Vec::new();
     let mut sources = Vec::new();
     for (format, path) in &a.gold {
-        let name = format
-            .to_possible_value()
-            .map_or_else(String::new, |v| v.get_name().to_string());
+        let name = format_name(*format);
         let found = match load_gold(*format, path)? {
             Gold::Pairs(items) => eval::score_pairs_judged(&ex, &items).2,
             Gold::Docs(docs) => spaneval::score_spans_judged(&ex, &docs).2,
@@ -73,11 +76,21 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
             || path.display().to_string(),
             |f| f.to_string_lossy().into_owned(),
         );
-        sources.push(format!("{name} {file}: {} judged claims", found.len()));
-        eprintln!("{name} {}: {} judged claims", path.display(), found.len());
+        let right = found.iter().filter(|j| j.correct).count();
+        sources.push(format!(
+            "{name} {file}: {} judged claims, {right} right",
+            found.len()
+        ));
+        eprintln!(
+            "{name} {}: {} judged claims, {right} right",
+            path.display(),
+            found.len()
+        );
         judged.extend(found.into_iter().map(|j| (name.clone(), j)));
     }
     let (mut train, mut dev) = (Vec::new(), Vec::new());
+    // The dataset of each held-out example, for a reliability line per dataset.
+    let mut dev_names: Vec<&str> = Vec::new();
     for (name, j) in &judged {
         let s = confidence::TaggedSentence::new(&j.sentence, j.claim.source.start);
         let features = confidence::features(
@@ -92,6 +105,7 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
         };
         if confidence::is_held_out(&confidence::unit_key(name, &j.unit), a.hold_out) {
             dev.push(e);
+            dev_names.push(name);
         } else {
             train.push(e);
         }
@@ -121,6 +135,19 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
         "patterns/confidence.NOTICE. Data:".to_string(),
     ];
     header.extend(sources.iter().map(|s| format!("  {s}")));
+    let mut per_set = Vec::new();
+    for s in a.gold.iter().map(|(f, _)| format_name(*f)) {
+        if per_set.iter().any(|(n, _)| n == &s) {
+            continue;
+        }
+        let r = Reliability::from_outcomes(
+            dev.iter()
+                .zip(&dev_names)
+                .filter(|(_, n)| **n == s)
+                .map(|(e, _)| (model.probability(&e.features), e.correct)),
+        );
+        per_set.push((s, r));
+    }
     header.push(format!(
         "Options: hold-out 1 in {}, l2 {}, min-count {}. {} training claims, {} held out.",
         a.hold_out,
@@ -133,6 +160,12 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
         "Held out: expected calibration error {:.3}, Brier score {:.3} (constant {:.3}: ECE {:.3}, Brier {:.3}).",
         rel.expected_calibration_error, rel.brier, base, baseline.expected_calibration_error, baseline.brier
     ));
+    for (n, r) in &per_set {
+        header.push(format!(
+            "  held out, {n}: {} claims ({} right), ECE {:.3}, Brier {:.3}.",
+            r.claims, r.correct, r.expected_calibration_error, r.brier
+        ));
+    }
     std::fs::write(&a.out, model.to_toml(&header))
         .with_context(|| format!("cannot write {}", a.out.display()))?;
     let mut err = std::io::stderr().lock();
@@ -149,5 +182,11 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
         "a constant {base:.3} on the same claims: ECE {:.3}, Brier {:.3}",
         baseline.expected_calibration_error, baseline.brier
     );
+    for (n, r) in &per_set {
+        eprintln!(
+            "held out, {n}: {} claims ({} right), ECE {:.3}, Brier {:.3}",
+            r.claims, r.correct, r.expected_calibration_error, r.brier
+        );
+    }
     Ok(ExitCode::SUCCESS)
 }

@@ -167,3 +167,26 @@ pub fn word_string(text: &str) -> String {
         .collect::<Vec<_>>()
         .join(" ")
 }
+
+/// `hearsay --format json eval --gold-format FORMAT --gold GOLD`: the first JSON line (the scores).
+pub fn eval_json(format: &str, gold: &Path) -> serde_json::Value {
+    let out = hearsay()
+        .args([
+            "--format",
+            "json",
+            "eval",
+            "--gold-format",
+            format,
+            "--gold",
+        ])
+        .arg(gold)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let first = out.stdout.split(|&b| b == b'\n').next().unwrap();
+    serde_json::from_slice(first).unwrap()
+}

@@ -14,27 +14,44 @@ fn scanned_demo() -> tempfile::TempDir {
     dir
 }
 
-/// Source: SemEval-2010 Task 8 training split (Hendrickx et al. 2010), CC BY 3.0;
-/// ../shared/data/semeval2010-task8/SOURCE.txt. Only the sentences that `train-confidence`
-/// holds out (the same hash rule, one in five) are scored, so the model has not seen them. The
-/// built-in model must be calibrated there: expected calibration error (10 equal-width bins, the
-/// common definition) under a floor set just above what the shipped model reaches.
+/// The held-out judged claims of one dataset (the same hash rule as `train-confidence`, one
+/// sentence in five), so the model has not seen them.
+fn held_out(name: &str, judged: Vec<eval::Judged>) -> Vec<eval::Judged> {
+    judged
+        .into_iter()
+        .filter(|j| confidence::is_held_out(&confidence::unit_key(name, &j.unit), 5))
+        .collect()
+}
+
+/// Sources: SemEval-2010 Task 8 training split (Hendrickx et al. 2010), CC BY 3.0,
+/// ../shared/data/semeval2010-task8/SOURCE.txt; Causal News Corpus V2 subtask 2 training split
+/// (Tan et al. 2022), CC0, ../shared/data/causal-news-corpus/SOURCE.txt. On the held-out
+/// sentences of both, the built-in model must be calibrated: expected calibration error (10
+/// equal-width bins, the common definition) and Brier score under ceilings set just above what
+/// the shipped model reaches, and better than a constant guess of the base rate on Brier.
 #[test]
-fn confidence_is_calibrated_on_held_out_semeval_sentences() {
-    let Some(gold) = shared_data("semeval2010-task8/TRAIN_FILE.TXT") else {
+fn confidence_is_calibrated_on_held_out_sentences() {
+    let (Some(sem), Some(cnc)) = (
+        shared_data("semeval2010-task8/TRAIN_FILE.TXT"),
+        shared_data("causal-news-corpus/train_subtask2.csv"),
+    ) else {
         return;
     };
-    let items = eval::parse_semeval(&std::fs::read_to_string(gold).unwrap()).unwrap();
     let ex = Extractor::new(&PatternSet::builtin().unwrap()).unwrap();
-    let (_, _, judged) = eval::score_pairs_judged(&ex, &items);
-    let held: Vec<_> = judged
-        .into_iter()
-        .filter(|j| confidence::is_held_out(&confidence::unit_key("semeval2010", &j.unit), 5))
-        .collect();
+    let items = eval::parse_semeval(&std::fs::read_to_string(sem).unwrap()).unwrap();
+    let mut held = held_out("semeval2010", eval::score_pairs_judged(&ex, &items).2);
+    let p = cnc.display().to_string();
+    let docs = hearsay::gold::parse_cnc(&p, &std::fs::read_to_string(&cnc).unwrap()).unwrap();
+    held.extend(held_out(
+        "cnc",
+        hearsay::spaneval::score_spans_judged(&ex, &docs).2,
+    ));
     let r = Reliability::from_judged(&held);
+    let base = r.correct as f64 / r.claims.max(1) as f64;
+    let constant = Reliability::from_outcomes(held.iter().map(|j| (base, j.correct)));
     eprintln!(
-        "SemEval held out: {} claims, ECE {:.3}, Brier {:.3}",
-        r.claims, r.expected_calibration_error, r.brier
+        "held out: {} claims, ECE {:.3}, Brier {:.3} (constant {base:.3}: Brier {:.3})",
+        r.claims, r.expected_calibration_error, r.brier, constant.brier
     );
     assert!(r.claims >= 150, "too few held-out claims: {}", r.claims);
     assert!(
@@ -47,16 +64,71 @@ fn confidence_is_calibrated_on_held_out_semeval_sentences() {
         "Brier {} above {BRIER_CEILING}",
         r.brier
     );
+    assert!(r.brier < constant.brier - 0.05, "{} vs {}", r.brier, constant.brier);
     // Confidence must rank: the claims at or above 0.5 are right more often than those below.
     let hi: Vec<_> = held.iter().filter(|j| j.claim.confidence >= 0.5).collect();
     let lo: Vec<_> = held.iter().filter(|j| j.claim.confidence < 0.5).collect();
     let share =
         |v: &[&eval::Judged]| v.iter().filter(|j| j.correct).count() as f64 / v.len().max(1) as f64;
-    assert!(share(&hi) > share(&lo), "{} vs {}", share(&hi), share(&lo));
+    assert!(share(&hi) > share(&lo) + 0.2, "{} vs {}", share(&hi), share(&lo));
 }
 
-const ECE_CEILING: f64 = 0.08;
-const BRIER_CEILING: f64 = 0.2;
+const ECE_CEILING: f64 = 0.09;
+const BRIER_CEILING: f64 = 0.15;
+
+/// Behaviour guard on invented sentences: a plain signed statement is not scored as almost
+/// surely misread (the old labels made "Drought reduces crop yields." 0.04), and a hedge lowers
+/// the confidence of the same statement.
+#[test]
+fn plain_signed_statements_are_not_crushed() {
+    let conf = |s: &str| -> f64 {
+        let out = hearsay()
+            .args(["--format", "json", "explain", s])
+            .output()
+            .unwrap();
+        assert!(out.status.success());
+        let v: serde_json::Value =
+            serde_json::from_slice(out.stdout.split(|&b| b == b'\n').next().unwrap()).unwrap();
+        assert!(
+            v["confidence_features"].as_array().is_some_and(|a| !a.is_empty()),
+            "{v}"
+        );
+        v["claim"]["confidence"].as_f64().unwrap()
+    };
+    let plain = conf("Drought reduces crop yields.");
+    assert!(plain >= 0.2, "{plain}");
+    let causes = conf("Smoking causes cancer.");
+    let hedged = conf("Smoking may cause cancer.");
+    assert!(causes > 0.5 && hedged < causes, "{causes} {hedged}");
+}
+
+/// Behaviour guard on the invented demo corpus: `extract --min-confidence` prints exactly the
+/// claims of a plain `extract` at or above the threshold.
+#[test]
+fn extract_takes_min_confidence() {
+    let run = |extra: &[&str]| -> Vec<serde_json::Value> {
+        let out = hearsay()
+            .args(["-q", "extract", "corpora-demo"])
+            .args(extra)
+            .output()
+            .unwrap();
+        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        String::from_utf8(out.stdout)
+            .unwrap()
+            .lines()
+            .map(|l| serde_json::from_str(l).unwrap())
+            .collect()
+    };
+    let all = run(&[]);
+    let kept = run(&["--min-confidence", "0.5"]);
+    let expected: Vec<_> = all
+        .iter()
+        .filter(|c| c["confidence"].as_f64().unwrap() as f32 >= 0.5)
+        .cloned()
+        .collect();
+    assert!(!kept.is_empty() && kept.len() < all.len(), "{} of {}", kept.len(), all.len());
+    assert_eq!(kept, expected);
+}
 
 /// `eval` prints the reliability table in both outputs. Source: BECAUSE v2.1
 /// CongressionalHearings (Dunietz et al. 2017), MIT; ../shared/data/because/SOURCE.txt.
@@ -91,9 +163,11 @@ fn eval_reports_reliability_with_ece_and_brier() {
         .iter()
         .map(|b| b["claims"].as_u64().unwrap())
         .sum();
-    // Every predicted claim is judged on span-annotated data, and each lands in one bin.
-    assert_eq!(counted, v["predicted_claims"].as_u64().unwrap());
-    assert_eq!(r["correct"], v["tp"]);
+    // Each judged claim lands in one bin; every matched claim is judged right, and claims that
+    // touch no gold span are not judged.
+    assert_eq!(counted, r["claims"].as_u64().unwrap());
+    assert!(counted <= v["predicted_claims"].as_u64().unwrap());
+    assert!(r["correct"].as_u64().unwrap() >= v["tp"].as_u64().unwrap());
     let table = hearsay()
         .args([
             "--format",

@@ -11,25 +11,7 @@ fn semeval2010_task8_cause_effect_precision_and_recall() {
     let Some(gold) = shared_data("semeval2010-task8/TRAIN_FILE.TXT") else {
         return;
     };
-    let out = hearsay()
-        .args([
-            "--format",
-            "json",
-            "eval",
-            "--gold-format",
-            "semeval2010",
-            "--gold",
-        ])
-        .arg(&gold)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let s: serde_json::Value =
-        serde_json::from_slice(out.stdout.split(|&b| b == b'\n').next().unwrap()).unwrap();
+    let s = eval_json("semeval2010", &gold);
     eprintln!("SemEval-2010 Task 8 train: precision {} recall {} f1 {} (tp {} fp {} fn {}), claims on negatives {}", s["precision"], s["recall"], s["f1"], s["tp"], s["fp"], s["fn_"], s["negative_claim_rate"]);
     assert_eq!(s["items"], 8000);
     assert_eq!(

@@ -4,29 +4,6 @@
 
 use crate::common::*;
 use serde_json::Value;
-use std::path::Path;
-
-fn eval(format: &str, gold: &Path) -> Value {
-    let out = hearsay()
-        .args([
-            "--format",
-            "json",
-            "eval",
-            "--gold-format",
-            format,
-            "--gold",
-        ])
-        .arg(gold)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let first = out.stdout.split(|&b| b == b'\n').next().unwrap();
-    serde_json::from_slice(first).unwrap()
-}
 
 fn f(v: &Value) -> f64 {
     v.as_f64().unwrap()
@@ -40,7 +17,7 @@ fn because_congressional_hearings_precision_recall_and_sign() {
     let Some(gold) = shared_data("because/CongressionalHearings") else {
         return;
     };
-    let r = eval("because", &gold);
+    let r = eval_json("because", &gold);
     eprintln!(
         "BECAUSE CongressionalHearings: precision {:.3} recall {:.3} f1 {:.3} (tp {} fp {} fn {}, gold {}), sign accuracy {:.3} on {} matched",
         f(&r["precision"]), f(&r["recall"]), f(&r["f1"]), r["tp"], r["fp"], r["fn"], r["gold_claims"],
@@ -65,7 +42,7 @@ fn causal_news_corpus_subtask2_claim_level() {
     let Some(gold) = shared_data("causal-news-corpus/train_subtask2.csv") else {
         return;
     };
-    let r = eval("cnc", &gold);
+    let r = eval_json("cnc", &gold);
     eprintln!(
         "CNC subtask 2 train: precision {:.3} recall {:.3} f1 {:.3} (tp {} fp {} fn {})",
         f(&r["precision"]),
@@ -89,7 +66,7 @@ fn causal_news_corpus_subtask1_sentence_level() {
     let Some(gold) = shared_data("causal-news-corpus/train_subtask1.csv") else {
         return;
     };
-    let r = eval("cnc", &gold);
+    let r = eval_json("cnc", &gold);
     let s = &r["sentence_level"];
     eprintln!(
         "CNC subtask 1 train: precision {:.3} recall {:.3} f1 {:.3} accuracy {:.3} ({} sentences, {} causal)",
@@ -106,7 +83,7 @@ fn causal_news_corpus_subtask1_sentence_level() {
 #[test]
 fn modality_on_invented_sentences() {
     let gold = root().join("tests/data/modality.jsonl");
-    let r = eval("jsonl", &gold);
+    let r = eval_json("jsonl", &gold);
     let m = &r["modality_accuracy"];
     eprintln!(
         "modality set (invented): modality accuracy {:.3} on {} matched; claims precision {:.3} recall {:.3}; kind accuracy {:.3}",
