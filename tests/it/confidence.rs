@@ -64,13 +64,23 @@ fn confidence_is_calibrated_on_held_out_sentences() {
         "Brier {} above {BRIER_CEILING}",
         r.brier
     );
-    assert!(r.brier < constant.brier - 0.05, "{} vs {}", r.brier, constant.brier);
+    assert!(
+        r.brier < constant.brier - 0.05,
+        "{} vs {}",
+        r.brier,
+        constant.brier
+    );
     // Confidence must rank: the claims at or above 0.5 are right more often than those below.
     let hi: Vec<_> = held.iter().filter(|j| j.claim.confidence >= 0.5).collect();
     let lo: Vec<_> = held.iter().filter(|j| j.claim.confidence < 0.5).collect();
     let share =
         |v: &[&eval::Judged]| v.iter().filter(|j| j.correct).count() as f64 / v.len().max(1) as f64;
-    assert!(share(&hi) > share(&lo) + 0.2, "{} vs {}", share(&hi), share(&lo));
+    assert!(
+        share(&hi) > share(&lo) + 0.2,
+        "{} vs {}",
+        share(&hi),
+        share(&lo)
+    );
 }
 
 const ECE_CEILING: f64 = 0.09;
@@ -90,7 +100,9 @@ fn plain_signed_statements_are_not_crushed() {
         let v: serde_json::Value =
             serde_json::from_slice(out.stdout.split(|&b| b == b'\n').next().unwrap()).unwrap();
         assert!(
-            v["confidence_features"].as_array().is_some_and(|a| !a.is_empty()),
+            v["confidence_features"]
+                .as_array()
+                .is_some_and(|a| !a.is_empty()),
             "{v}"
         );
         v["claim"]["confidence"].as_f64().unwrap()
@@ -112,7 +124,11 @@ fn extract_takes_min_confidence() {
             .args(extra)
             .output()
             .unwrap();
-        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
         String::from_utf8(out.stdout)
             .unwrap()
             .lines()
@@ -126,7 +142,12 @@ fn extract_takes_min_confidence() {
         .filter(|c| c["confidence"].as_f64().unwrap() as f32 >= 0.5)
         .cloned()
         .collect();
-    assert!(!kept.is_empty() && kept.len() < all.len(), "{} of {}", kept.len(), all.len());
+    assert!(
+        !kept.is_empty() && kept.len() < all.len(),
+        "{} of {}",
+        kept.len(),
+        all.len()
+    );
     assert_eq!(kept, expected);
 }
 
