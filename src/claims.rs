@@ -127,6 +127,17 @@ struct Chosen {
     pronoun: Option<String>,
 }
 
+impl Chosen {
+    /// The token range of this span in the sentence `sent` (document offsets made relative).
+    fn tokens(&self, toks: &[Token], sent: SentenceRef<'_>) -> (usize, usize) {
+        token_range(
+            toks,
+            self.start.saturating_sub(sent.offset),
+            self.end.saturating_sub(sent.offset),
+        )
+    }
+}
+
 /// Pronouns that a slot may consist of and that are resolved to an antecedent.
 const PRONOUNS: &[&str] = &["it", "they", "this", "these"];
 
@@ -345,11 +356,7 @@ impl Extractor {
         effect: &Chosen,
     ) -> bool {
         let range = |c: &Chosen| {
-            let (a, b) = token_range(
-                toks,
-                c.start.saturating_sub(sent.offset),
-                c.end.saturating_sub(sent.offset),
-            );
+            let (a, b) = c.tokens(toks, sent);
             &toks[a..b]
         };
         // The effect clause may start before its chosen span ("The town has grown since ...").
@@ -887,11 +894,7 @@ impl Extractor {
     /// Whether an effect span's head noun is an outcome noun: the last word before any
     /// preposition ("heat in the engine" → "heat"), tagged as a noun when tags are known.
     fn outcome_head(&self, toks: &[Token], sent: SentenceRef<'_>, c: &Chosen) -> bool {
-        let (a, b) = token_range(
-            toks,
-            c.start.saturating_sub(sent.offset),
-            c.end.saturating_sub(sent.offset),
-        );
+        let (a, b) = c.tokens(toks, sent);
         // The head of each phrase between prepositions: "most of the noise" → "most", "noise".
         let mut heads: Vec<&Token> = Vec::new();
         let mut head = None;
@@ -955,8 +958,7 @@ impl Extractor {
         let before = ca.checked_sub(1).map(|i| &toks[i].lower)?;
         // "the germ that causes ulcers": a relative pronoun, not a determiner, before a verb.
         // "This reduced fish numbers.": a demonstrative standing alone is a pronoun.
-        let pronoun = matches!(before.as_str(), "this" | "these")
-            && (ca == 1 || self.clause_boundary(&toks[ca - 2]));
+        let pronoun = self.bare_demonstrative(toks, ca) == Some(ca - 1);
         let relative = (self.lexicon.relatives.contains(before) || pronoun)
             && toks[ca].tag.is_some_and(Tag::is_finite_verb);
         if (self.lexicon.determiners.contains(before) && !relative)
@@ -1196,7 +1198,7 @@ impl Extractor {
             let pronoun_at = match slot {
                 // A slot already taken from the previous sentence is not this sentence's words.
                 Some(c) if c.start >= sent.offset => {
-                    let (a, b) = token_range(toks, c.start - sent.offset, c.end - sent.offset);
+                    let (a, b) = c.tokens(toks, sent);
                     (b == a + 1 && PRONOUNS.contains(&toks[a].lower.as_str())).then_some(a)
                 }
                 Some(_) => None,

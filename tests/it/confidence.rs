@@ -158,24 +158,7 @@ fn eval_reports_reliability_with_ece_and_brier() {
     let Some(gold) = shared_data("because/CongressionalHearings") else {
         return;
     };
-    let out = hearsay()
-        .args([
-            "--format",
-            "json",
-            "eval",
-            "--gold-format",
-            "because",
-            "--gold",
-        ])
-        .arg(&gold)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = eval_json("because", &gold);
     let r = &v["reliability"];
     assert_eq!(r["bins"].as_array().unwrap().len(), 10);
     let counted: u64 = r["bins"]
