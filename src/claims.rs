@@ -38,6 +38,19 @@ fn token_regex() -> &'static Regex {
     })
 }
 
+/// A token's lower-case form with the typographic apostrophe made plain; one allocation.
+fn lower_word(s: &str) -> String {
+    if s.bytes().all(|b| b.is_ascii() && !b.is_ascii_uppercase()) {
+        return s.to_string();
+    }
+    let lower = s.to_lowercase();
+    if lower.contains('’') {
+        lower.replace('’', "'")
+    } else {
+        lower
+    }
+}
+
 /// Split a sentence into tokens.
 pub fn tokenize(sentence: &str) -> Vec<Token> {
     token_regex()
@@ -48,7 +61,7 @@ pub fn tokenize(sentence: &str) -> Vec<Token> {
             Token {
                 start: m.start(),
                 end: m.end(),
-                lower: s.to_lowercase().replace('’', "'"),
+                lower: lower_word(s),
                 word,
                 capital: s.chars().next().is_some_and(char::is_uppercase),
                 tag: None,
@@ -753,7 +766,7 @@ impl Extractor {
         sent: SentenceRef<'_>,
         prev: Option<SentenceRef<'_>>,
         origin: &Origin<'_>,
-        candidates: &[usize],
+        candidates: &[crate::cues::Candidate],
         out: &mut Vec<Claim>,
         mut trace: Option<&mut Vec<Attempt>>,
     ) {
@@ -1513,7 +1526,7 @@ mod tests {
             SentenceRef { text, offset: 0 },
             None,
             &origin,
-            &e.cues.candidates(&hits),
+            &e.cues.candidates(&hits, 0),
             &mut out,
             None,
         );

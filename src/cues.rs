@@ -10,13 +10,20 @@
 use crate::patterns::{CueSpec, PatternSet, PatternToken, Role};
 use aho_corasick::{AhoCorasick, AhoCorasickBuilder, MatchKind};
 use regex::Regex;
+use regex_automata::meta::Regex as MetaRegex;
+use regex_automata::util::captures::Captures;
+use regex_automata::{Anchored, Input};
 use std::collections::BTreeSet;
 
 /// A cue compiled for matching.
 #[derive(Debug)]
 pub struct CompiledCue {
     pub spec: CueSpec,
-    regex: Regex,
+    regex: MetaRegex,
+    /// Where a match starts relative to a prefilter hit of this cue's anchor.
+    start: MatchStart,
+    /// Capture-group names of the inner slots, `s0`, `s1`, …
+    group_names: Vec<String>,
     /// The slot that lies before the first literal, if any.
     pub left: Option<Role>,
     /// The slot that lies after the last literal, if any.
@@ -31,6 +38,19 @@ pub struct CompiledCue {
     pub verb_first: bool,
     /// The cue ends with a glued literal ("-induced"): the slot after it is one word.
     pub glued_last: bool,
+}
+
+/// Where a match of a cue can start, given a prefilter hit of its anchor.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum MatchStart {
+    /// The anchor is the cue's first word: the match starts at the hit, so one anchored search
+    /// there decides it (it fails within a few bytes when the cue does not match).
+    AtHit,
+    /// The anchor is a glued literal with its slot word first ("CAUSE -induced"): the match
+    /// starts at the word right before the hyphen.
+    WordBeforeHit,
+    /// The anchor lies further in: search the whole sentence.
+    Scan,
 }
 
 /// Where a slot of a match lies.
@@ -52,6 +72,13 @@ pub struct CueMatch {
     pub end: usize,
     pub cause: SlotPlace,
     pub effect: SlotPlace,
+}
+
+/// A cue to try in a sentence, at the byte offset of its anchor's prefilter hit there.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub struct Candidate {
+    pub cue: usize,
+    pub pos: usize,
 }
 
 /// A prefilter hit in a document: the byte offset of an anchor literal.
@@ -159,7 +186,7 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
     if required_punct.is_none() {
         re.push_str("\\b");
     }
-    let regex = Regex::new(&re).map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
+    let regex = MetaRegex::new(&re).map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
     let anchor_forms = toks
         .iter()
         .filter_map(|t| match t {
@@ -196,7 +223,19 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
     };
     let verb_first = matches!(&toks[first], PatternToken::Word { verb: true, .. });
     let glued_last = matches!(toks[last], PatternToken::Glued { .. });
+    let anchor_token = toks.iter().position(|t| match t {
+        PatternToken::Word { forms, .. } | PatternToken::Glued { forms } => *forms == anchor_forms,
+        _ => false,
+    });
+    let start = match (anchor_token == Some(first), glued_first) {
+        (true, false) => MatchStart::AtHit,
+        (true, true) => MatchStart::WordBeforeHit,
+        _ => MatchStart::Scan,
+    };
+    let group_names = (0..inner.len()).map(|i| format!("s{i}")).collect();
     Ok(CompiledCue {
+        start,
+        group_names,
         glued_last,
         verb_first,
         reject_after: anchored(&spec.reject_after, true)?,
@@ -208,6 +247,17 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
         inner,
         anchors,
     })
+}
+
+/// The start of the run of letters and digits that ends at byte `pos` (the word a glued literal
+/// such as "-induced" hangs on).
+fn word_start_before(text: &str, pos: usize) -> usize {
+    text[..pos]
+        .char_indices()
+        .rev()
+        .take_while(|(_, c)| c.is_alphanumeric())
+        .last()
+        .map_or(pos, |(i, _)| i)
 }
 
 fn is_word_byte(b: u8) -> bool {
@@ -281,74 +331,53 @@ impl CueSet {
             .collect()
     }
 
-    /// The cues worth trying for a set of hits.
-    pub fn candidates(&self, hits: &[Hit]) -> Vec<usize> {
-        let set: BTreeSet<usize> = hits
+    /// The cues worth trying for a set of hits in a sentence that starts at byte `offset` of the
+    /// text the hits were found in: each cue with the hit's place in the sentence.
+    pub fn candidates(&self, hits: &[Hit], offset: usize) -> Vec<Candidate> {
+        let set: BTreeSet<Candidate> = hits
             .iter()
-            .flat_map(|h| self.anchor_cues[h.anchor].iter().copied())
+            .flat_map(|h| {
+                self.anchor_cues[h.anchor]
+                    .iter()
+                    .map(move |&cue| Candidate {
+                        cue,
+                        pos: h.pos - offset,
+                    })
+            })
             .collect();
         set.into_iter().collect()
     }
 
     /// All cue matches in one sentence, trying only `candidates`. Where two matches overlap, the
     /// longer one wins ("as a result of" over "as a result", "caused by" over "cause").
-    pub fn match_sentence(&self, sentence: &str, candidates: &[usize]) -> Vec<CueMatch> {
+    pub fn match_sentence(&self, sentence: &str, candidates: &[Candidate]) -> Vec<CueMatch> {
         let mut found = Vec::new();
-        for &ci in candidates {
-            let cue = &self.cues[ci];
-            for caps in cue.regex.captures_iter(sentence) {
-                let Some(m) = caps.get(0) else { continue };
-                // "After the cue" means after its first run of literal words: for "since CAUSE ,
-                // EFFECT" that is right after "since".
-                let lit_end = (0..cue.inner.len())
-                    .filter_map(|gi| caps.name(&format!("s{gi}")))
-                    .map(|g| g.start())
-                    .filter(|&s| s > m.start())
-                    .min()
-                    .unwrap_or(m.end());
-                if let Some(r) = &cue.reject_after {
-                    if r.is_match(sentence[lit_end..].trim_start()) {
-                        continue;
+        let mut scanned: Vec<usize> = Vec::new();
+        for c in candidates {
+            let cue = &self.cues[c.cue];
+            let mut caps = cue.regex.create_captures();
+            let at = match cue.start {
+                MatchStart::AtHit => c.pos,
+                MatchStart::WordBeforeHit => word_start_before(sentence, c.pos),
+                MatchStart::Scan => {
+                    if !scanned.contains(&c.cue) {
+                        scanned.push(c.cue);
+                        for caps in cue.regex.captures_iter(sentence) {
+                            self.accept(c.cue, sentence, &caps, &mut found);
+                        }
                     }
+                    continue;
                 }
-                let place = |role: Role| -> SlotPlace {
-                    if cue.left == Some(role) {
-                        return SlotPlace::Before;
-                    }
-                    if cue.right == Some(role) {
-                        return SlotPlace::After;
-                    }
-                    let gi = cue.inner.iter().position(|r| *r == role).unwrap_or(0);
-                    match caps.name(&format!("s{gi}")) {
-                        Some(g) => SlotPlace::Inside(g.start(), g.end()),
-                        None => SlotPlace::Inside(m.start(), m.start()),
-                    }
-                };
-                let (cause, effect) = (place(Role::Cause), place(Role::Effect));
-                // The literal span excludes a glued slot captured at the start.
-                let start = match (cause, effect) {
-                    (SlotPlace::Inside(s, e), _) | (_, SlotPlace::Inside(s, e))
-                        if s == m.start() =>
-                    {
-                        e
-                    }
-                    _ => m.start(),
-                };
-                // Anchored at the cue's own start: for "CAUSE -mediated", right after the glued word.
-                if let Some(r) = &cue.reject_before {
-                    if r.is_match(sentence[..start].trim_end()) {
-                        continue;
-                    }
-                }
-                found.push(CueMatch {
-                    cue: ci,
-                    start,
-                    end: m.end(),
-                    cause,
-                    effect,
-                });
-            }
+            };
+            let input = Input::new(sentence)
+                .span(at..sentence.len())
+                .anchored(Anchored::Yes);
+            cue.regex.search_captures(&input, &mut caps);
+            self.accept(c.cue, sentence, &caps, &mut found);
         }
+        // The same match can be reached from two hits.
+        found.sort_by_key(|m: &CueMatch| (m.start, m.end, m.cue));
+        found.dedup();
         found.sort_by_key(|m| (m.start, std::cmp::Reverse(m.end - m.start), m.cue));
         let mut kept: Vec<CueMatch> = Vec::new();
         // Longest first, then drop anything overlapping a kept match.
@@ -363,10 +392,62 @@ impl CueSet {
         kept
     }
 
+    /// Turn one regex match of cue `ci` into a `CueMatch`, unless a reject rule vetoes it.
+    fn accept(&self, ci: usize, sentence: &str, caps: &Captures, found: &mut Vec<CueMatch>) {
+        let cue = &self.cues[ci];
+        let Some(m) = caps.get_match() else { return };
+        let group = |gi: usize| caps.get_group_by_name(&cue.group_names[gi]);
+        // "After the cue" means after its first run of literal words: for "since CAUSE ,
+        // EFFECT" that is right after "since".
+        let lit_end = (0..cue.inner.len())
+            .filter_map(group)
+            .map(|g| g.start)
+            .filter(|&s| s > m.start())
+            .min()
+            .unwrap_or(m.end());
+        if let Some(r) = &cue.reject_after {
+            if r.is_match(sentence[lit_end..].trim_start()) {
+                return;
+            }
+        }
+        let place = |role: Role| -> SlotPlace {
+            if cue.left == Some(role) {
+                return SlotPlace::Before;
+            }
+            if cue.right == Some(role) {
+                return SlotPlace::After;
+            }
+            let gi = cue.inner.iter().position(|r| *r == role).unwrap_or(0);
+            match group(gi) {
+                Some(g) => SlotPlace::Inside(g.start, g.end),
+                None => SlotPlace::Inside(m.start(), m.start()),
+            }
+        };
+        let (cause, effect) = (place(Role::Cause), place(Role::Effect));
+        // The literal span excludes a glued slot captured at the start.
+        let start = match (cause, effect) {
+            (SlotPlace::Inside(s, e), _) | (_, SlotPlace::Inside(s, e)) if s == m.start() => e,
+            _ => m.start(),
+        };
+        // Anchored at the cue's own start: for "CAUSE -mediated", right after the glued word.
+        if let Some(r) = &cue.reject_before {
+            if r.is_match(sentence[..start].trim_end()) {
+                return;
+            }
+        }
+        found.push(CueMatch {
+            cue: ci,
+            start,
+            end: m.end(),
+            cause,
+            effect,
+        });
+    }
+
     /// All cue matches in a sentence, using the prefilter on the sentence itself.
     pub fn match_all(&self, sentence: &str) -> Vec<CueMatch> {
         let hits = self.hits(sentence);
-        self.match_sentence(sentence, &self.candidates(&hits))
+        self.match_sentence(sentence, &self.candidates(&hits, 0))
     }
 }
 

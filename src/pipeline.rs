@@ -81,7 +81,7 @@ fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&
             if k2 == k {
                 continue;
             }
-            let candidates = ex.cues.candidates(&block_hits[k..k2]);
+            let candidates = ex.cues.candidates(&block_hits[k..k2], s.start);
             let sent = SentenceRef {
                 text: &text[s.start..s.end],
                 offset: s.start,

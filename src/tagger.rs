@@ -95,9 +95,200 @@ pub struct ModelError {
 pub struct Tagger {
     weights: FastMap<String, Vec<(u8, f32)>>,
     dict: FastMap<String, Tag>,
-    /// `weights` keyed by a 64-bit hash of the feature, built on first use: tagging then hashes
-    /// the feature text once and compares integers, not strings.
-    by_hash: OnceLock<FastMap<u64, Vec<(u8, f32)>>>,
+    /// The weights laid out for fast tagging, built on first use.
+    prepared: OnceLock<Prepared>,
+}
+
+/// Number of tags.
+const NT: usize = TAGS.len();
+
+/// The roles a word plays in the features of the words around it, in the order of a word's
+/// score vectors: its own features, then as the word 1 and 2 before and 1 and 2 after.
+const ROLES: usize = 5;
+
+/// The model rearranged for tagging. A perceptron's score is a sum over features, and most
+/// features depend on one word only (its suffixes, its shape, or that it is the previous or
+/// next word): their sums are computed once per word and cached, and the features of the
+/// previous tags are dense tables. Per word position that leaves one hash lookup (`t1w`).
+#[derive(Debug, Clone, Default)]
+struct Prepared {
+    weights: HashedWeights,
+    /// `t1` features, row `p1` (index `NT` is the sentence start).
+    t1: Vec<f32>,
+    /// `t2` features, row `p2 * (NT + 1) + p1`.
+    t2: Vec<f32>,
+    /// `b` plus `first false`, and the difference `first true` minus `first false`.
+    bias: Vec<f32>,
+    first: Vec<f32>,
+    /// Role vectors of the padding outside the sentence: as word 1 and 2 before the first word,
+    /// and 1 and 2 after the last.
+    before1: Vec<f32>,
+    before2: Vec<f32>,
+    after1: Vec<f32>,
+    after2: Vec<f32>,
+}
+
+impl Prepared {
+    fn new(weights: &FastMap<String, Vec<(u8, f32)>>) -> Prepared {
+        let weights = HashedWeights::new(weights);
+        let vec_of = |fs: &[&str]| {
+            let mut v = vec![0f32; NT];
+            for f in fs {
+                add(&mut v, weights.get(f));
+            }
+            v
+        };
+        let tag_name = |i: usize, start: &'static str| if i < NT { TAGS[i] } else { start };
+        let mut t1 = Vec::with_capacity((NT + 1) * NT);
+        for p1 in 0..=NT {
+            t1.extend(vec_of(&[&format!("t1 {}", tag_name(p1, START[0]))]));
+        }
+        let mut t2 = Vec::with_capacity((NT + 1) * (NT + 1) * NT);
+        for p2 in 0..=NT {
+            for p1 in 0..=NT {
+                let f = format!("t2 {} {}", tag_name(p2, START[1]), tag_name(p1, START[0]));
+                t2.extend(vec_of(&[&f]));
+            }
+        }
+        let bias = vec_of(&["b", "first false"]);
+        let first_true = vec_of(&["first true"]);
+        let first_false = vec_of(&["first false"]);
+        let first = first_true
+            .iter()
+            .zip(&first_false)
+            .map(|(a, b)| a - b)
+            .collect();
+        let before1 = vec_of(&[
+            &format!("w-1 {}", START[0]),
+            &format!("s3-1 {}", suffix(START[0], 3)),
+        ]);
+        let before2 = vec_of(&[&format!("w-2 {}", START[1])]);
+        let after1 = vec_of(&["w+1 -END-", &format!("s3+1 {}", suffix("-END-", 3))]);
+        let after2 = vec_of(&["w+2 -END2-"]);
+        Prepared {
+            weights,
+            t1,
+            t2,
+            bias,
+            first,
+            before1,
+            before2,
+            after1,
+            after2,
+        }
+    }
+
+    /// The role vectors of one word (see `ROLES`), written into `out`.
+    fn word_vectors(&self, raw: &str, buf: &mut String, out: &mut [f32]) {
+        out.iter_mut().for_each(|x| *x = 0.0);
+        let lw = norm(raw);
+        let w = lw.as_str();
+        let first = raw.chars().next().map_or("", |c| &raw[..c.len_utf8()]);
+        let mut sh = String::new();
+        shape_into(raw, &mut sh);
+        let (own, rest) = out.split_at_mut(NT);
+        let (b1, rest) = rest.split_at_mut(NT);
+        let (b2, rest) = rest.split_at_mut(NT);
+        let (a1, a2) = rest.split_at_mut(NT);
+        let mut feat = |v: &mut [f32], parts: &[&str]| {
+            buf.clear();
+            for p in parts {
+                buf.push_str(p);
+            }
+            add(v, self.weights.get(buf));
+        };
+        feat(own, &["w ", w]);
+        feat(own, &["s1 ", suffix(w, 1)]);
+        feat(own, &["s2 ", suffix(w, 2)]);
+        feat(own, &["s3 ", suffix(w, 3)]);
+        feat(own, &["s4 ", suffix(w, 4)]);
+        feat(own, &["p1 ", first]);
+        feat(own, &["sh ", &sh]);
+        // This word as the previous word of the one after it, and so on.
+        feat(b1, &["w-1 ", w]);
+        feat(b1, &["s3-1 ", suffix(w, 3)]);
+        feat(b2, &["w-2 ", w]);
+        feat(a1, &["w+1 ", w]);
+        feat(a1, &["s3+1 ", suffix(w, 3)]);
+        feat(a2, &["w+2 ", w]);
+    }
+}
+
+fn add(v: &mut [f32], ws: &[(u8, f32)]) {
+    for &(c, w) in ws {
+        v[c as usize] += w;
+    }
+}
+
+/// Per thread, the role vectors of recently seen words, for one tagger at a time. Bounded: when
+/// full it starts over, which keeps memory flat (4096 words × 5 roles × 50 tags × 4 bytes = 4 MB).
+#[derive(Default)]
+struct WordCache {
+    owner: usize,
+    /// Raw word → its slot.
+    index: FastMap<String, u32>,
+    /// Per slot: the normalised word, and its tag when the tag dictionary answers it.
+    words: Vec<(String, Option<Tag>)>,
+    /// Per slot, `ROLES * NT` scores.
+    vectors: Vec<f32>,
+}
+
+const WORD_CACHE_WORDS: usize = 16384;
+
+impl WordCache {
+    /// This word's slot, computing its role vectors if needed.
+    fn slot(&mut self, t: &Tagger, p: &Prepared, raw: &str, buf: &mut String) -> usize {
+        if let Some(&i) = self.index.get(raw) {
+            return i as usize;
+        }
+        if self.index.len() >= WORD_CACHE_WORDS {
+            self.clear();
+        }
+        let i = self.index.len();
+        self.vectors.resize((i + 1) * ROLES * NT, 0.0);
+        p.word_vectors(raw, buf, &mut self.vectors[i * ROLES * NT..]);
+        let lw = norm(raw);
+        let known = t.dict.get(&lw).copied();
+        self.words.push((lw, known));
+        self.index.insert(raw.to_string(), i as u32);
+        i
+    }
+
+    fn clear(&mut self) {
+        self.index.clear();
+        self.words.clear();
+        self.vectors.clear();
+    }
+}
+
+/// The weights laid out for tagging: one flat array of `(class, weight)` pairs, and per feature
+/// hash the range of its pairs. One allocation instead of one per feature keeps lookups close
+/// together in memory.
+#[derive(Debug, Clone, Default)]
+struct HashedWeights {
+    ranges: FastMap<u64, (u32, u32)>,
+    pairs: Vec<(u8, f32)>,
+}
+
+impl HashedWeights {
+    fn new(weights: &FastMap<String, Vec<(u8, f32)>>) -> HashedWeights {
+        let mut out = HashedWeights::default();
+        out.ranges.reserve(weights.len());
+        for (f, ws) in weights {
+            let start = out.pairs.len() as u32;
+            out.pairs.extend_from_slice(ws);
+            out.ranges
+                .insert(feature_hash(f), (start, out.pairs.len() as u32));
+        }
+        out
+    }
+
+    fn get(&self, feature: &str) -> &[(u8, f32)] {
+        match self.ranges.get(&feature_hash(feature)) {
+            Some(&(a, b)) => &self.pairs[a as usize..b as usize],
+            None => &[],
+        }
+    }
 }
 
 fn feature_hash(f: &str) -> u64 {
@@ -109,8 +300,8 @@ fn feature_hash(f: &str) -> u64 {
 
 const START: [&str; 2] = ["-START-", "-START2-"];
 
-fn shape(w: &str) -> String {
-    let mut s = String::new();
+/// The word's shape ("Xxxx", "dd-x"): character classes with repeats collapsed, at most 7.
+fn shape_into(w: &str, s: &mut String) {
     for c in w.chars() {
         let k = if c.is_uppercase() {
             'X'
@@ -128,7 +319,6 @@ fn shape(w: &str) -> String {
             break;
         }
     }
-    s
 }
 
 fn suffix(w: &str, n: usize) -> &str {
@@ -161,7 +351,6 @@ fn visit_features(
     buf: &mut String,
     mut f: impl FnMut(&str),
 ) {
-    use std::fmt::Write as _;
     let w = lowered[i].as_str();
     let raw = words[i];
     let prev = if i > 0 {
@@ -176,34 +365,36 @@ fn visit_features(
     };
     let next = lowered.get(i + 1).map_or("-END-", String::as_str);
     let next2 = lowered.get(i + 2).map_or("-END2-", String::as_str);
-    let first = raw.chars().next();
-    let mut emit = |args: std::fmt::Arguments<'_>| {
+    let first = raw.chars().next().map_or("", |c| &raw[..c.len_utf8()]);
+    let mut sh = String::new();
+    shape_into(raw, &mut sh);
+    // Each feature is its parts concatenated; `push_str` into the reused buffer is much cheaper
+    // than formatting machinery on this hot path.
+    let mut emit = |parts: &[&str]| {
         buf.clear();
-        // Writing into a String cannot fail.
-        let _ = buf.write_fmt(args);
+        for p in parts {
+            buf.push_str(p);
+        }
         f(buf);
     };
-    emit(format_args!("b"));
-    emit(format_args!("w {w}"));
-    emit(format_args!("s1 {}", suffix(w, 1)));
-    emit(format_args!("s2 {}", suffix(w, 2)));
-    emit(format_args!("s3 {}", suffix(w, 3)));
-    emit(format_args!("s4 {}", suffix(w, 4)));
-    match first {
-        Some(c) => emit(format_args!("p1 {c}")),
-        None => emit(format_args!("p1 ")),
-    }
-    emit(format_args!("sh {}", shape(raw)));
-    emit(format_args!("t1 {p1}"));
-    emit(format_args!("t2 {p2} {p1}"));
-    emit(format_args!("t1w {p1} {w}"));
-    emit(format_args!("w-1 {prev}"));
-    emit(format_args!("w-2 {prev2}"));
-    emit(format_args!("s3-1 {}", suffix(prev, 3)));
-    emit(format_args!("w+1 {next}"));
-    emit(format_args!("s3+1 {}", suffix(next, 3)));
-    emit(format_args!("w+2 {next2}"));
-    emit(format_args!("first {}", i == 0));
+    emit(&["b"]);
+    emit(&["w ", w]);
+    emit(&["s1 ", suffix(w, 1)]);
+    emit(&["s2 ", suffix(w, 2)]);
+    emit(&["s3 ", suffix(w, 3)]);
+    emit(&["s4 ", suffix(w, 4)]);
+    emit(&["p1 ", first]);
+    emit(&["sh ", &sh]);
+    emit(&["t1 ", p1]);
+    emit(&["t2 ", p2, " ", p1]);
+    emit(&["t1w ", p1, " ", w]);
+    emit(&["w-1 ", prev]);
+    emit(&["w-2 ", prev2]);
+    emit(&["s3-1 ", suffix(prev, 3)]);
+    emit(&["w+1 ", next]);
+    emit(&["s3+1 ", suffix(next, 3)]);
+    emit(&["w+2 ", next2]);
+    emit(&["first ", if i == 0 { "true" } else { "false" }]);
 }
 
 /// The features of word `i` as owned strings (training).
@@ -231,16 +422,21 @@ impl Tagger {
     /// sentence with a claim, tag it once.
     pub fn tag(&self, words: &[&str]) -> Vec<Tag> {
         thread_local! {
-            static LAST: std::cell::RefCell<(Vec<String>, Vec<Tag>)> =
+            static LAST: std::cell::RefCell<(Vec<u8>, Vec<Tag>)> =
                 const { std::cell::RefCell::new((Vec::new(), Vec::new())) };
         }
         if !std::ptr::eq(self, Tagger::load_builtin()) {
             return self.tag_uncached(words);
         }
+        // The sentence's words, each after its length: one buffer to compare, unambiguously.
+        let mut key = Vec::with_capacity(words.iter().map(|w| w.len() + 4).sum());
+        for w in words {
+            key.extend_from_slice(&(w.len() as u32).to_le_bytes());
+            key.extend_from_slice(w.as_bytes());
+        }
         let hit = LAST.with(|l| {
             let l = l.borrow();
-            (l.0.len() == words.len() && l.0.iter().zip(words).all(|(a, b)| a == b))
-                .then(|| l.1.clone())
+            (l.0 == key).then(|| l.1.clone())
         });
         if let Some(tags) = hit {
             return tags;
@@ -248,39 +444,90 @@ impl Tagger {
         let tags = self.tag_uncached(words);
         LAST.with(|l| {
             let mut l = l.borrow_mut();
-            l.0.clear();
-            l.0.extend(words.iter().map(|w| w.to_string()));
+            l.0 = key;
             l.1.clone_from(&tags);
         });
         tags
     }
 
     fn tag_uncached(&self, words: &[&str]) -> Vec<Tag> {
-        let lowered: Vec<String> = words.iter().map(|w| norm(w)).collect();
-        let mut out: Vec<Tag> = Vec::with_capacity(words.len());
-        let mut scores = vec![0f32; TAGS.len()];
+        thread_local! {
+            static CACHE: std::cell::RefCell<WordCache> = std::cell::RefCell::new(WordCache::default());
+        }
+        let p = self.prepared.get_or_init(|| Prepared::new(&self.weights));
+        CACHE.with(|c| {
+            let mut cache = c.borrow_mut();
+            let me = self as *const Tagger as usize;
+            if cache.owner != me {
+                *cache = WordCache {
+                    owner: me,
+                    ..WordCache::default()
+                };
+            }
+            self.tag_with(p, &mut cache, words)
+        })
+    }
+
+    fn tag_with(&self, p: &Prepared, cache: &mut WordCache, words: &[&str]) -> Vec<Tag> {
+        let n = words.len();
         let mut buf = String::with_capacity(64);
-        let weights = self.by_hash.get_or_init(|| {
-            self.weights
-                .iter()
-                .map(|(f, ws)| (feature_hash(f), ws.clone()))
-                .collect()
-        });
-        for i in 0..words.len() {
-            if let Some(&t) = self.dict.get(&lowered[i]) {
-                out.push(t);
+        // Slots are gathered before scoring, so the cache must not start over midway: it
+        // starts over first if the sentence might not fit. A sentence too long for that gets
+        // a cache of its own.
+        let mut own = WordCache::default();
+        let cache = if n <= WORD_CACHE_WORDS / 2 {
+            if cache.index.len() + n > WORD_CACHE_WORDS {
+                cache.clear();
+            }
+            cache
+        } else {
+            &mut own
+        };
+        let slots: Vec<usize> = words
+            .iter()
+            .map(|w| cache.slot(self, p, w, &mut buf))
+            .collect();
+        let vectors = &cache.vectors;
+        let role = |i: usize, r: usize| {
+            let at = slots[i] * ROLES * NT + r * NT;
+            &vectors[at..at + NT]
+        };
+        let mut out: Vec<Tag> = Vec::with_capacity(n);
+        let mut scores = [0f32; NT];
+        for i in 0..n {
+            let (lw, known) = &cache.words[slots[i]];
+            if let Some(t) = known {
+                out.push(*t);
                 continue;
             }
-            let p1 = if i > 0 { out[i - 1].as_str() } else { START[0] };
-            let p2 = if i > 1 { out[i - 2].as_str() } else { START[1] };
-            scores.iter_mut().for_each(|s| *s = 0.0);
-            visit_features(words, &lowered, i, (p1, p2), &mut buf, |f| {
-                if let Some(ws) = weights.get(&feature_hash(f)) {
-                    for &(c, w) in ws {
-                        scores[c as usize] += w;
-                    }
+            let t1 = if i > 0 { out[i - 1].0 as usize } else { NT };
+            let t2 = if i > 1 { out[i - 2].0 as usize } else { NT };
+            scores.copy_from_slice(&p.bias);
+            let parts: [&[f32]; 7] = [
+                role(i, 0),
+                if i > 0 { role(i - 1, 1) } else { &p.before1 },
+                if i > 1 { role(i - 2, 2) } else { &p.before2 },
+                if i + 1 < n { role(i + 1, 3) } else { &p.after1 },
+                if i + 2 < n { role(i + 2, 4) } else { &p.after2 },
+                &p.t1[t1 * NT..(t1 + 1) * NT],
+                &p.t2[(t2 * (NT + 1) + t1) * NT..(t2 * (NT + 1) + t1 + 1) * NT],
+            ];
+            for part in parts {
+                for (s, x) in scores.iter_mut().zip(part) {
+                    *s += x;
                 }
-            });
+            }
+            if i == 0 {
+                for (s, x) in scores.iter_mut().zip(&p.first) {
+                    *s += x;
+                }
+            }
+            buf.clear();
+            buf.push_str("t1w ");
+            buf.push_str(if i > 0 { out[i - 1].as_str() } else { START[0] });
+            buf.push(' ');
+            buf.push_str(lw);
+            add(&mut scores, p.weights.get(&buf));
             out.push(Tag(argmax(&scores)));
         }
         out
@@ -564,13 +811,77 @@ pub fn train(
     Tagger {
         weights,
         dict,
-        by_hash: OnceLock::new(),
+        prepared: OnceLock::new(),
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Tagging straight from the feature strings, as training sees them.
+    fn tag_reference(t: &Tagger, words: &[&str]) -> Vec<Tag> {
+        let lowered: Vec<String> = words.iter().map(|w| norm(w)).collect();
+        let mut out: Vec<Tag> = Vec::new();
+        let mut buf = String::new();
+        for i in 0..words.len() {
+            if let Some(&tag) = t.dict.get(&lowered[i]) {
+                out.push(tag);
+                continue;
+            }
+            let p1 = if i > 0 { out[i - 1].as_str() } else { START[0] };
+            let p2 = if i > 1 { out[i - 2].as_str() } else { START[1] };
+            let mut scores = vec![0f32; NT];
+            visit_features(words, &lowered, i, (p1, p2), &mut buf, |f| {
+                if let Some(ws) = t.weights.get(f) {
+                    add(&mut scores, ws);
+                }
+            });
+            out.push(Tag(argmax(&scores)));
+        }
+        out
+    }
+
+    /// The fast path (cached word vectors, dense tag tables) gives the tags the features give,
+    /// on real treebank sentences (UD English-EWT dev, see ../shared/data/pos-treebank/SOURCE),
+    /// also when the word cache starts over and for a sentence too long for the cache.
+    #[test]
+    fn fast_tagging_agrees_with_the_feature_strings() {
+        let t = Tagger::load_builtin();
+        let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../shared/data/pos-treebank/ud-english-ewt/en_ewt-ud-dev.conllu");
+        let mut sentences: Vec<Vec<String>> = std::fs::read_to_string(path)
+            .map(|text| read_conllu(&text))
+            .unwrap_or_default()
+            .into_iter()
+            .take(1500)
+            .map(|s| s.into_iter().map(|(w, _)| w).collect())
+            .collect();
+        sentences.push(
+            "Heavy rains in 2019 raised the river's levels by 3.5 m , flooding 12 villages ."
+                .split(' ')
+                .map(String::from)
+                .collect(),
+        );
+        let mut total = 0;
+        let mut same = 0;
+        for s in &sentences {
+            let words: Vec<&str> = s.iter().map(String::as_str).collect();
+            let fast = t.tag_uncached(&words);
+            let slow = tag_reference(t, &words);
+            total += words.len();
+            same += fast.iter().zip(&slow).filter(|(a, b)| a == b).count();
+        }
+        // Sums in another order may break an exact tie differently; nothing more.
+        assert!(total > 0);
+        assert!(
+            same as f64 >= total as f64 * 0.9999,
+            "{same} of {total} tags agree"
+        );
+        let long: Vec<String> = (0..5000).map(|i| format!("word{i}")).collect();
+        let words: Vec<&str> = long.iter().map(String::as_str).collect();
+        assert_eq!(t.tag_uncached(&words), tag_reference(t, &words));
+    }
 
     /// The feature strings are the model's keys: a change here silently changes every tag.
     #[test]
