@@ -40,6 +40,9 @@ pub struct CompiledCue {
     pub glued_last: bool,
 }
 
+/// Bytes of lazy-DFA cache per cue regex and thread.
+const CUE_DFA_CACHE: usize = 64 * 1024;
+
 /// Where a match of a cue can start, given a prefilter hit of its anchor.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum MatchStart {
@@ -186,7 +189,12 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
     if required_punct.is_none() {
         re.push_str("\\b");
     }
-    let regex = MetaRegex::new(&re).map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
+    // Hundreds of cue regexes each keep a lazy-DFA cache per thread; a small one is plenty for a
+    // pattern tried at a few places per sentence, and keeps memory flat.
+    let regex = MetaRegex::builder()
+        .configure(MetaRegex::config().hybrid_cache_capacity(CUE_DFA_CACHE))
+        .build(&re)
+        .map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
     let anchor_forms = toks
         .iter()
         .filter_map(|t| match t {

@@ -93,6 +93,7 @@ pub struct ModelError {
 /// A trained tagger.
 #[derive(Debug, Clone, Default)]
 pub struct Tagger {
+    /// Feature weights by name, as training produces them (empty for a loaded model).
     weights: FastMap<String, Vec<(u8, f32)>>,
     dict: FastMap<String, Tag>,
     /// The weights laid out for fast tagging, built on first use.
@@ -130,7 +131,10 @@ struct Prepared {
 
 impl Prepared {
     fn new(weights: &FastMap<String, Vec<(u8, f32)>>) -> Prepared {
-        let weights = HashedWeights::new(weights);
+        Prepared::from_hashed(HashedWeights::new(weights))
+    }
+
+    fn from_hashed(weights: HashedWeights) -> Prepared {
         let vec_of = |fs: &[&str]| {
             let mut v = vec![0f32; NT];
             for f in fs {
@@ -221,7 +225,7 @@ fn add(v: &mut [f32], ws: &[(u8, f32)]) {
 }
 
 /// Per thread, the role vectors of recently seen words, for one tagger at a time. Bounded: when
-/// full it starts over, which keeps memory flat (4096 words × 5 roles × 50 tags × 4 bytes = 4 MB).
+/// full it starts over, which keeps memory flat (8192 words × 5 roles × 50 tags × 4 bytes = 8 MB).
 #[derive(Default)]
 struct WordCache {
     owner: usize,
@@ -233,7 +237,7 @@ struct WordCache {
     vectors: Vec<f32>,
 }
 
-const WORD_CACHE_WORDS: usize = 16384;
+const WORD_CACHE_WORDS: usize = 8192;
 
 impl WordCache {
     /// This word's slot, computing its role vectors if needed.
@@ -454,7 +458,7 @@ impl Tagger {
         thread_local! {
             static CACHE: std::cell::RefCell<WordCache> = std::cell::RefCell::new(WordCache::default());
         }
-        let p = self.prepared.get_or_init(|| Prepared::new(&self.weights));
+        let p = self.prepared();
         CACHE.with(|c| {
             let mut cache = c.borrow_mut();
             let me = self as *const Tagger as usize;
@@ -533,7 +537,12 @@ impl Tagger {
         out
     }
 
-    /// Parse a model file.
+    fn prepared(&self) -> &Prepared {
+        self.prepared.get_or_init(|| Prepared::new(&self.weights))
+    }
+
+    /// Parse a model file. The result tags; it keeps no feature names, so only a tagger fresh
+    /// from `train` can be written out again with `to_model`.
     pub fn from_model(text: &str) -> Result<Tagger, ModelError> {
         let err = |line: usize, m: &str| ModelError {
             line,
@@ -545,6 +554,8 @@ impl Tagger {
             _ => return Err(err(1, "not a hearsay tagger model")),
         }
         let mut t = Tagger::default();
+        // Straight into the tagging layout: the feature names are not kept.
+        let mut hashed = HashedWeights::default();
         let mut file_tags: Vec<Tag> = Vec::new();
         for (n, line) in lines {
             let mut parts = line.split('\t');
@@ -563,7 +574,7 @@ impl Tagger {
                 }
                 Some("f") => {
                     let feat = parts.next().ok_or_else(|| err(n + 1, "missing feature"))?;
-                    let mut ws = Vec::new();
+                    let start = hashed.pairs.len() as u32;
                     for p in parts {
                         let (c, w) = p.split_once(':').ok_or_else(|| err(n + 1, "bad weight"))?;
                         let c: usize = c.parse().map_err(|_| err(n + 1, "bad class"))?;
@@ -571,14 +582,17 @@ impl Tagger {
                         let tag = file_tags
                             .get(c)
                             .ok_or_else(|| err(n + 1, "class out of range"))?;
-                        ws.push((tag.0, w as f32 / 100.0));
+                        hashed.pairs.push((tag.0, w as f32 / 100.0));
                     }
-                    t.weights.insert(feat.to_string(), ws);
+                    hashed
+                        .ranges
+                        .insert(feature_hash(feat), (start, hashed.pairs.len() as u32));
                 }
                 Some("") | None => {}
                 Some(_) => return Err(err(n + 1, "unknown line kind")),
             }
         }
+        t.prepared = OnceLock::from(Prepared::from_hashed(hashed));
         Ok(t)
     }
 
@@ -833,9 +847,7 @@ mod tests {
             let p2 = if i > 1 { out[i - 2].as_str() } else { START[1] };
             let mut scores = vec![0f32; NT];
             visit_features(words, &lowered, i, (p1, p2), &mut buf, |f| {
-                if let Some(ws) = t.weights.get(f) {
-                    add(&mut scores, ws);
-                }
+                add(&mut scores, t.prepared().weights.get(f));
             });
             out.push(Tag(argmax(&scores)));
         }
