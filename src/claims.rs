@@ -298,17 +298,36 @@ impl Extractor {
             && toks
                 .get(from)
                 .is_some_and(|t| t.tag.is_some_and(Tag::is_noun));
-        while i > 0
-            && !blocked[i - 1]
-            && toks[i - 1].word
-            && (self.verb_group.contains(&toks[i - 1].lower)
-                || self.adverb(&toks[i - 1].lower)
-                || (noun_cue
-                    && toks[i - 1]
-                        .tag
-                        .is_some_and(|g| g.is_adjective() || g.as_str().starts_with("RB"))))
-        {
-            i -= 1;
+        let parenthetical = |k: usize| {
+            toks[k].word && !blocked[k] && self.lexicon.parenthetical.contains(&toks[k].lower)
+        };
+        loop {
+            if i == 0 || blocked[i - 1] {
+                break;
+            }
+            let t = &toks[i - 1];
+            if t.word
+                && (self.verb_group.contains(&t.lower)
+                    || self.adverb(&t.lower)
+                    || (noun_cue
+                        && t.tag
+                            .is_some_and(|g| g.is_adjective() || g.as_str().starts_with("RB"))))
+            {
+                i -= 1;
+                continue;
+            }
+            // "the tardiness however has been caused", "the increase, though, caused".
+            let skip = if parenthetical(i - 1) {
+                1
+            } else if t.lower == "," && i >= 2 && parenthetical(i - 2) {
+                2
+            } else {
+                break;
+            };
+            i -= skip;
+            if i > 0 && toks[i - 1].lower == "," {
+                i -= 1;
+            }
         }
         if i < from {
             notes.push(format!(
@@ -516,7 +535,7 @@ impl Extractor {
             && !(self.np_boundary(&toks[j])
                 && !(j == start && self.single_negators.contains(&toks[j].lower)))
             && !self.lexicon.prepositions.contains(&toks[j].lower)
-            && !(j > start && toks[j].tag.is_some_and(Tag::is_finite_verb))
+            && !(j > start && toks[j].tag.is_some_and(Tag::is_finite_verb) && !self.np_inside(toks, j))
         {
             j += 1;
         }
@@ -525,6 +544,17 @@ impl Extractor {
             span.to = to;
         }
         span
+    }
+
+    /// A word tagged as a finite verb that cannot be one: right after a determiner or a
+    /// possessive ("the indicated situation", "the vaccine's live virus") it modifies a noun.
+    fn np_inside(&self, toks: &[Token], j: usize) -> bool {
+        j > 0 && {
+            let p = &toks[j - 1];
+            self.lexicon.determiners.contains(&p.lower)
+                || p.tag.is_some_and(|g| matches!(g.as_str(), "DT" | "PRP$" | "POS"))
+                || (p.word && p.lower.ends_with("'s"))
+        }
     }
 
     /// "damage to the sea wall": a prepositional phrase that belongs to the noun phrase ending

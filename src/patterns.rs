@@ -118,6 +118,9 @@ pub struct Lexicon {
     pub max_words: usize,
     pub fillers: HashSet<String>,
     pub not_adverbs: HashSet<String>,
+    /// Sentence adverbs that may stand, alone or between commas, between a subject and its
+    /// verb ("the increase, though, caused").
+    pub parenthetical: HashSet<String>,
     pub hedges: Vec<Vec<String>>,
     pub negators: Vec<Vec<String>>,
     pub conditionals: Vec<Vec<String>>,
@@ -615,6 +618,8 @@ struct RawVerbGroup {
     fillers: Vec<String>,
     #[serde(default)]
     not_adverbs: Vec<String>,
+    #[serde(default)]
+    parenthetical: Vec<String>,
 }
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -677,6 +682,7 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
         max_words: raw.span.max_words,
         fillers: set(raw.verb_group.fillers),
         not_adverbs: set(raw.verb_group.not_adverbs),
+        parenthetical: set(raw.verb_group.parenthetical),
         hedges: phrases(raw.modality.hedges),
         negators: phrases(raw.modality.negators),
         conditionals: phrases(raw.modality.conditionals),

@@ -19,6 +19,10 @@ sentences may be given in one string; a connective that opens a sentence looks a
 pub struct ExplainArgs {
     /// The text to explain (one or more sentences).
     pub text: String,
+    /// Also print the part-of-speech tag (Penn Treebank) the span finder sees for each word of
+    /// each sentence, as `word/TAG`.
+    #[arg(long)]
+    pub tags: bool,
 }
 
 #[derive(Serialize)]
@@ -64,6 +68,21 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
         })
         .collect();
     let mut out = std::io::stdout().lock();
+    if a.tags {
+        for s in hearsay::sentences::split(&a.text) {
+            let sentence = &a.text[s.start..s.end];
+            let mut toks = hearsay::claims::tokenize(sentence);
+            ex.tag_tokens(sentence, &mut toks);
+            let tagged: Vec<String> = toks
+                .iter()
+                .map(|t| {
+                    let tag = t.tag.map_or("?", |t| t.as_str());
+                    format!("{}/{tag}", &sentence[t.start..t.end])
+                })
+                .collect();
+            writeln!(out, "tags: {}", escape(&tagged.join(" ")))?;
+        }
+    }
     if g.format() == Format::Json {
         for r in &rows {
             serde_json::to_writer(&mut out, r)?;
