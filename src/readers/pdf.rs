@@ -593,6 +593,115 @@ mod tests {
         assert_eq!(clean_pages(&pages, true).0, "The field flows.");
     }
 
+    /// A one-page PDF whose page and whose figure (a form XObject) each call a different
+    /// font `/F1`: the figure's has an encoding that spells codes `x y z` as "a i n".
+    fn pdf_with_a_form_reusing_a_font_name() -> Vec<u8> {
+        use pdf_extract::{Dictionary, Document, Object, Stream};
+        let name = |n: &str| Object::Name(n.as_bytes().to_vec());
+        let dict = |pairs: Vec<(&str, Object)>| {
+            let mut d = Dictionary::new();
+            for (k, v) in pairs {
+                d.set(k, v);
+            }
+            d
+        };
+        let mut doc = Document::with_version("1.5");
+        let helvetica = |extra: Vec<(&str, Object)>| {
+            let mut pairs = vec![
+                ("Type", name("Font")),
+                ("Subtype", name("Type1")),
+                ("BaseFont", name("Helvetica")),
+            ];
+            pairs.extend(extra);
+            Object::Dictionary(dict(pairs))
+        };
+        let page_font = doc.add_object(helvetica(vec![("Encoding", name("WinAnsiEncoding"))]));
+        let differences = Object::Array(vec![
+            Object::Integer(120),
+            name("a"),
+            name("i"),
+            name("n"),
+        ]);
+        let form_font = doc.add_object(helvetica(vec![(
+            "Encoding",
+            Object::Dictionary(dict(vec![
+                ("BaseEncoding", name("WinAnsiEncoding")),
+                ("Differences", differences),
+            ])),
+        )]));
+        let fonts = |f| Object::Dictionary(dict(vec![("F1", Object::Reference(f))]));
+        let box_ = || {
+            Object::Array(
+                [0, 0, 612, 792]
+                    .into_iter()
+                    .map(Object::Integer)
+                    .collect(),
+            )
+        };
+        let form = doc.add_object(Stream::new(
+            dict(vec![
+                ("Type", name("XObject")),
+                ("Subtype", name("Form")),
+                ("BBox", box_()),
+                (
+                    "Resources",
+                    Object::Dictionary(dict(vec![("Font", fonts(form_font))])),
+                ),
+            ]),
+            b"BT /F1 12 Tf 72 600 Td (Wyzd) Tj ET".to_vec(),
+        ));
+        let content = doc.add_object(Stream::new(
+            Dictionary::new(),
+            b"BT /F1 12 Tf 72 700 Td (Rain xyz) Tj ET /Fm0 Do BT /F1 12 Tf 72 500 Td (Sun xyz) Tj ET"
+                .to_vec(),
+        ));
+        let pages = doc.new_object_id();
+        let page = doc.add_object(dict(vec![
+            ("Type", name("Page")),
+            ("Parent", Object::Reference(pages)),
+            ("MediaBox", box_()),
+            ("Contents", Object::Reference(content)),
+            (
+                "Resources",
+                Object::Dictionary(dict(vec![
+                    ("Font", fonts(page_font)),
+                    (
+                        "XObject",
+                        Object::Dictionary(dict(vec![("Fm0", Object::Reference(form))])),
+                    ),
+                ])),
+            ),
+        ]));
+        doc.objects.insert(
+            pages,
+            Object::Dictionary(dict(vec![
+                ("Type", name("Pages")),
+                ("Kids", Object::Array(vec![Object::Reference(page)])),
+                ("Count", Object::Integer(1)),
+            ])),
+        );
+        let catalog = doc.add_object(dict(vec![
+            ("Type", name("Catalog")),
+            ("Pages", Object::Reference(pages)),
+        ]));
+        doc.trailer.set("Root", Object::Reference(catalog));
+        let mut bytes = Vec::new();
+        doc.save_to(&mut bytes).expect("in memory");
+        bytes
+    }
+
+    #[test]
+    fn a_figure_font_with_the_page_font_name_decodes_with_its_own_encoding() {
+        // Expected text from the encodings themselves: WinAnsi (PDF 1.7, Annex D) on the page,
+        // the Differences array in the figure.
+        let mut w = Vec::new();
+        let pages = page_texts("x.pdf", &pdf_with_a_form_reusing_a_font_name(), &mut w)
+            .expect("readable");
+        assert!(w.is_empty(), "{w:?}");
+        let words: Vec<&str> = pages[0].split_whitespace().collect();
+        assert_eq!(words, ["Rain", "xyz", "Wind", "Sun", "xyz"]);
+    }
+
     #[test]
     fn malformed_pdf_is_an_error_not_a_panic() {
         let mut w = Vec::new();
