@@ -11,6 +11,9 @@
 //! Typographic ligatures (U+FB00–U+FB06, "ﬁ" for "fi") are spelt out so words match their
 //! plain spelling, and lines that are mostly one-character tokens (glyphs without a usable
 //! character map, or figure axis labels) are dropped as not prose.
+//!
+//! Fonts of form XObjects (figures) get names of their own before extraction, as pdf-extract
+//! caches fonts by resource name for a whole page, forms included.
 
 use crate::corpus::{Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
@@ -466,7 +469,10 @@ fn form_font_dict_mut(
         Some(r) => doc.get_dictionary(r).ok()?,
         None => resources.as_dict().ok()?,
     };
-    if let Ok(fonts) = resources.get(b"Font").and_then(pdf_extract::Object::as_reference) {
+    if let Ok(fonts) = resources
+        .get(b"Font")
+        .and_then(pdf_extract::Object::as_reference)
+    {
         return doc.get_object_mut(fonts).ok()?.as_dict_mut().ok();
     }
     let resources = match resources_ref {
@@ -616,12 +622,8 @@ mod tests {
             Object::Dictionary(dict(pairs))
         };
         let page_font = doc.add_object(helvetica(vec![("Encoding", name("WinAnsiEncoding"))]));
-        let differences = Object::Array(vec![
-            Object::Integer(120),
-            name("a"),
-            name("i"),
-            name("n"),
-        ]);
+        let differences =
+            Object::Array(vec![Object::Integer(120), name("a"), name("i"), name("n")]);
         let form_font = doc.add_object(helvetica(vec![(
             "Encoding",
             Object::Dictionary(dict(vec![
@@ -630,14 +632,7 @@ mod tests {
             ])),
         )]));
         let fonts = |f| Object::Dictionary(dict(vec![("F1", Object::Reference(f))]));
-        let box_ = || {
-            Object::Array(
-                [0, 0, 612, 792]
-                    .into_iter()
-                    .map(Object::Integer)
-                    .collect(),
-            )
-        };
+        let box_ = || Object::Array([0, 0, 612, 792].into_iter().map(Object::Integer).collect());
         let form = doc.add_object(Stream::new(
             dict(vec![
                 ("Type", name("XObject")),
@@ -695,8 +690,8 @@ mod tests {
         // Expected text from the encodings themselves: WinAnsi (PDF 1.7, Annex D) on the page,
         // the Differences array in the figure.
         let mut w = Vec::new();
-        let pages = page_texts("x.pdf", &pdf_with_a_form_reusing_a_font_name(), &mut w)
-            .expect("readable");
+        let pages =
+            page_texts("x.pdf", &pdf_with_a_form_reusing_a_font_name(), &mut w).expect("readable");
         assert!(w.is_empty(), "{w:?}");
         let words: Vec<&str> = pages[0].split_whitespace().collect();
         assert_eq!(words, ["Rain", "xyz", "Wind", "Sun", "xyz"]);
