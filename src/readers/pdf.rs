@@ -11,6 +11,9 @@
 //! Typographic ligatures (U+FB00–U+FB06, "ﬁ" for "fi") are spelt out so words match their
 //! plain spelling, and lines that are mostly one-character tokens (glyphs without a usable
 //! character map, or figure axis labels) are dropped as not prose.
+//!
+//! Fonts of form XObjects (figures) get names of their own before extraction, as pdf-extract
+//! caches fonts by resource name for a whole page, forms included.
 
 use crate::corpus::{Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
@@ -374,6 +377,120 @@ fn expand_quote_operators(doc: &mut pdf_extract::Document) {
     }
 }
 
+/// Give the fonts of every form XObject (a figure or other graphic drawn as content of its own)
+/// names of their own. A form's font names belong to its own resource dictionary (PDF 1.7,
+/// 8.10.1), so a figure may call its Helvetica `/F4` on a page whose text font is also `/F4`;
+/// pdf-extract caches fonts by name for a whole page, nested forms included, and then decodes
+/// the later text with the font first met under that name (two-byte codes of a CID font read
+/// as one-byte Helvetica codes: "\0U\0\0\0V" for "(a)"). Each font a form names gets an alias
+/// made from its object number (the same alias for the same font object wherever it is used,
+/// so a shared cache entry is then the right font), and the form's `Tf` operators use it. The
+/// old names stay, so a form whose content cannot be decoded or encoded is left as it was.
+fn give_form_fonts_own_names(doc: &mut pdf_extract::Document) {
+    use pdf_extract::content::Content;
+    use pdf_extract::Object;
+    let forms: Vec<pdf_extract::ObjectId> = doc
+        .objects
+        .iter()
+        .filter_map(|(id, o)| match o {
+            Object::Stream(s)
+                if s.dict
+                    .get(b"Subtype")
+                    .and_then(Object::as_name)
+                    .is_ok_and(|n| n == b"Form") =>
+            {
+                Some(*id)
+            }
+            _ => None,
+        })
+        .collect();
+    for id in forms {
+        let Some(fonts) = form_font_dict_mut(doc, id).map(|d| d.clone()) else {
+            continue;
+        };
+        let aliases: HashMap<Vec<u8>, Vec<u8>> = fonts
+            .iter()
+            .map(|(name, font)| {
+                let alias = match font {
+                    Object::Reference((n, g)) => format!("HsFont{n}_{g}"),
+                    _ => format!("HsFont{}_{}_{}", id.0, id.1, String::from_utf8_lossy(name)),
+                };
+                (name.clone(), alias.into_bytes())
+            })
+            .collect();
+        let Ok(Object::Stream(stream)) = doc.get_object(id) else {
+            continue;
+        };
+        let Ok(mut content) = stream
+            .get_plain_content()
+            .and_then(|bytes| Content::decode(&bytes))
+        else {
+            continue;
+        };
+        let mut renamed = false;
+        for op in content.operations.iter_mut().filter(|o| o.operator == "Tf") {
+            if let Some(Object::Name(name)) = op.operands.first_mut() {
+                if let Some(alias) = aliases.get(name.as_slice()) {
+                    name.clone_from(alias);
+                    renamed = true;
+                }
+            }
+        }
+        if !renamed {
+            continue;
+        }
+        let Ok(bytes) = content.encode() else {
+            continue;
+        };
+        let Some(dict) = form_font_dict_mut(doc, id) else {
+            continue;
+        };
+        for (name, alias) in &aliases {
+            if let Ok(font) = fonts.get(name) {
+                dict.set(alias.clone(), font.clone());
+            }
+        }
+        if let Ok(Object::Stream(stream)) = doc.get_object_mut(id) {
+            stream.set_plain_content(bytes);
+        }
+    }
+}
+
+/// The font dictionary of a form XObject's own resources, wherever it is stored (inline or as
+/// an object of its own, at either level); `None` for a form that uses its caller's resources.
+fn form_font_dict_mut(
+    doc: &mut pdf_extract::Document,
+    form: pdf_extract::ObjectId,
+) -> Option<&mut pdf_extract::Dictionary> {
+    let stream = doc.get_object(form).ok()?.as_stream().ok()?;
+    let resources = stream.dict.get(b"Resources").ok()?;
+    let resources_ref = resources.as_reference().ok();
+    let resources = match resources_ref {
+        Some(r) => doc.get_dictionary(r).ok()?,
+        None => resources.as_dict().ok()?,
+    };
+    if let Ok(fonts) = resources
+        .get(b"Font")
+        .and_then(pdf_extract::Object::as_reference)
+    {
+        return doc.get_object_mut(fonts).ok()?.as_dict_mut().ok();
+    }
+    let resources = match resources_ref {
+        Some(r) => doc.get_object_mut(r).ok()?.as_dict_mut().ok()?,
+        None => doc
+            .get_object_mut(form)
+            .ok()?
+            .as_stream_mut()
+            .ok()?
+            .dict
+            .get_mut(b"Resources")
+            .ok()?
+            .as_dict_mut()
+            .ok()?,
+    };
+    resources.get_mut(b"Font").ok()?.as_dict_mut().ok()
+}
+
 /// The text of every page. An encrypted PDF is opened with the empty password (owner-only
 /// protection); one that needs a real password is an error saying so. A page that cannot be
 /// read is a warning and an empty page, so later pages keep their numbers.
@@ -391,6 +508,7 @@ fn page_texts(
         ));
     }
     expand_quote_operators(&mut doc);
+    give_form_fonts_own_names(&mut doc);
     let numbers: Vec<u32> = doc.get_pages().keys().copied().collect();
     let mut pages = Vec::with_capacity(numbers.len());
     for n in numbers {
@@ -479,6 +597,104 @@ mod tests {
                 .to_string(),
         ];
         assert_eq!(clean_pages(&pages, true).0, "The field flows.");
+    }
+
+    /// A one-page PDF whose page and whose figure (a form XObject) each call a different
+    /// font `/F1`: the figure's has an encoding that spells codes `x y z` as "a i n".
+    fn pdf_with_a_form_reusing_a_font_name() -> Vec<u8> {
+        use pdf_extract::{Dictionary, Document, Object, Stream};
+        let name = |n: &str| Object::Name(n.as_bytes().to_vec());
+        let dict = |pairs: Vec<(&str, Object)>| {
+            let mut d = Dictionary::new();
+            for (k, v) in pairs {
+                d.set(k, v);
+            }
+            d
+        };
+        let mut doc = Document::with_version("1.5");
+        let helvetica = |extra: Vec<(&str, Object)>| {
+            let mut pairs = vec![
+                ("Type", name("Font")),
+                ("Subtype", name("Type1")),
+                ("BaseFont", name("Helvetica")),
+            ];
+            pairs.extend(extra);
+            Object::Dictionary(dict(pairs))
+        };
+        let page_font = doc.add_object(helvetica(vec![("Encoding", name("WinAnsiEncoding"))]));
+        let differences =
+            Object::Array(vec![Object::Integer(120), name("a"), name("i"), name("n")]);
+        let form_font = doc.add_object(helvetica(vec![(
+            "Encoding",
+            Object::Dictionary(dict(vec![
+                ("BaseEncoding", name("WinAnsiEncoding")),
+                ("Differences", differences),
+            ])),
+        )]));
+        let fonts = |f| Object::Dictionary(dict(vec![("F1", Object::Reference(f))]));
+        let box_ = || Object::Array([0, 0, 612, 792].into_iter().map(Object::Integer).collect());
+        let form = doc.add_object(Stream::new(
+            dict(vec![
+                ("Type", name("XObject")),
+                ("Subtype", name("Form")),
+                ("BBox", box_()),
+                (
+                    "Resources",
+                    Object::Dictionary(dict(vec![("Font", fonts(form_font))])),
+                ),
+            ]),
+            b"BT /F1 12 Tf 72 600 Td (Wyzd) Tj ET".to_vec(),
+        ));
+        let content = doc.add_object(Stream::new(
+            Dictionary::new(),
+            b"BT /F1 12 Tf 72 700 Td (Rain xyz) Tj ET /Fm0 Do BT /F1 12 Tf 72 500 Td (Sun xyz) Tj ET"
+                .to_vec(),
+        ));
+        let pages = doc.new_object_id();
+        let page = doc.add_object(dict(vec![
+            ("Type", name("Page")),
+            ("Parent", Object::Reference(pages)),
+            ("MediaBox", box_()),
+            ("Contents", Object::Reference(content)),
+            (
+                "Resources",
+                Object::Dictionary(dict(vec![
+                    ("Font", fonts(page_font)),
+                    (
+                        "XObject",
+                        Object::Dictionary(dict(vec![("Fm0", Object::Reference(form))])),
+                    ),
+                ])),
+            ),
+        ]));
+        doc.objects.insert(
+            pages,
+            Object::Dictionary(dict(vec![
+                ("Type", name("Pages")),
+                ("Kids", Object::Array(vec![Object::Reference(page)])),
+                ("Count", Object::Integer(1)),
+            ])),
+        );
+        let catalog = doc.add_object(dict(vec![
+            ("Type", name("Catalog")),
+            ("Pages", Object::Reference(pages)),
+        ]));
+        doc.trailer.set("Root", Object::Reference(catalog));
+        let mut bytes = Vec::new();
+        doc.save_to(&mut bytes).expect("in memory");
+        bytes
+    }
+
+    #[test]
+    fn a_figure_font_with_the_page_font_name_decodes_with_its_own_encoding() {
+        // Expected text from the encodings themselves: WinAnsi (PDF 1.7, Annex D) on the page,
+        // the Differences array in the figure.
+        let mut w = Vec::new();
+        let pages =
+            page_texts("x.pdf", &pdf_with_a_form_reusing_a_font_name(), &mut w).expect("readable");
+        assert!(w.is_empty(), "{w:?}");
+        let words: Vec<&str> = pages[0].split_whitespace().collect();
+        assert_eq!(words, ["Rain", "xyz", "Wind", "Sun", "xyz"]);
     }
 
     #[test]
