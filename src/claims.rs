@@ -535,7 +535,9 @@ impl Extractor {
             && !(self.np_boundary(&toks[j])
                 && !(j == start && self.single_negators.contains(&toks[j].lower)))
             && !self.lexicon.prepositions.contains(&toks[j].lower)
-            && !(j > start && toks[j].tag.is_some_and(Tag::is_finite_verb) && !self.np_inside(toks, j))
+            && !(j > start
+                && toks[j].tag.is_some_and(Tag::is_finite_verb)
+                && !self.np_inside(toks, j))
         {
             j += 1;
         }
@@ -552,7 +554,8 @@ impl Extractor {
         j > 0 && {
             let p = &toks[j - 1];
             self.lexicon.determiners.contains(&p.lower)
-                || p.tag.is_some_and(|g| matches!(g.as_str(), "DT" | "PRP$" | "POS"))
+                || p.tag
+                    .is_some_and(|g| matches!(g.as_str(), "DT" | "PRP$" | "POS"))
                 || (p.word && p.lower.ends_with("'s"))
         }
     }
@@ -970,6 +973,21 @@ impl Extractor {
         }
     }
 
+    /// "the treatment of headaches from fatigue", "the emission of radiation from phones": when
+    /// the span's head is not an outcome noun, the phrase after its last preposition, if that
+    /// one's head is.
+    fn outcome_tail(&self, toks: &[Token], sent: SentenceRef<'_>, c: &Chosen) -> Option<Chosen> {
+        let (a, b) = c.tokens(toks, sent);
+        let b = b.min(toks.len());
+        let k = (a..b).rev().find(|&k| {
+            toks[k].word
+                && (toks[k].lower == "of" || self.lexicon.prepositions.contains(&toks[k].lower))
+        })?;
+        let span = self.strip_determiners(toks, Span { from: k + 1, to: b });
+        let tail = self.choose(toks, sent, span, true)?;
+        self.outcome_head(toks, sent, &tail).then_some(tail)
+    }
+
     /// A verb cue right after a determiner or preposition is a noun or adjective use ("an
     /// increase in", "the increased risk"): not this cue.
     fn noun_use(&self, m: &CueMatch, toks: &[Token], ca: usize) -> Option<String> {
@@ -1280,7 +1298,16 @@ impl Extractor {
         let causes: Vec<Chosen> = std::iter::once(cause).chain(cause_extra).collect();
         let mut effects: Vec<Chosen> = std::iter::once(effect).chain(effect_extra).collect();
         if spec.outcome_effect {
-            effects.retain(|e| cross_sentence || self.outcome_head(toks, sent, e));
+            effects = effects
+                .into_iter()
+                .filter_map(|e| {
+                    if cross_sentence || self.outcome_head(toks, sent, &e) {
+                        Some(e)
+                    } else {
+                        self.outcome_tail(toks, sent, &e)
+                    }
+                })
+                .collect();
             if effects.is_empty() {
                 return Err(
                     "the effect's head is not an outcome noun ([outcomes] in lexicon.toml)".into(),
