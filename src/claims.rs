@@ -1298,13 +1298,19 @@ impl Extractor {
         let causes: Vec<Chosen> = std::iter::once(cause).chain(cause_extra).collect();
         let mut effects: Vec<Chosen> = std::iter::once(effect).chain(effect_extra).collect();
         if spec.outcome_effect {
+            // The phrase next to the cue must name the outcome: for an effect before the cue
+            // ("the treatment of headaches from") that is the span's last phrase. Coordinated
+            // effects share the first one's reading: if it is no outcome, none is.
+            let effect_before = m.effect == SlotPlace::Before;
             effects = effects
                 .into_iter()
-                .filter_map(|e| {
-                    if cross_sentence || self.outcome_head(toks, sent, &e) {
+                .map_while(|e| {
+                    if self.outcome_head(toks, sent, &e) {
                         Some(e)
-                    } else {
+                    } else if effect_before {
                         self.outcome_tail(toks, sent, &e)
+                    } else {
+                        None
                     }
                 })
                 .collect();

@@ -27,6 +27,9 @@ fn semeval2010_task8_cause_effect_precision_and_recall() {
         "precision {p} fell under {PRECISION_FLOOR}"
     );
     assert!(r >= RECALL_FLOOR, "recall {r} fell under {RECALL_FLOOR}");
+    // The target, reached (0.7525): kept as a floor.
+    let f1 = s["f1"].as_f64().unwrap();
+    assert!(f1 >= F1_FLOOR, "F1 {f1} fell under {F1_FLOOR}");
     let neg = s["negative_claim_rate"].as_f64().unwrap();
     assert!(
         neg < 0.01,
@@ -35,4 +38,5 @@ fn semeval2010_task8_cause_effect_precision_and_recall() {
 }
 
 const PRECISION_FLOOR: f64 = 0.89;
-const RECALL_FLOOR: f64 = 0.60;
+const RECALL_FLOOR: f64 = 0.64;
+const F1_FLOOR: f64 = 0.75;
