@@ -509,17 +509,99 @@ fn page_texts(
     }
     expand_quote_operators(&mut doc);
     give_form_fonts_own_names(&mut doc);
-    let numbers: Vec<u32> = doc.get_pages().keys().copied().collect();
+    let numbers: Vec<(u32, pdf_extract::ObjectId)> = doc.get_pages().into_iter().collect();
     let mut pages = Vec::with_capacity(numbers.len());
-    for n in numbers {
+    for (n, id) in numbers {
         let mut page = PageText::default();
-        if let Err(e) = pdf_extract::output_doc_page(&doc, &mut page, n) {
-            warnings.push(format!("{label}: page {n}: cannot read its text: {e}"));
-            page.text.clear();
+        // The extraction library assumes what a well-formed page has; check it first.
+        if let Err(why) = check_page(&mut doc, id) {
+            warnings.push(format!("{label}: page {n}: {why}"));
+            pages.push(String::new());
+            continue;
+        }
+        let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            pdf_extract::output_doc_page(&doc, &mut page, n)
+        }));
+        match r {
+            Ok(Ok(())) => {}
+            Ok(Err(e)) => {
+                warnings.push(format!("{label}: page {n}: cannot read its text: {e}"));
+                page.text.clear();
+            }
+            Err(_) => {
+                warnings.push(format!(
+                    "{label}: page {n}: the PDF library failed on this page (malformed page)"
+                ));
+                page.text.clear();
+            }
         }
         pages.push(page.text);
     }
     Ok(pages)
+}
+
+/// US Letter in points: the size given to a page that states none.
+const DEFAULT_MEDIA_BOX: [i64; 4] = [0, 0, 612, 792];
+
+/// Whether page `id` can be handed to the extraction library, which panics on a page object
+/// that is not a dictionary, on unreadable content and on a missing or short `MediaBox`. A
+/// page without a usable `MediaBox` (its own or inherited) gets a Letter-sized one, as viewers
+/// do; the others are reasons to skip the page.
+fn check_page(doc: &mut pdf_extract::Document, id: pdf_extract::ObjectId) -> Result<(), String> {
+    use pdf_extract::Object;
+    if doc.get_dictionary(id).is_err() {
+        return Err("the page object is not a dictionary".into());
+    }
+    if doc.get_page_content(id).is_err() {
+        return Err("its content stream cannot be read".into());
+    }
+    let usable = |o: &Object, doc: &pdf_extract::Document| {
+        let o = match o {
+            Object::Reference(r) => doc.get_object(*r).ok(),
+            o => Some(o),
+        };
+        o.and_then(|o| o.as_array().ok()).is_some_and(|a| {
+            a.len() >= 4
+                && a.iter()
+                    .take(4)
+                    .all(|x| matches!(x, Object::Integer(_) | Object::Real(_)))
+        })
+    };
+    // Walk up the page tree, as the library does, but bounded against cycles.
+    let mut at = id;
+    let mut found = false;
+    for _ in 0..64 {
+        let Ok(dict) = doc.get_dictionary(at) else {
+            break;
+        };
+        if let Ok(mb) = dict.get(b"MediaBox") {
+            // The library takes the first MediaBox it meets, usable or not.
+            found = usable(mb, doc);
+            if !found {
+                break;
+            }
+            return Ok(());
+        }
+        match dict.get(b"Parent").and_then(Object::as_reference) {
+            Ok(parent) => at = parent,
+            Err(_) => break,
+        }
+    }
+    if !found {
+        let Ok(dict) = doc.get_object_mut(id).and_then(Object::as_dict_mut) else {
+            return Err("the page object is not a dictionary".into());
+        };
+        dict.set(
+            "MediaBox",
+            Object::Array(
+                DEFAULT_MEDIA_BOX
+                    .iter()
+                    .map(|&v| Object::Integer(v))
+                    .collect(),
+            ),
+        );
+    }
+    Ok(())
 }
 
 impl Reader for PdfReader {
@@ -695,6 +777,35 @@ mod tests {
         assert!(w.is_empty(), "{w:?}");
         let words: Vec<&str> = pages[0].split_whitespace().collect();
         assert_eq!(words, ["Rain", "xyz", "Wind", "Sun", "xyz"]);
+    }
+
+    /// Found by the `read_pdf` fuzz target: the extraction library panics on a page whose
+    /// MediaBox is missing or short. Such a page now gets a Letter-sized box and is read.
+    #[test]
+    fn a_page_without_a_usable_media_box_is_read_not_a_panic() {
+        use pdf_extract::{Document, Object};
+        for bad in [
+            None,
+            Some(Object::Array(vec![Object::Integer(0), Object::Integer(0)])),
+        ] {
+            let mut doc =
+                Document::load_mem(&pdf_with_a_form_reusing_a_font_name()).expect("valid PDF");
+            for (_, id) in doc.get_pages() {
+                let page = doc
+                    .get_object_mut(id)
+                    .and_then(Object::as_dict_mut)
+                    .expect("page");
+                page.remove(b"MediaBox");
+                if let Some(b) = &bad {
+                    page.set("MediaBox", b.clone());
+                }
+            }
+            let mut bytes = Vec::new();
+            doc.save_to(&mut bytes).expect("in memory");
+            let mut w = Vec::new();
+            let pages = page_texts("x.pdf", &bytes, &mut w).expect("readable");
+            assert!(pages[0].contains("Rain"), "{pages:?} {w:?}");
+        }
     }
 
     #[test]
