@@ -194,6 +194,9 @@ fn parse_word<T: std::str::FromStr<Err = String>>(s: &str) -> Result<T, String> 
 }
 
 pub fn run(cli: Cli) -> Result<ExitCode> {
+    // A reader's library that panics on a hostile file is reported as a warning naming the
+    // file; its raw panic message would only add noise.
+    hearsay::corpus::quiet_contained_panics();
     if let Some(n) = cli.global.threads {
         rayon::ThreadPoolBuilder::new()
             .num_threads(n.max(1))

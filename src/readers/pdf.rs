@@ -519,9 +519,7 @@ fn page_texts(
             pages.push(String::new());
             continue;
         }
-        let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-            pdf_extract::output_doc_page(&doc, &mut page, n)
-        }));
+        let r = crate::corpus::contain(|| pdf_extract::output_doc_page(&doc, &mut page, n));
         match r {
             Ok(Ok(())) => {}
             Ok(Err(e)) => {
@@ -616,12 +614,22 @@ impl Reader for PdfReader {
         warnings: &mut Warnings,
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError> {
+        let before = warnings.len();
         let pages = page_texts(label, bytes, warnings)?;
         if pages.iter().all(|p| p.trim().is_empty()) {
-            return Err(ReadError::NoText(format!(
-                "{} page(s) and no extractable text (a scanned PDF?)",
-                pages.len()
-            )));
+            // Pages that could not be read are not evidence of a scan.
+            let unreadable = warnings.len() - before;
+            return Err(ReadError::NoText(if unreadable > 0 {
+                format!(
+                    "{} page(s), {unreadable} of them unreadable (see the warnings above), and no text on the others",
+                    pages.len()
+                )
+            } else {
+                format!(
+                    "{} page(s) and no extractable text (a scanned PDF?)",
+                    pages.len()
+                )
+            }));
         }
         let (text, page_starts) = clean_pages(&pages, opts.cut_references);
         emit(Document {
