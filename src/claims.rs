@@ -940,12 +940,20 @@ impl Extractor {
     /// Whether an effect span's head noun is an outcome noun: the last word before any
     /// preposition ("heat in the engine" → "heat"), tagged as a noun when tags are known.
     fn outcome_head(&self, toks: &[Token], sent: SentenceRef<'_>, c: &Chosen) -> bool {
+        if c.start < sent.offset || c.end > sent.offset + sent.text.len() {
+            // An antecedent from the previous sentence: read its own words (untagged).
+            return self.outcome_head_in(&tokenize(&c.text));
+        }
         let (a, b) = c.tokens(toks, sent);
+        self.outcome_head_in(&toks[a..b.min(toks.len())])
+    }
+
+    fn outcome_head_in(&self, span: &[Token]) -> bool {
         // The head of each phrase between prepositions: "most of the noise" → "most", "noise".
         let mut heads: Vec<&Token> = Vec::new();
         let mut head = None;
         let mut of_before = Vec::new();
-        for t in &toks[a..b.min(toks.len())] {
+        for t in span {
             if t.word && (t.lower == "of" || self.lexicon.prepositions.contains(&t.lower)) {
                 heads.extend(head.take());
                 of_before.push(t.lower == "of");
