@@ -954,7 +954,7 @@ impl Extractor {
         let mut head = None;
         let mut of_before = Vec::new();
         for t in span {
-            if t.word && (t.lower == "of" || self.lexicon.prepositions.contains(&t.lower)) {
+            if self.phrase_break(t) {
                 heads.extend(head.take());
                 of_before.push(t.lower == "of");
                 if heads.is_empty() {
@@ -981,16 +981,18 @@ impl Extractor {
         }
     }
 
+    /// "of" or a preposition: where one phrase of a span ends and the next begins.
+    fn phrase_break(&self, t: &Token) -> bool {
+        t.word && (t.lower == "of" || self.lexicon.prepositions.contains(&t.lower))
+    }
+
     /// "the treatment of headaches from fatigue", "the emission of radiation from phones": when
     /// the span's head is not an outcome noun, the phrase after its last preposition, if that
     /// one's head is.
     fn outcome_tail(&self, toks: &[Token], sent: SentenceRef<'_>, c: &Chosen) -> Option<Chosen> {
         let (a, b) = c.tokens(toks, sent);
         let b = b.min(toks.len());
-        let k = (a..b).rev().find(|&k| {
-            toks[k].word
-                && (toks[k].lower == "of" || self.lexicon.prepositions.contains(&toks[k].lower))
-        })?;
+        let k = (a..b).rev().find(|&k| self.phrase_break(&toks[k]))?;
         let span = self.strip_determiners(toks, Span { from: k + 1, to: b });
         let tail = self.choose(toks, sent, span, true)?;
         self.outcome_head(toks, sent, &tail).then_some(tail)

@@ -363,7 +363,6 @@ impl CueSet {
         let mut scanned: Vec<usize> = Vec::new();
         for c in candidates {
             let cue = &self.cues[c.cue];
-            let mut caps = cue.regex.create_captures();
             let at = match cue.start {
                 MatchStart::AtHit => c.pos,
                 MatchStart::WordBeforeHit => word_start_before(sentence, c.pos),
@@ -380,6 +379,7 @@ impl CueSet {
             let input = Input::new(sentence)
                 .span(at..sentence.len())
                 .anchored(Anchored::Yes);
+            let mut caps = cue.regex.create_captures();
             cue.regex.search_captures(&input, &mut caps);
             self.accept(c.cue, sentence, &caps, &mut found);
         }

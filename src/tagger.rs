@@ -182,12 +182,13 @@ impl Prepared {
         }
     }
 
-    /// The role vectors of one word (see `ROLES`), written into `out`.
-    fn word_vectors(&self, raw: &str, buf: &mut String, out: &mut [f32]) {
+    /// The role vectors of one word (see `ROLES`), written into `out`; returns the normalised
+    /// word.
+    fn word_vectors(&self, raw: &str, buf: &mut String, out: &mut [f32]) -> String {
         out.iter_mut().for_each(|x| *x = 0.0);
         let lw = norm(raw);
         let w = lw.as_str();
-        let first = raw.chars().next().map_or("", |c| &raw[..c.len_utf8()]);
+        let first = first_char(raw);
         let mut sh = String::new();
         shape_into(raw, &mut sh);
         let (own, rest) = out.split_at_mut(NT);
@@ -215,6 +216,7 @@ impl Prepared {
         feat(a1, &["w+1 ", w]);
         feat(a1, &["s3+1 ", suffix(w, 3)]);
         feat(a2, &["w+2 ", w]);
+        lw
     }
 }
 
@@ -250,8 +252,7 @@ impl WordCache {
         }
         let i = self.index.len();
         self.vectors.resize((i + 1) * ROLES * NT, 0.0);
-        p.word_vectors(raw, buf, &mut self.vectors[i * ROLES * NT..]);
-        let lw = norm(raw);
+        let lw = p.word_vectors(raw, buf, &mut self.vectors[i * ROLES * NT..]);
         let known = t.dict.get(&lw).copied();
         self.words.push((lw, known));
         self.index.insert(raw.to_string(), i as u32);
@@ -325,6 +326,11 @@ fn shape_into(w: &str, s: &mut String) {
     }
 }
 
+/// The word's first character as a string slice ("" for an empty word).
+fn first_char(w: &str) -> &str {
+    w.chars().next().map_or("", |c| &w[..c.len_utf8()])
+}
+
 fn suffix(w: &str, n: usize) -> &str {
     let start = w
         .char_indices()
@@ -369,7 +375,7 @@ fn visit_features(
     };
     let next = lowered.get(i + 1).map_or("-END-", String::as_str);
     let next2 = lowered.get(i + 2).map_or("-END2-", String::as_str);
-    let first = raw.chars().next().map_or("", |c| &raw[..c.len_utf8()]);
+    let first = first_char(raw);
     let mut sh = String::new();
     shape_into(raw, &mut sh);
     // Each feature is its parts concatenated; `push_str` into the reused buffer is much cheaper

@@ -565,40 +565,36 @@ fn check_page(doc: &mut pdf_extract::Document, id: pdf_extract::ObjectId) -> Res
                     .all(|x| matches!(x, Object::Integer(_) | Object::Real(_)))
         })
     };
-    // Walk up the page tree, as the library does, but bounded against cycles.
+    // Walk up the page tree, as the library does, but bounded against cycles. The library
+    // takes the first MediaBox it meets, usable or not.
     let mut at = id;
-    let mut found = false;
     for _ in 0..64 {
         let Ok(dict) = doc.get_dictionary(at) else {
             break;
         };
         if let Ok(mb) = dict.get(b"MediaBox") {
-            // The library takes the first MediaBox it meets, usable or not.
-            found = usable(mb, doc);
-            if !found {
-                break;
+            if usable(mb, doc) {
+                return Ok(());
             }
-            return Ok(());
+            break;
         }
         match dict.get(b"Parent").and_then(Object::as_reference) {
             Ok(parent) => at = parent,
             Err(_) => break,
         }
     }
-    if !found {
-        let Ok(dict) = doc.get_object_mut(id).and_then(Object::as_dict_mut) else {
-            return Err("the page object is not a dictionary".into());
-        };
-        dict.set(
-            "MediaBox",
-            Object::Array(
-                DEFAULT_MEDIA_BOX
-                    .iter()
-                    .map(|&v| Object::Integer(v))
-                    .collect(),
-            ),
-        );
-    }
+    let Ok(dict) = doc.get_object_mut(id).and_then(Object::as_dict_mut) else {
+        return Err("the page object is not a dictionary".into());
+    };
+    dict.set(
+        "MediaBox",
+        Object::Array(
+            DEFAULT_MEDIA_BOX
+                .iter()
+                .map(|&v| Object::Integer(v))
+                .collect(),
+        ),
+    );
     Ok(())
 }
 
