@@ -6,7 +6,8 @@
 //! 1. Hard blocks first: a blank line (or a Unicode paragraph/line separator) always ends a
 //!    sentence, and so does a line starting a Markdown list item or heading, or the line after a
 //!    heading. A single newline inside a paragraph is wrapped text and is read as a space.
-//! 2. Inside each block the UAX #29 sentence rules (`unicode-segmentation`) give candidate breaks.
+//! 2. Inside each block the UAX #29 sentence rules give candidate breaks (`unicode-segmentation`,
+//!    with a fast path for terminators in ASCII surroundings: see [`uax29`]).
 //! 3. Each candidate is then repaired with cheap, local checks of its surroundings: known
 //!    abbreviations, initials, decimals and numbered items, and citation brackets (`[4]`,
 //!    "(Author et al., 2019)"), which scientific and technical prose is full of.
@@ -16,7 +17,7 @@
 //! Every check looks at a bounded window around the break, so the whole stage is linear in the
 //! input, allocates one copy of the region, compiles nothing per call and never panics.
 
-use unicode_segmentation::UnicodeSegmentation;
+mod uax29;
 
 /// A sentence as a byte range into its document's text.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -220,8 +221,9 @@ fn is_list_item(line: &str) -> bool {
 /// Split one hard block `text[s..e]`; `flat` is the same bytes with newlines as spaces.
 fn split_block(text: &str, flat: &str, s: usize, e: usize, out: &mut Vec<SentenceSpan>) {
     let mut cur = s;
-    for (off, piece) in flat.split_sentence_bound_indices() {
-        let b = s + off + piece.len();
+    let mut ends = Vec::new();
+    uax29::sentence_ends(flat, &mut ends);
+    for b in ends.into_iter().map(|off| s + off) {
         if b <= cur || b >= e {
             continue;
         }
