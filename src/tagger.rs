@@ -233,8 +233,9 @@ struct WordCache {
     owner: usize,
     /// Raw word → its slot.
     index: FastMap<String, u32>,
-    /// Per slot: the normalised word, and its tag when the tag dictionary answers it.
-    words: Vec<(String, Option<Tag>)>,
+    /// Per slot: the normalised word, its tag when the tag dictionary answers it, and its hash
+    /// when the word has `t1w` features.
+    words: Vec<(String, Option<Tag>, Option<u64>)>,
     /// Per slot, `ROLES * NT` scores.
     vectors: Vec<f32>,
 }
@@ -254,7 +255,8 @@ impl WordCache {
         self.vectors.resize((i + 1) * ROLES * NT, 0.0);
         let lw = p.word_vectors(raw, buf, &mut self.vectors[i * ROLES * NT..]);
         let known = t.dict.get(&lw).copied();
-        self.words.push((lw, known));
+        let hash = Some(feature_hash(&lw)).filter(|h| p.weights.t1w_words.contains(h));
+        self.words.push((lw, known, hash));
         self.index.insert(raw.to_string(), i as u32);
         i
     }
@@ -273,6 +275,11 @@ impl WordCache {
 struct HashedWeights {
     ranges: FastMap<u64, (u32, u32)>,
     pairs: Vec<(u8, f32)>,
+    /// The `t1w` features (previous tag and this word), keyed by the previous tag's index (`NT`
+    /// for the sentence start) and the word's hash, kept apart so that tagging hashes each word
+    /// once, and skips the lookup for a word that has no such feature.
+    t1w: FastMap<(u8, u64), (u32, u32)>,
+    t1w_words: std::collections::HashSet<u64, rustc_hash::FxBuildHasher>,
 }
 
 impl HashedWeights {
@@ -282,10 +289,40 @@ impl HashedWeights {
         for (f, ws) in weights {
             let start = out.pairs.len() as u32;
             out.pairs.extend_from_slice(ws);
-            out.ranges
-                .insert(feature_hash(f), (start, out.pairs.len() as u32));
+            out.insert(f, start);
         }
         out
+    }
+
+    /// File the feature `name`, whose pairs are `pairs[start..]`.
+    fn insert(&mut self, name: &str, start: u32) {
+        let range = (start, self.pairs.len() as u32);
+        let t1w = name.strip_prefix("t1w ").and_then(|rest| {
+            let (tag, word) = rest.split_once(' ')?;
+            let prev = if tag == START[0] {
+                NT
+            } else {
+                TAGS.iter().position(|t| *t == tag)?
+            };
+            Some((prev as u8, feature_hash(word)))
+        });
+        match t1w {
+            Some(key) => {
+                self.t1w.insert(key, range);
+                self.t1w_words.insert(key.1);
+            }
+            None => {
+                self.ranges.insert(feature_hash(name), range);
+            }
+        }
+    }
+
+    /// The `t1w` weights for a previous tag (`NT` at the start) and a word hash.
+    fn t1w(&self, prev: usize, word: u64) -> &[(u8, f32)] {
+        match self.t1w.get(&(prev as u8, word)) {
+            Some(&(a, b)) => &self.pairs[a as usize..b as usize],
+            None => &[],
+        }
     }
 
     fn get(&self, feature: &str) -> &[(u8, f32)] {
@@ -505,7 +542,7 @@ impl Tagger {
         let mut out: Vec<Tag> = Vec::with_capacity(n);
         let mut scores = [0f32; NT];
         for i in 0..n {
-            let (lw, known) = &cache.words[slots[i]];
+            let (_, known, t1w_word) = &cache.words[slots[i]];
             if let Some(t) = known {
                 out.push(*t);
                 continue;
@@ -532,12 +569,9 @@ impl Tagger {
                     *s += x;
                 }
             }
-            buf.clear();
-            buf.push_str("t1w ");
-            buf.push_str(if i > 0 { out[i - 1].as_str() } else { START[0] });
-            buf.push(' ');
-            buf.push_str(lw);
-            add(&mut scores, p.weights.get(&buf));
+            if let Some(h) = t1w_word {
+                add(&mut scores, p.weights.t1w(t1, *h));
+            }
             out.push(Tag(argmax(&scores)));
         }
         out
@@ -590,9 +624,7 @@ impl Tagger {
                             .ok_or_else(|| err(n + 1, "class out of range"))?;
                         hashed.pairs.push((tag.0, w as f32 / 100.0));
                     }
-                    hashed
-                        .ranges
-                        .insert(feature_hash(feat), (start, hashed.pairs.len() as u32));
+                    hashed.insert(feat, start);
                 }
                 Some("") | None => {}
                 Some(_) => return Err(err(n + 1, "unknown line kind")),
