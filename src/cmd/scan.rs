@@ -15,6 +15,7 @@ use std::collections::BTreeSet;
 use std::io::IsTerminal;
 use std::path::Path;
 use std::process::ExitCode;
+use std::sync::OnceLock;
 use std::time::{Instant, UNIX_EPOCH};
 
 #[derive(Args, Debug)]
@@ -69,8 +70,32 @@ fn mtime_ns(m: &std::fs::Metadata) -> u128 {
         .unwrap_or(0)
 }
 
+/// The extractor, built by the first worker that reads a file: compiling the cues and loading
+/// the tagger is most of the cost of a re-scan that finds nothing changed.
+struct LazyExtractor<'a> {
+    global: &'a Global,
+    cell: OnceLock<Result<Extractor, String>>,
+}
+
+impl LazyExtractor<'_> {
+    fn get(&self) -> Result<&Extractor, &str> {
+        self.cell
+            .get_or_init(|| self.global.extractor().map_err(|e| format!("{e:#}")))
+            .as_ref()
+            .map_err(String::as_str)
+    }
+
+    /// The build error, if a build was tried and failed.
+    fn failed(&self) -> Option<&str> {
+        self.cell
+            .get()
+            .and_then(|r| r.as_ref().err())
+            .map(String::as_str)
+    }
+}
+
 fn process(
-    ex: &Extractor,
+    ex: &LazyExtractor,
     opts: &corpus::ReadOptions,
     input: &Input,
     known: Option<&FileEntry>,
@@ -123,6 +148,10 @@ fn process(
             });
         }
     }
+    let ex = match ex.get() {
+        Ok(ex) => ex,
+        Err(e) => return fail(e.to_string()),
+    };
     let mut warnings = Vec::new();
     let mut result = FileResult::default();
     let (mut documents, mut text_bytes) = (0u64, 0u64);
@@ -165,7 +194,10 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     let started = Instant::now();
     check_paths(&a.paths)?;
     let set = g.pattern_set()?;
-    let ex = g.extractor()?;
+    let ex = LazyExtractor {
+        global: g,
+        cell: OnceLock::new(),
+    };
     let opts = g.read.options();
     let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
         .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
@@ -205,6 +237,10 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
             .zip(known.par_iter())
             .map(|(i, k)| process(&ex, &opts, i, k.as_ref()))
             .collect();
+        // Nothing of this scan is committed: the store stays as it was.
+        if let Some(e) = ex.failed() {
+            anyhow::bail!("{e}");
+        }
         for o in outcomes {
             match o {
                 Outcome::Unchanged(e) => {
