@@ -297,16 +297,7 @@ impl HashedWeights {
     /// File the feature `name`, whose pairs are `pairs[start..]`.
     fn insert(&mut self, name: &str, start: u32) {
         let range = (start, self.pairs.len() as u32);
-        let t1w = name.strip_prefix("t1w ").and_then(|rest| {
-            let (tag, word) = rest.split_once(' ')?;
-            let prev = if tag == START[0] {
-                NT
-            } else {
-                TAGS.iter().position(|t| *t == tag)?
-            };
-            Some((prev as u8, feature_hash(word)))
-        });
-        match t1w {
+        match t1w_key(name) {
             Some(key) => {
                 self.t1w.insert(key, range);
                 self.t1w_words.insert(key.1);
@@ -317,6 +308,17 @@ impl HashedWeights {
         }
     }
 
+    /// The weights of any feature, by name.
+    fn get(&self, feature: &str) -> &[(u8, f32)] {
+        if let Some((prev, word)) = t1w_key(feature) {
+            return self.t1w(prev as usize, word);
+        }
+        match self.ranges.get(&feature_hash(feature)) {
+            Some(&(a, b)) => &self.pairs[a as usize..b as usize],
+            None => &[],
+        }
+    }
+
     /// The `t1w` weights for a previous tag (`NT` at the start) and a word hash.
     fn t1w(&self, prev: usize, word: u64) -> &[(u8, f32)] {
         match self.t1w.get(&(prev as u8, word)) {
@@ -324,13 +326,17 @@ impl HashedWeights {
             None => &[],
         }
     }
+}
 
-    fn get(&self, feature: &str) -> &[(u8, f32)] {
-        match self.ranges.get(&feature_hash(feature)) {
-            Some(&(a, b)) => &self.pairs[a as usize..b as usize],
-            None => &[],
-        }
-    }
+/// A `t1w` feature name ("t1w TAG word") as (previous tag index, word hash).
+fn t1w_key(name: &str) -> Option<(u8, u64)> {
+    let (tag, word) = name.strip_prefix("t1w ")?.split_once(' ')?;
+    let prev = if tag == START[0] {
+        NT
+    } else {
+        TAGS.iter().position(|t| *t == tag)?
+    };
+    Some((prev as u8, feature_hash(word)))
 }
 
 fn feature_hash(f: &str) -> u64 {
