@@ -10,9 +10,16 @@ use crate::patterns::Lexicon;
 use rust_stemmers::{Algorithm, Stemmer};
 use std::collections::{HashMap, HashSet};
 
+/// The Porter2 stem of one lower-cased word, as keys and the search index stem it.
+pub fn stem(word: &str) -> std::borrow::Cow<'_, str> {
+    static STEMMER: std::sync::OnceLock<Stemmer> = std::sync::OnceLock::new();
+    STEMMER
+        .get_or_init(|| Stemmer::create(Algorithm::English))
+        .stem(word)
+}
+
 /// Turns surface text into variable keys.
 pub struct Normalizer {
-    stemmer: Stemmer,
     dropped: HashSet<String>,
 }
 
@@ -28,10 +35,7 @@ impl Normalizer {
     pub fn new(lexicon: &Lexicon) -> Self {
         let mut dropped: HashSet<String> = lexicon.determiners.iter().cloned().collect();
         dropped.extend(lexicon.stopwords.iter().cloned());
-        Normalizer {
-            stemmer: Stemmer::create(Algorithm::English),
-            dropped,
-        }
+        Normalizer { dropped }
     }
 
     /// The words of `text` that a key keeps, lower-cased but not stemmed.
@@ -56,7 +60,7 @@ impl Normalizer {
             if !out.is_empty() {
                 out.push(' ');
             }
-            out.push_str(&self.stemmer.stem(&w));
+            out.push_str(&stem(&w));
         }
         out
     }
