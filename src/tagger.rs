@@ -110,7 +110,8 @@ const ROLES: usize = 5;
 /// The model rearranged for tagging. A perceptron's score is a sum over features, and most
 /// features depend on one word only (its suffixes, its shape, or that it is the previous or
 /// next word): their sums are computed once per word and cached, and the features of the
-/// previous tags are dense tables. Per word position that leaves one hash lookup (`t1w`).
+/// previous tags are dense tables. Per word position that leaves the cache lookup and, for the
+/// few words that have them, one `t1w` lookup.
 #[derive(Debug, Clone, Default)]
 struct Prepared {
     weights: HashedWeights,
@@ -183,40 +184,42 @@ impl Prepared {
     }
 
     /// The role vectors of one word (see `ROLES`), written into `out`; returns the normalised
-    /// word.
-    fn word_vectors(&self, raw: &str, buf: &mut String, out: &mut [f32]) -> String {
+    /// word and its hash. Each role's weights are added in the order of the word's features in
+    /// [`visit_features`], so the sums are the ones scoring by feature names gives.
+    fn word_vectors(&self, raw: &str, out: &mut [f32]) -> (String, u64) {
         out.iter_mut().for_each(|x| *x = 0.0);
         let lw = norm(raw);
         let w = lw.as_str();
-        let first = first_char(raw);
+        let wh = feature_hash(w);
         let mut sh = String::new();
         shape_into(raw, &mut sh);
+        let hw = &self.weights;
+        let word = hw.words.get(&wh).copied().unwrap_or_default();
+        let s3 = hw
+            .suffix3
+            .get(&feature_hash(suffix(w, 3)))
+            .copied()
+            .unwrap_or_default();
+        let single = |kind: usize, value: &str| hw.single(kind, value);
         let (own, rest) = out.split_at_mut(NT);
         let (b1, rest) = rest.split_at_mut(NT);
         let (b2, rest) = rest.split_at_mut(NT);
         let (a1, a2) = rest.split_at_mut(NT);
-        let mut feat = |v: &mut [f32], parts: &[&str]| {
-            buf.clear();
-            for p in parts {
-                buf.push_str(p);
-            }
-            add(v, self.weights.get(buf));
-        };
-        feat(own, &["w ", w]);
-        feat(own, &["s1 ", suffix(w, 1)]);
-        feat(own, &["s2 ", suffix(w, 2)]);
-        feat(own, &["s3 ", suffix(w, 3)]);
-        feat(own, &["s4 ", suffix(w, 4)]);
-        feat(own, &["p1 ", first]);
-        feat(own, &["sh ", &sh]);
+        add(own, hw.range(word[0]));
+        add(own, single(0, suffix(w, 1)));
+        add(own, single(1, suffix(w, 2)));
+        add(own, hw.range(s3[0]));
+        add(own, single(2, suffix(w, 4)));
+        add(own, single(3, first_char(raw)));
+        add(own, single(4, &sh));
         // This word as the previous word of the one after it, and so on.
-        feat(b1, &["w-1 ", w]);
-        feat(b1, &["s3-1 ", suffix(w, 3)]);
-        feat(b2, &["w-2 ", w]);
-        feat(a1, &["w+1 ", w]);
-        feat(a1, &["s3+1 ", suffix(w, 3)]);
-        feat(a2, &["w+2 ", w]);
-        lw
+        add(b1, hw.range(word[1]));
+        add(b1, hw.range(s3[1]));
+        add(b2, hw.range(word[2]));
+        add(a1, hw.range(word[3]));
+        add(a1, hw.range(s3[2]));
+        add(a2, hw.range(word[4]));
+        (lw, wh)
     }
 }
 
@@ -231,11 +234,17 @@ fn add(v: &mut [f32], ws: &[(u8, f32)]) {
 #[derive(Default)]
 struct WordCache {
     owner: usize,
-    /// Raw word → its slot.
-    index: FastMap<String, u32>,
-    /// Per slot: the normalised word, its tag when the tag dictionary answers it, and its hash
-    /// when the word has `t1w` features.
-    words: Vec<(String, Option<Tag>, Option<u64>)>,
+    /// A cache for one long sentence only: it never starts over (its slots must stay valid
+    /// until the sentence is scored).
+    unbounded: bool,
+    /// Hash of a raw word → its slot. The word itself is in `raw`, so a lookup compares against
+    /// one contiguous buffer instead of a heap string per word.
+    index: FastMap<u64, u32>,
+    /// The raw words of the slots, back to back, and per slot its range in them.
+    raw: String,
+    /// Per slot: its word's range in `raw`, its tag when the tag dictionary answers it, and
+    /// its hash when the word has `t1w` features.
+    words: Vec<((u32, u32), Option<Tag>, Option<u64>)>,
     /// Per slot, `ROLES * NT` scores.
     vectors: Vec<f32>,
 }
@@ -244,42 +253,101 @@ const WORD_CACHE_WORDS: usize = 8192;
 
 impl WordCache {
     /// This word's slot, computing its role vectors if needed.
-    fn slot(&mut self, t: &Tagger, p: &Prepared, raw: &str, buf: &mut String) -> usize {
-        if let Some(&i) = self.index.get(raw) {
-            return i as usize;
+    fn slot(&mut self, t: &Tagger, p: &Prepared, raw: &str) -> usize {
+        let h = feature_hash(raw);
+        let mut collided = false;
+        if let Some(&i) = self.index.get(&h) {
+            let (a, b) = self.words[i as usize].0;
+            if &self.raw[a as usize..b as usize] == raw {
+                return i as usize;
+            }
+            // Another word with the same hash holds the entry: this one gets a slot that is
+            // not filed, which is right, only slower.
+            collided = true;
         }
-        if self.index.len() >= WORD_CACHE_WORDS {
+        if self.words.len() >= WORD_CACHE_WORDS && !self.unbounded {
             self.clear();
+            collided = false;
         }
-        let i = self.index.len();
+        let i = self.words.len();
         self.vectors.resize((i + 1) * ROLES * NT, 0.0);
-        let lw = p.word_vectors(raw, buf, &mut self.vectors[i * ROLES * NT..]);
+        let (lw, wh) = p.word_vectors(raw, &mut self.vectors[i * ROLES * NT..]);
         let known = t.dict.get(&lw).copied();
-        let hash = Some(feature_hash(&lw)).filter(|h| p.weights.t1w_words.contains(h));
-        self.words.push((lw, known, hash));
-        self.index.insert(raw.to_string(), i as u32);
+        let hash = Some(wh).filter(|h| p.weights.t1w_words.contains(h));
+        let at = self.raw.len() as u32;
+        self.raw.push_str(raw);
+        self.words.push(((at, self.raw.len() as u32), known, hash));
+        if !collided {
+            self.index.insert(h, i as u32);
+        }
         i
     }
 
     fn clear(&mut self) {
         self.index.clear();
+        self.raw.clear();
         self.words.clear();
         self.vectors.clear();
     }
 }
 
 /// The weights laid out for tagging: one flat array of `(class, weight)` pairs, and per feature
-/// hash the range of its pairs. One allocation instead of one per feature keeps lookups close
-/// together in memory.
+/// the range of its pairs. One allocation instead of one per feature keeps lookups close
+/// together in memory. Features that a word brings to the words around it are filed by the
+/// word (one lookup finds all five), and each kind of suffix, prefix and shape feature has a
+/// small table of its own: a word not seen before costs seven lookups instead of thirteen, and
+/// most of them in tables that stay in cache.
 #[derive(Debug, Clone, Default)]
 struct HashedWeights {
+    /// Features not filed below, by the hash of the whole name.
     ranges: FastMap<u64, (u32, u32)>,
     pairs: Vec<(u8, f32)>,
+    /// By word hash: the ranges of the features in `WORD_ROLES` (`(0, 0)` when absent).
+    words: FastMap<u64, [(u32, u32); 5]>,
+    /// By the hash of a three-character suffix: the ranges of the features in `SUFFIX3_ROLES`.
+    suffix3: FastMap<u64, [(u32, u32); 3]>,
+    /// One table per kind in `SINGLE_KINDS`, by the hash of the value.
+    singles: [FastMap<u64, (u32, u32)>; 5],
     /// The `t1w` features (previous tag and this word), keyed by the previous tag's index (`NT`
     /// for the sentence start) and the word's hash, kept apart so that tagging hashes each word
     /// once, and skips the lookup for a word that has no such feature.
     t1w: FastMap<(u8, u64), (u32, u32)>,
     t1w_words: std::collections::HashSet<u64, rustc_hash::FxBuildHasher>,
+}
+
+/// Feature kinds whose value is a word, in the order of `HashedWeights::words`.
+const WORD_ROLES: [&str; 5] = ["w", "w-1", "w-2", "w+1", "w+2"];
+/// Feature kinds whose value is a three-character suffix.
+const SUFFIX3_ROLES: [&str; 3] = ["s3", "s3-1", "s3+1"];
+/// Other kinds filed by value: suffixes of one, two and four characters, first character, shape.
+const SINGLE_KINDS: [&str; 5] = ["s1", "s2", "s4", "p1", "sh"];
+
+/// Where a feature is filed.
+enum Filed {
+    T1w(u8, u64),
+    Word(usize, u64),
+    Suffix3(usize, u64),
+    Single(usize, u64),
+    Other(u64),
+}
+
+fn filed(name: &str) -> Filed {
+    if let Some((prev, word)) = t1w_key(name) {
+        return Filed::T1w(prev, word);
+    }
+    if let Some((kind, value)) = name.split_once(' ') {
+        let h = || feature_hash(value);
+        if let Some(r) = WORD_ROLES.iter().position(|k| *k == kind) {
+            return Filed::Word(r, h());
+        }
+        if let Some(r) = SUFFIX3_ROLES.iter().position(|k| *k == kind) {
+            return Filed::Suffix3(r, h());
+        }
+        if let Some(r) = SINGLE_KINDS.iter().position(|k| *k == kind) {
+            return Filed::Single(r, h());
+        }
+    }
+    Filed::Other(feature_hash(name))
 }
 
 impl HashedWeights {
@@ -297,32 +365,49 @@ impl HashedWeights {
     /// File the feature `name`, whose pairs are `pairs[start..]`.
     fn insert(&mut self, name: &str, start: u32) {
         let range = (start, self.pairs.len() as u32);
-        match t1w_key(name) {
-            Some(key) => {
-                self.t1w.insert(key, range);
-                self.t1w_words.insert(key.1);
+        match filed(name) {
+            Filed::T1w(prev, word) => {
+                self.t1w.insert((prev, word), range);
+                self.t1w_words.insert(word);
             }
-            None => {
-                self.ranges.insert(feature_hash(name), range);
+            Filed::Word(r, h) => self.words.entry(h).or_default()[r] = range,
+            Filed::Suffix3(r, h) => self.suffix3.entry(h).or_default()[r] = range,
+            Filed::Single(k, h) => {
+                self.singles[k].insert(h, range);
+            }
+            Filed::Other(h) => {
+                self.ranges.insert(h, range);
             }
         }
     }
 
+    fn range(&self, (a, b): (u32, u32)) -> &[(u8, f32)] {
+        &self.pairs[a as usize..b as usize]
+    }
+
+    /// The weights of a feature of kind `SINGLE_KINDS[kind]` with this value.
+    fn single(&self, kind: usize, value: &str) -> &[(u8, f32)] {
+        self.singles[kind]
+            .get(&feature_hash(value))
+            .map_or(&[], |&r| self.range(r))
+    }
+
     /// The weights of any feature, by name.
     fn get(&self, feature: &str) -> &[(u8, f32)] {
-        if let Some((prev, word)) = t1w_key(feature) {
-            return self.t1w(prev as usize, word);
-        }
-        match self.ranges.get(&feature_hash(feature)) {
-            Some(&(a, b)) => &self.pairs[a as usize..b as usize],
-            None => &[],
-        }
+        let r = match filed(feature) {
+            Filed::T1w(prev, word) => return self.t1w(prev as usize, word),
+            Filed::Word(r, h) => self.words.get(&h).map(|w| w[r]),
+            Filed::Suffix3(r, h) => self.suffix3.get(&h).map(|s| s[r]),
+            Filed::Single(k, h) => self.singles[k].get(&h).copied(),
+            Filed::Other(h) => self.ranges.get(&h).copied(),
+        };
+        r.map_or(&[], |r| self.range(r))
     }
 
     /// The `t1w` weights for a previous tag (`NT` at the start) and a word hash.
     fn t1w(&self, prev: usize, word: u64) -> &[(u8, f32)] {
         match self.t1w.get(&(prev as u8, word)) {
-            Some(&(a, b)) => &self.pairs[a as usize..b as usize],
+            Some(&r) => self.range(r),
             None => &[],
         }
     }
@@ -523,23 +608,22 @@ impl Tagger {
 
     fn tag_with(&self, p: &Prepared, cache: &mut WordCache, words: &[&str]) -> Vec<Tag> {
         let n = words.len();
-        let mut buf = String::with_capacity(64);
         // Slots are gathered before scoring, so the cache must not start over midway: it
         // starts over first if the sentence might not fit. A sentence too long for that gets
         // a cache of its own.
-        let mut own = WordCache::default();
+        let mut own = WordCache {
+            unbounded: true,
+            ..WordCache::default()
+        };
         let cache = if n <= WORD_CACHE_WORDS / 2 {
-            if cache.index.len() + n > WORD_CACHE_WORDS {
+            if cache.words.len() + n > WORD_CACHE_WORDS {
                 cache.clear();
             }
             cache
         } else {
             &mut own
         };
-        let slots: Vec<usize> = words
-            .iter()
-            .map(|w| cache.slot(self, p, w, &mut buf))
-            .collect();
+        let slots: Vec<usize> = words.iter().map(|w| cache.slot(self, p, w)).collect();
         let vectors = &cache.vectors;
         let role = |i: usize, r: usize| {
             let at = slots[i] * ROLES * NT + r * NT;
@@ -934,9 +1018,29 @@ mod tests {
             same as f64 >= total as f64 * 0.9999,
             "{same} of {total} tags agree"
         );
-        let long: Vec<String> = (0..5000).map(|i| format!("word{i}")).collect();
+        // More distinct words than the cache holds: the long sentence's own cache never starts over.
+        let long: Vec<String> = (0..9000).map(|i| format!("word{i}")).collect();
         let words: Vec<&str> = long.iter().map(String::as_str).collect();
         assert_eq!(t.tag_uncached(&words), tag_reference(t, &words));
+    }
+
+    /// A word whose hash another word holds in the cache gets its own vectors, not the other's.
+    #[test]
+    fn word_cache_survives_a_hash_collision() {
+        let t = Tagger::load_builtin();
+        let p = t.prepared();
+        let mut cache = WordCache::default();
+        let storm = cache.slot(t, p, "storm");
+        // Pretend "rained" hashes like "storm".
+        cache.index.insert(feature_hash("rained"), storm as u32);
+        let rained = cache.slot(t, p, "rained");
+        assert_ne!(rained, storm);
+        let mut fresh = WordCache::default();
+        let alone = fresh.slot(t, p, "rained");
+        let vecs =
+            |c: &WordCache, i: usize| c.vectors[i * ROLES * NT..(i + 1) * ROLES * NT].to_vec();
+        assert_eq!(vecs(&cache, rained), vecs(&fresh, alone));
+        assert_eq!(cache.slot(t, p, "storm"), storm);
     }
 
     /// The feature strings are the model's keys: a change here silently changes every tag.
