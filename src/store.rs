@@ -641,7 +641,7 @@ impl StoreWriter {
 
     /// The entry the store has for a path.
     pub fn known(&self, path: &str) -> Option<&FileEntry> {
-        self.old.files.iter().find(|f| f.path == path)
+        self.entries.get(path)
     }
 
     /// Keep a file's entry with new metadata (its content was unchanged).
