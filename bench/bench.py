@@ -21,6 +21,8 @@ HEARSAY = os.path.join(ROOT, "target", "release", "hearsay")
 # CPU seconds (user + system) of each timed run, in order: on a shared machine wall time
 # includes waiting for a core, CPU time does not.
 CPU = []
+# Small files for the re-scan scaling row (a quarter of them first, then all).
+SMALL_FILES = 20000
 
 
 def timed(cmd, stdout=subprocess.DEVNULL, cwd=None):
@@ -110,6 +112,27 @@ def main():
             runs, [HEARSAY, "-q", "-j2", "--store", store, "--format", "json", "scan", corpus],
             setup=touch)
         m["rescan_1pct"]["files_changed"] = len(touched)
+        # Many small files: what a re-scan costs per file must not grow with their number (it
+        # once did: each file was looked up in the manifest by a linear search).
+        small = os.path.join(tmp, "small")
+        snippets = []
+        for p in files[:200]:
+            with open(p, encoding="utf-8", errors="replace") as f:
+                snippets.append(f.read(400))
+        made = 0
+        for n in (SMALL_FILES // 4, SMALL_FILES):
+            for i in range(made, n):
+                d = os.path.join(small, f"d{i // 1000:03d}")
+                os.makedirs(d, exist_ok=True)
+                with open(os.path.join(d, f"f{i:06d}.txt"), "w") as f:
+                    f.write(snippets[i % len(snippets)])
+            made = n
+            st = os.path.join(tmp, f"store-small-{n}")
+            scan_small = [HEARSAY, "-q", "-j2", "--store", st, "--format", "json", "scan", small]
+            subprocess.run(scan_small, capture_output=True, check=True)
+            m[f"rescan_unchanged_{n}_files"] = median_of(runs, scan_small)
+            m[f"rescan_unchanged_{n}_files"]["files"] = n
+        shutil.rmtree(small)
         # Pair: the most-stated relation, warm in one process and as a cold process.
         top = subprocess.run([HEARSAY, "--store", store, "--format", "json", "top", "-n", "1"],
                              capture_output=True, text=True, check=True).stdout
@@ -127,7 +150,7 @@ def main():
         m["python_re"] = median_of(runs, [sys.executable, os.path.join(ROOT, "bench", "baseline.py"),
                                           cues, corpus])
         for k, v in m.items():
-            if "seconds" in v and v["seconds"] > 0:
+            if "seconds" in v and v["seconds"] > 0 and "files" not in v:
                 v["mb_per_s"] = round(mb / v["seconds"], 2)
                 v["sentences_per_s"] = round(sentences / v["seconds"])
                 v["mb_per_cpu_s"] = round(mb / max(v["cpu_seconds"], 1e-3), 2)
@@ -140,6 +163,9 @@ def main():
             "extract_j2_speedup": round(ex1 / ex2, 2),
             "rescan_unchanged_over_fresh": round(m["rescan_unchanged"]["seconds"] / fresh, 4),
             "rescan_1pct_over_fresh": round(m["rescan_1pct"]["seconds"] / fresh, 4),
+            "rescan_per_file_20k_over_5k": round(
+                (m[f"rescan_unchanged_{SMALL_FILES}_files"]["seconds"] / SMALL_FILES)
+                / (m[f"rescan_unchanged_{SMALL_FILES // 4}_files"]["seconds"] / (SMALL_FILES // 4)), 2),
             "extract_rss_4x_over_1x": round(m["extract_j1_4x"]["peak_rss_mb"] / m["extract_j1"]["peak_rss_mb"], 2),
         }
         targets = {
@@ -159,13 +185,13 @@ def main():
                     "targets": targets})
         print(f"{res['corpus']}: {len(files)} files, {mb:.1f} MB, {sentences} sentences, "
               f"{claims} claims; median of {runs}")
-        print(f"{'measure':<18} {'seconds':>8} {'CPU s':>7} {'MB/s':>8} {'sent/s':>9} {'RSS MB':>7}")
+        print(f"{'measure':<28} {'seconds':>8} {'CPU s':>7} {'MB/s':>8} {'sent/s':>9} {'RSS MB':>7}")
         for k, v in m.items():
             if "seconds" in v:
-                print(f"{k:<18} {v['seconds']:>8.2f} {v['cpu_seconds']:>7.2f} {v.get('mb_per_s', 0):>8.1f} "
+                print(f"{k:<28} {v['seconds']:>8.2f} {v['cpu_seconds']:>7.2f} {v.get('mb_per_s', 0):>8.1f} "
                       f"{v.get('sentences_per_s', 0):>9} {v['peak_rss_mb']:>7.0f}")
             else:
-                print(f"{k:<18} {v['median_ms']:>8.1f} ms {'':>25} {v['peak_rss_mb']:>7.0f}")
+                print(f"{k:<28} {v['median_ms']:>8.1f} ms {'':>25} {v['peak_rss_mb']:>7.0f}")
         for k, v in ratios.items():
             print(f"{k:<32} {v}")
         for k, v in targets.items():
