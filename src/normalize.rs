@@ -18,9 +18,34 @@ pub fn stem(word: &str) -> std::borrow::Cow<'_, str> {
         .stem(word)
 }
 
+/// Words whose stems each thread remembers for keys before it starts over (a few MB at most).
+const STEM_CACHE_WORDS: usize = 50_000;
+
+/// Append the stem of `word` to `out`, remembering it: spans repeat their words, and stemming
+/// was most of the cost of making keys.
+fn push_stem(word: &str, out: &mut String) {
+    thread_local! {
+        static STEMS: std::cell::RefCell<HashMap<String, String, rustc_hash::FxBuildHasher>> =
+            std::cell::RefCell::new(HashMap::default());
+    }
+    STEMS.with(|c| {
+        let mut c = c.borrow_mut();
+        if let Some(s) = c.get(word) {
+            out.push_str(s);
+            return;
+        }
+        let s = stem(word).into_owned();
+        out.push_str(&s);
+        if c.len() >= STEM_CACHE_WORDS {
+            c.clear();
+        }
+        c.insert(word.to_string(), s);
+    });
+}
+
 /// Turns surface text into variable keys.
 pub struct Normalizer {
-    dropped: HashSet<String>,
+    dropped: HashSet<String, rustc_hash::FxBuildHasher>,
 }
 
 impl std::fmt::Debug for Normalizer {
@@ -33,7 +58,8 @@ impl std::fmt::Debug for Normalizer {
 
 impl Normalizer {
     pub fn new(lexicon: &Lexicon) -> Self {
-        let mut dropped: HashSet<String> = lexicon.determiners.iter().cloned().collect();
+        let mut dropped: HashSet<String, rustc_hash::FxBuildHasher> =
+            lexicon.determiners.iter().cloned().collect();
         dropped.extend(lexicon.stopwords.iter().cloned());
         Normalizer { dropped }
     }
@@ -60,7 +86,7 @@ impl Normalizer {
             if !out.is_empty() {
                 out.push(' ');
             }
-            out.push_str(&stem(&w));
+            push_stem(&w, &mut out);
         }
         out
     }
