@@ -106,33 +106,36 @@ pub struct CueSpec {
     pub origin: (PathBuf, usize),
 }
 
+/// A set of words, hashed with Fx: the span finder asks these sets about nearly every token.
+pub type WordSet = HashSet<String, rustc_hash::FxBuildHasher>;
+
 /// Word lists used around a cue match (see `patterns/lexicon.toml`).
 #[derive(Debug, Clone, Default)]
 pub struct Lexicon {
-    pub determiners: HashSet<String>,
-    pub clause_breaks: HashSet<String>,
-    pub relatives: HashSet<String>,
-    pub auxiliaries: HashSet<String>,
-    pub prepositions: HashSet<String>,
-    pub reporting_verbs: HashSet<String>,
+    pub determiners: WordSet,
+    pub clause_breaks: WordSet,
+    pub relatives: WordSet,
+    pub auxiliaries: WordSet,
+    pub prepositions: WordSet,
+    pub reporting_verbs: WordSet,
     pub max_words: usize,
-    pub fillers: HashSet<String>,
-    pub not_adverbs: HashSet<String>,
+    pub fillers: WordSet,
+    pub not_adverbs: WordSet,
     /// Sentence adverbs that may stand, alone or between commas, between a subject and its
     /// verb ("the increase, though, caused").
-    pub parenthetical: HashSet<String>,
+    pub parenthetical: WordSet,
     pub hedges: Vec<Vec<String>>,
     pub negators: Vec<Vec<String>>,
     pub conditionals: Vec<Vec<String>>,
-    pub sign_increase: HashSet<String>,
-    pub sign_decrease: HashSet<String>,
-    pub increase_nouns: HashSet<String>,
-    pub decrease_nouns: HashSet<String>,
-    pub change_links: HashSet<String>,
-    pub stopwords: HashSet<String>,
+    pub sign_increase: WordSet,
+    pub sign_decrease: WordSet,
+    pub increase_nouns: WordSet,
+    pub decrease_nouns: WordSet,
+    pub change_links: WordSet,
+    pub stopwords: WordSet,
     /// Nouns that name an outcome (pain, damage, heat), with their plurals: the heads that a cue
     /// marked `outcome_effect` needs.
-    pub outcomes: HashSet<String>,
+    pub outcomes: WordSet,
 }
 
 /// Everything loaded from one pattern folder.
@@ -652,7 +655,7 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
     let set = |v: Vec<String>| {
         v.into_iter()
             .map(|s| s.to_lowercase())
-            .collect::<HashSet<_>>()
+            .collect::<WordSet>()
     };
     let phrases = |v: Vec<String>| {
         v.into_iter()
