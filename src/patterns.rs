@@ -652,11 +652,7 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
         let line = e.span().map(|s| line_of(text, s.start)).unwrap_or(0);
         invalid(path, line, e.message().to_string())
     })?;
-    let set = |v: Vec<String>| {
-        v.into_iter()
-            .map(|s| s.to_lowercase())
-            .collect::<WordSet>()
-    };
+    let set = |v: Vec<String>| v.into_iter().map(|s| s.to_lowercase()).collect::<WordSet>();
     let phrases = |v: Vec<String>| {
         v.into_iter()
             .map(|s| {
