@@ -242,14 +242,23 @@ struct WordCache {
     index: FastMap<u64, u32>,
     /// The raw words of the slots, back to back, and per slot its range in them.
     raw: String,
-    /// Per slot: its word's range in `raw`, its tag when the tag dictionary answers it, and
-    /// its hash when the word has `t1w` features.
-    words: Vec<((u32, u32), Option<Tag>, Option<u64>)>,
+    /// Per slot, what is known of its word.
+    words: Vec<Slot>,
     /// Per slot, `ROLES * NT` scores.
     vectors: Vec<f32>,
 }
 
 const WORD_CACHE_WORDS: usize = 8192;
+
+/// One word of the cache.
+struct Slot {
+    /// The raw word's range in `WordCache::raw`.
+    raw: (u32, u32),
+    /// Its tag, when the tag dictionary answers it.
+    known: Option<Tag>,
+    /// Its hash, when the word has `t1w` features.
+    t1w: Option<u64>,
+}
 
 impl WordCache {
     /// This word's slot, computing its role vectors if needed.
@@ -257,7 +266,7 @@ impl WordCache {
         let h = feature_hash(raw);
         let mut collided = false;
         if let Some(&i) = self.index.get(&h) {
-            let (a, b) = self.words[i as usize].0;
+            let (a, b) = self.words[i as usize].raw;
             if &self.raw[a as usize..b as usize] == raw {
                 return i as usize;
             }
@@ -276,7 +285,11 @@ impl WordCache {
         let hash = Some(wh).filter(|h| p.weights.t1w_words.contains(h));
         let at = self.raw.len() as u32;
         self.raw.push_str(raw);
-        self.words.push(((at, self.raw.len() as u32), known, hash));
+        self.words.push(Slot {
+            raw: (at, self.raw.len() as u32),
+            known,
+            t1w: hash,
+        });
         if !collided {
             self.index.insert(h, i as u32);
         }
@@ -632,7 +645,11 @@ impl Tagger {
         let mut out: Vec<Tag> = Vec::with_capacity(n);
         let mut scores = [0f32; NT];
         for i in 0..n {
-            let (_, known, t1w_word) = &cache.words[slots[i]];
+            let Slot {
+                known,
+                t1w: t1w_word,
+                ..
+            } = &cache.words[slots[i]];
             if let Some(t) = known {
                 out.push(*t);
                 continue;
