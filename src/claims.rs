@@ -266,7 +266,9 @@ const PP_MAX_WORDS: usize = 7;
 impl Extractor {
     pub fn new(set: &PatternSet) -> Result<Extractor, String> {
         let lexicon = set.lexicon.clone();
-        let cues = CueSet::new(set)?;
+        // The tagger's model loads while the cues compile.
+        let (cues, _) = rayon::join(|| CueSet::new(set), Tagger::load_builtin);
+        let cues = cues?;
         let normalizer = Normalizer::new(&lexicon);
         let single = |v: &Vec<Vec<String>>| {
             v.iter()

@@ -284,12 +284,24 @@ fn is_word_byte(b: u8) -> bool {
 impl CueSet {
     /// Compile every cue of a pattern set.
     pub fn new(set: &PatternSet) -> Result<CueSet, String> {
-        let mut cues = Vec::with_capacity(set.cues.len());
-        for spec in &set.cues {
-            let id = spec.id.clone();
-            let origin = format!("{}:{}", spec.origin.0.display(), spec.origin.1);
-            cues.push(compile(spec.clone()).map_err(|e| format!("{origin}: cue '{id}': {e}"))?);
-        }
+        use rayon::prelude::*;
+        // Compiling the regexes is most of the cost of starting up (and of a small re-scan):
+        // cues compile in parallel, and the first error in file order is the one reported.
+        let compiled: Vec<Result<CompiledCue, String>> = set
+            .cues
+            .par_iter()
+            .map(|spec| {
+                compile(spec.clone()).map_err(|e| {
+                    format!(
+                        "{}:{}: cue '{}': {e}",
+                        spec.origin.0.display(),
+                        spec.origin.1,
+                        spec.id
+                    )
+                })
+            })
+            .collect();
+        let cues = compiled.into_iter().collect::<Result<Vec<_>, _>>()?;
         let mut anchors: Vec<String> = Vec::new();
         let mut anchor_cues: Vec<Vec<usize>> = Vec::new();
         for (ci, c) in cues.iter().enumerate() {

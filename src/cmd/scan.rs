@@ -15,7 +15,6 @@ use std::collections::BTreeSet;
 use std::io::IsTerminal;
 use std::path::Path;
 use std::process::ExitCode;
-use std::sync::OnceLock;
 use std::time::{Instant, UNIX_EPOCH};
 
 #[derive(Args, Debug)]
@@ -70,41 +69,28 @@ fn mtime_ns(m: &std::fs::Metadata) -> u128 {
         .unwrap_or(0)
 }
 
-/// The extractor, built by the first worker that reads a file: compiling the cues and loading
-/// the tagger is most of the cost of a re-scan that finds nothing changed.
-struct LazyExtractor<'a> {
-    global: &'a Global,
-    cell: OnceLock<Result<Extractor, String>>,
+/// A file whose content is new or changed: what reading it needs.
+struct ToRead {
+    size: u64,
+    mtime: u128,
+    hash: String,
+    /// Standard input, read once to hash it.
+    stdin_bytes: Option<Vec<u8>>,
 }
 
-impl LazyExtractor<'_> {
-    fn get(&self) -> Result<&Extractor, &str> {
-        self.cell
-            .get_or_init(|| self.global.extractor().map_err(|e| format!("{e:#}")))
-            .as_ref()
-            .map_err(String::as_str)
-    }
-
-    /// The build error, if a build was tried and failed.
-    fn failed(&self) -> Option<&str> {
-        self.cell
-            .get()
-            .and_then(|r| r.as_ref().err())
-            .map(String::as_str)
-    }
+/// What the cheap checks found for one file.
+enum Checked {
+    Done(Outcome),
+    Read(ToRead),
 }
 
-fn process(
-    ex: &LazyExtractor,
-    opts: &corpus::ReadOptions,
-    input: &Input,
-    known: Option<&FileEntry>,
-) -> Outcome {
+/// Size, time and content hash against what the store knows: unchanged files stop here.
+fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
     let fail = |reason: String| {
-        Outcome::Failed(Skipped {
+        Checked::Done(Outcome::Failed(Skipped {
             path: input.label.clone(),
             reason,
-        })
+        }))
     };
     let (size, mtime) = if input.is_stdin() {
         (0, 0)
@@ -116,7 +102,7 @@ fn process(
     };
     if let Some(k) = known {
         if !input.is_stdin() && k.size == size && k.mtime_ns == mtime && mtime != 0 {
-            return Outcome::Unchanged(k.clone());
+            return Checked::Done(Outcome::Unchanged(k.clone()));
         }
     }
     // Files are hashed by streaming them, and read again only when the content changed, so
@@ -141,17 +127,23 @@ fn process(
     let hash = hash.to_hex().to_string();
     if let Some(k) = known {
         if k.hash == hash {
-            return Outcome::Unchanged(FileEntry {
+            return Checked::Done(Outcome::Unchanged(FileEntry {
                 size,
                 mtime_ns: mtime,
                 ..k.clone()
-            });
+            }));
         }
     }
-    let ex = match ex.get() {
-        Ok(ex) => ex,
-        Err(e) => return fail(e.to_string()),
-    };
+    Checked::Read(ToRead {
+        size,
+        mtime,
+        hash,
+        stdin_bytes,
+    })
+}
+
+/// Read a new or changed file through the pipeline.
+fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) -> Outcome {
     let mut warnings = Vec::new();
     let mut result = FileResult::default();
     let (mut documents, mut text_bytes) = (0u64, 0u64);
@@ -168,18 +160,21 @@ fn process(
                 .push((id.clone(), s.line as u64, s.start as u64, collapse(s.text)));
         }
     };
-    let read = match &stdin_bytes {
+    let done = match &r.stdin_bytes {
         Some(b) => corpus::read_bytes_into(input, b, opts, &mut warnings, &mut take),
         None => corpus::read_input(input, opts, &mut warnings, &mut take),
     };
-    if let Err(e) = read {
-        return fail(e.to_string());
+    if let Err(e) = done {
+        return Outcome::Failed(Skipped {
+            path: input.label.clone(),
+            reason: e.to_string(),
+        });
     }
     result.entry = Some(FileEntry {
         path: input.label.clone(),
-        size: if input.is_stdin() { text_bytes } else { size },
-        mtime_ns: mtime,
-        hash,
+        size: if input.is_stdin() { text_bytes } else { r.size },
+        mtime_ns: r.mtime,
+        hash: r.hash,
         documents,
         sentences: result.sentences.len() as u64,
         claims: 0,
@@ -194,10 +189,9 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     let started = Instant::now();
     check_paths(&a.paths)?;
     let set = g.pattern_set()?;
-    let ex = LazyExtractor {
-        global: g,
-        cell: OnceLock::new(),
-    };
+    // The extractor (cues compiled, tagger loaded) is built when the first file needs reading:
+    // it is most of the cost of a re-scan that finds nothing changed.
+    let mut ex: Option<Extractor> = None;
     let opts = g.read.options();
     let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
         .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
@@ -232,15 +226,25 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
             .iter()
             .map(|i| writer.known(&i.label).cloned())
             .collect();
-        let outcomes: Vec<Outcome> = chunk
+        let checked: Vec<Checked> = chunk
             .par_iter()
             .zip(known.par_iter())
-            .map(|(i, k)| process(&ex, &opts, i, k.as_ref()))
+            .map(|(i, k)| check(i, k.as_ref()))
             .collect();
-        // Nothing of this scan is committed: the store stays as it was.
-        if let Some(e) = ex.failed() {
-            anyhow::bail!("{e}");
+        if ex.is_none() && checked.iter().any(|c| matches!(c, Checked::Read(_))) {
+            // Built here, outside the workers, so that it can compile on every core. If it
+            // fails, nothing of this scan is committed: the store stays as it was.
+            ex = Some(g.extractor()?);
         }
+        let outcomes: Vec<Outcome> = chunk
+            .par_iter()
+            .zip(checked.into_par_iter())
+            .map(|(i, c)| match (c, &ex) {
+                (Checked::Done(o), _) => o,
+                (Checked::Read(r), Some(ex)) => read(ex, &opts, i, r),
+                (Checked::Read(_), None) => unreachable!("the extractor is built before reading"),
+            })
+            .collect();
         for o in outcomes {
             match o {
                 Outcome::Unchanged(e) => {
