@@ -18,8 +18,8 @@ pub fn stem(word: &str) -> std::borrow::Cow<'_, str> {
         .stem(word)
 }
 
-/// Words whose stems each thread remembers for keys before it starts over (a few MB at most).
-const STEM_CACHE_WORDS: usize = 50_000;
+/// Words whose stems each thread remembers for keys before it starts over (about 1 MB).
+const STEM_CACHE_WORDS: usize = 10_000;
 
 /// Append the stem of `word` to `out`, remembering it: spans repeat their words, and stemming
 /// was most of the cost of making keys.
