@@ -255,7 +255,11 @@ impl Global {
     }
 
     pub fn extractor(&self) -> Result<Extractor> {
-        let set = self.pattern_set()?;
+        self.extractor_for(&self.pattern_set()?)
+    }
+
+    /// The extractor for a pattern set already loaded by [`Global::pattern_set`].
+    pub fn extractor_for(&self, set: &PatternSet) -> Result<Extractor> {
         // A pattern folder may carry its own confidence model.
         if let Some(f) = self.patterns.as_ref().map(|d| d.join("confidence.toml")) {
             if f.exists() {
@@ -266,7 +270,7 @@ impl Global {
                 let _ = hearsay::confidence::install(m);
             }
         }
-        Extractor::new(&set)
+        Extractor::new(set)
             .map_err(|e| anyhow::anyhow!(e))
             .context("cannot compile the cue patterns")
     }

@@ -84,6 +84,44 @@ enum Checked {
     Read(ToRead),
 }
 
+/// Files whose reading may wait for others, so that they are read in parallel.
+const READ_BATCH: usize = 64;
+
+/// Where the outcome of each file goes: the store, the summary, the warnings.
+struct Log<'a> {
+    g: &'a Global,
+    progress: &'a ProgressBar,
+    summary: &'a mut Summary,
+    failed: &'a mut Vec<Skipped>,
+}
+
+impl Log<'_> {
+    fn record(&mut self, o: Outcome, writer: &mut StoreWriter) -> Result<()> {
+        match o {
+            Outcome::Unchanged(e) => {
+                self.summary.files_unchanged += 1;
+                writer.touch(e);
+            }
+            Outcome::Changed(r) => {
+                self.summary.files_read += 1;
+                if let Some(e) = &r.entry {
+                    for w in &e.warnings {
+                        self.progress.suspend(|| self.g.warn(w));
+                    }
+                }
+                writer.put(*r).context("cannot write to the store")?;
+            }
+            Outcome::Failed(s) => {
+                self.progress
+                    .suspend(|| self.g.warn(&format!("{}: {}", s.path, s.reason)));
+                self.failed.push(s);
+            }
+        }
+        self.progress.inc(1);
+        Ok(())
+    }
+}
+
 /// Size, time and content hash against what the store knows: unchanged files stop here.
 fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
     let fail = |reason: String| {
@@ -191,7 +229,6 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     let set = g.pattern_set()?;
     // The extractor (cues compiled, tagger loaded) is built when the first file needs reading:
     // it is most of the cost of a re-scan that finds nothing changed.
-    let mut ex: Option<Extractor> = None;
     let opts = g.read.options();
     let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
         .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
@@ -221,7 +258,18 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         ProgressBar::hidden()
     };
     let mut failed = Vec::new();
-    for chunk in inputs.chunks(64) {
+    // Files to read wait here across chunks, so that a re-scan that changed one file in a
+    // hundred still reads them in parallel; at most `READ_BATCH` wait.
+    let mut pending: Vec<(&Input, ToRead)> = Vec::new();
+    let mut ex: Option<Extractor> = None;
+    let mut log = Log {
+        g,
+        progress: &progress,
+        summary: &mut summary,
+        failed: &mut failed,
+    };
+    let inputs_len = inputs.len();
+    for (n, chunk) in inputs.chunks(64).enumerate() {
         let known: Vec<Option<FileEntry>> = chunk
             .iter()
             .map(|i| writer.known(&i.label).cloned())
@@ -231,41 +279,28 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
             .zip(known.par_iter())
             .map(|(i, k)| check(i, k.as_ref()))
             .collect();
-        if ex.is_none() && checked.iter().any(|c| matches!(c, Checked::Read(_))) {
-            // Built here, outside the workers, so that it can compile on every core. If it
-            // fails, nothing of this scan is committed: the store stays as it was.
-            ex = Some(g.extractor()?);
-        }
-        let outcomes: Vec<Outcome> = chunk
-            .par_iter()
-            .zip(checked.into_par_iter())
-            .map(|(i, c)| match (c, &ex) {
-                (Checked::Done(o), _) => o,
-                (Checked::Read(r), Some(ex)) => read(ex, &opts, i, r),
-                (Checked::Read(_), None) => unreachable!("the extractor is built before reading"),
-            })
-            .collect();
-        for o in outcomes {
-            match o {
-                Outcome::Unchanged(e) => {
-                    summary.files_unchanged += 1;
-                    writer.touch(e);
-                }
-                Outcome::Changed(r) => {
-                    summary.files_read += 1;
-                    if let Some(e) = &r.entry {
-                        for w in &e.warnings {
-                            progress.suspend(|| g.warn(w));
-                        }
-                    }
-                    writer.put(*r).context("cannot write to the store")?;
-                }
-                Outcome::Failed(s) => {
-                    progress.suspend(|| g.warn(&format!("{}: {}", s.path, s.reason)));
-                    failed.push(s);
-                }
+        for (i, c) in chunk.iter().zip(checked) {
+            match c {
+                Checked::Done(o) => log.record(o, &mut writer)?,
+                Checked::Read(r) => pending.push((i, r)),
             }
-            progress.inc(1);
+        }
+        let last = (n + 1) * 64 >= inputs_len;
+        if pending.len() >= READ_BATCH || (last && !pending.is_empty()) {
+            // Built here, outside the workers, so that it compiles on every core. If it fails,
+            // nothing of this scan is committed: the store stays as it was.
+            let built = match ex.take() {
+                Some(e) => e,
+                None => g.extractor_for(&set)?,
+            };
+            let outcomes: Vec<Outcome> = std::mem::take(&mut pending)
+                .into_par_iter()
+                .map(|(i, r)| read(&built, &opts, i, r))
+                .collect();
+            ex = Some(built);
+            for o in outcomes {
+                log.record(o, &mut writer)?;
+            }
         }
     }
     progress.finish_and_clear();
