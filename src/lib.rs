@@ -35,6 +35,8 @@ pub mod spaneval;
 pub mod stats;
 pub mod store;
 pub mod tagger;
+#[cfg(test)]
+mod testdata;
 pub mod weight;
 
 pub use model::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};

@@ -951,22 +951,15 @@ mod tests {
     /// "internal" whole where the keys' Porter2 gives "organ" and "intern".
     #[test]
     fn key_words_are_index_terms_on_elife_text() {
-        let dir = std::env::var_os("HEARSAY_SHARED_DATA")
-            .map(PathBuf::from)
-            .unwrap_or_else(|| Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/data"))
-            .join("elife-articles/articles");
-        let Ok(entries) = fs::read_dir(&dir) else {
-            eprintln!("skipped: {} not found", dir.display());
+        let articles = crate::testdata::elife_articles(150);
+        if articles.is_empty() {
             return;
-        };
+        }
         let norm = crate::normalize::Normalizer::new(
             &crate::patterns::PatternSet::builtin().unwrap().lexicon,
         );
-        let mut paths: Vec<PathBuf> = entries.flatten().map(|e| e.path()).collect();
-        paths.sort();
         let (mut lines, mut words) = (0usize, 0usize);
-        for path in paths.iter().take(150) {
-            let text = fs::read_to_string(path).unwrap();
+        for (path, text) in &articles {
             for line in text.lines().filter(|l| !l.trim().is_empty()) {
                 lines += 1;
                 let terms: BTreeSet<String> = index_terms(line).into_iter().collect();

@@ -1006,8 +1006,8 @@ mod tests {
     #[test]
     fn fast_tagging_agrees_with_the_feature_strings() {
         let t = Tagger::load_builtin();
-        let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("../shared/data/pos-treebank/ud-english-ewt/en_ewt-ud-dev.conllu");
+        let path = crate::testdata::shared("pos-treebank/ud-english-ewt/en_ewt-ud-dev.conllu")
+            .unwrap_or_default();
         let mut sentences: Vec<Vec<String>> = std::fs::read_to_string(path)
             .map(|text| read_conllu(&text))
             .unwrap_or_default()

@@ -228,18 +228,13 @@ mod tests {
     /// articles; ../shared/data/elife-articles/SOURCE.txt), flattened as the splitter does.
     #[test]
     fn agrees_on_elife_lines() {
-        let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("../shared/data/elife-articles/articles");
-        let Ok(entries) = std::fs::read_dir(&dir) else {
-            eprintln!("skipped: {} not found", dir.display());
+        let articles = crate::testdata::elife_articles(120);
+        if articles.is_empty() {
             return;
-        };
+        }
         let (mut lines, mut fast_lines) = (0usize, 0usize);
         let mut out = Vec::new();
-        for path in entries.flatten().map(|e| e.path()).take(120) {
-            let Ok(text) = std::fs::read_to_string(&path) else {
-                continue;
-            };
+        for (path, text) in &articles {
             for line in text.lines().filter(|l| !l.trim().is_empty()) {
                 lines += 1;
                 out.clear();
@@ -249,7 +244,7 @@ mod tests {
                 assert_eq!(fast(line), reference(line), "{}: {line:?}", path.display());
             }
         }
-        assert!(lines > 1000, "too few lines in {}", dir.display());
+        assert!(lines > 1000, "too few lines: {lines}");
         eprintln!("eLife: {fast_lines} of {lines} lines on the fast path");
     }
 }
