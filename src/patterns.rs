@@ -332,8 +332,12 @@ pub fn parse_cue_file(
             ("reject_after", &raw.reject_after),
             ("reject_before", &raw.reject_before),
         ] {
+            // Parsed, not compiled: the cue matcher compiles it once (a regex too large to
+            // compile is reported there, also with its file and line).
             if let Some(re) = re {
-                regex::Regex::new(re).map_err(|e| err(format!("{name}: invalid regex: {e}")))?;
+                regex_syntax::Parser::new()
+                    .parse(re)
+                    .map_err(|e| err(format!("{name}: invalid regex: {e}")))?;
             }
         }
         if raw.examples.is_empty() {
@@ -807,6 +811,23 @@ mod tests {
         .unwrap_err()
         .to_string();
         assert!(err.starts_with("y.toml:3:"), "{err}");
+    }
+
+    /// A reject rule that is not a regex is an error naming the file, the cue's line and the
+    /// key, found when the file loads (before anything is compiled).
+    #[test]
+    fn bad_reject_regex_names_file_line_and_key() {
+        let file =
+            "[[cue]]\nid = \"a\"\nfamily = \"causal-verb\"\npattern = \"CAUSE cause~ EFFECT\"\n\
+kind = \"causal\"\npolarity = \"unsigned\"\nreject_before = '(?:the'\n\
+examples = [{ text = \"Rain causes floods.\", cause = \"rain\", effect = \"floods\" }]\n";
+        let err = parse_cue_file(Path::new("z.toml"), file, &irr())
+            .unwrap_err()
+            .to_string();
+        assert!(err.starts_with("z.toml:1:"), "{err}");
+        assert!(err.contains("reject_before: invalid regex"), "{err}");
+        let fixed = file.replace("'(?:the'", "'(?:the)$'");
+        assert!(parse_cue_file(Path::new("z.toml"), &fixed, &irr()).is_ok());
     }
 
     #[test]
