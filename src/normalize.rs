@@ -18,29 +18,48 @@ pub fn stem(word: &str) -> std::borrow::Cow<'_, str> {
         .stem(word)
 }
 
-/// Words whose stems each thread remembers for keys before it starts over (about 1 MB).
-const STEM_CACHE_WORDS: usize = 10_000;
+/// A bounded memory of stems: a corpus repeats its words, and stemming them again was most of
+/// the cost of making keys and of indexing sentences. When full it starts over.
+#[derive(Debug, Default)]
+pub struct StemCache {
+    stems: HashMap<String, String, rustc_hash::FxBuildHasher>,
+    cap: usize,
+}
 
-/// Append the stem of `word` to `out`, remembering it: spans repeat their words, and stemming
-/// was most of the cost of making keys.
-fn push_stem(word: &str, out: &mut String) {
-    thread_local! {
-        static STEMS: std::cell::RefCell<HashMap<String, String, rustc_hash::FxBuildHasher>> =
-            std::cell::RefCell::new(HashMap::default());
+impl StemCache {
+    /// A cache of at most `cap` words.
+    pub fn new(cap: usize) -> StemCache {
+        StemCache {
+            stems: HashMap::default(),
+            cap,
+        }
     }
-    STEMS.with(|c| {
-        let mut c = c.borrow_mut();
-        if let Some(s) = c.get(word) {
+
+    /// Append the stem of `word` (see [`stem`]) to `out`.
+    pub fn push(&mut self, word: &str, out: &mut String) {
+        if let Some(s) = self.stems.get(word) {
             out.push_str(s);
             return;
         }
         let s = stem(word).into_owned();
         out.push_str(&s);
-        if c.len() >= STEM_CACHE_WORDS {
-            c.clear();
+        if self.stems.len() >= self.cap {
+            self.stems.clear();
         }
-        c.insert(word.to_string(), s);
-    });
+        self.stems.insert(word.to_string(), s);
+    }
+}
+
+/// Words whose stems each thread remembers for keys before it starts over (about 1 MB).
+const KEY_STEM_CACHE_WORDS: usize = 10_000;
+
+/// Append the stem of `word` to `out`, remembering it per thread.
+fn push_stem(word: &str, out: &mut String) {
+    thread_local! {
+        static STEMS: std::cell::RefCell<StemCache> =
+            std::cell::RefCell::new(StemCache::new(KEY_STEM_CACHE_WORDS));
+    }
+    STEMS.with(|c| c.borrow_mut().push(word, out));
 }
 
 /// Turns surface text into variable keys.

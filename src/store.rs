@@ -21,6 +21,7 @@ use crate::corpus::Skipped;
 use crate::error::StoreError;
 use crate::graph::{ClaimRef, ClaimRow};
 use crate::model::Claim;
+use crate::normalize::StemCache;
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fs::{self, File};
@@ -144,8 +145,8 @@ fn analyzer() -> TextAnalyzer {
 }
 
 /// Stems index tokens with [`crate::normalize::stem`], the stemmer of variable keys. Each
-/// tokenizer (one per indexing thread) remembers the stems of the words it has seen: a corpus
-/// repeats its words, and stemming was the largest single cost of indexing.
+/// tokenizer (one per indexing thread) remembers the stems of the words it has seen: stemming
+/// was the largest single cost of indexing.
 #[derive(Clone, Copy)]
 struct KeyStemmer;
 
@@ -158,14 +159,14 @@ impl TokenFilter for KeyStemmer {
     fn transform<T: Tokenizer>(self, inner: T) -> KeyStemmerFilter<T> {
         KeyStemmerFilter {
             inner,
-            stems: HashMap::default(),
+            stems: StemCache::new(STEM_CACHE_WORDS),
         }
     }
 }
 
 struct KeyStemmerFilter<T> {
     inner: T,
-    stems: HashMap<String, String, rustc_hash::FxBuildHasher>,
+    stems: StemCache,
 }
 
 /// A copy starts with no remembered stems: copies go to other threads, and stems are cheap to
@@ -174,7 +175,7 @@ impl<T: Clone> Clone for KeyStemmerFilter<T> {
     fn clone(&self) -> Self {
         KeyStemmerFilter {
             inner: self.inner.clone(),
-            stems: HashMap::default(),
+            stems: StemCache::new(STEM_CACHE_WORDS),
         }
     }
 }
@@ -186,13 +187,16 @@ impl<T: Tokenizer> Tokenizer for KeyStemmerFilter<T> {
         KeyStemmerStream {
             tail: self.inner.token_stream(text),
             stems: &mut self.stems,
+            word: String::new(),
         }
     }
 }
 
 struct KeyStemmerStream<'a, T> {
     tail: T,
-    stems: &'a mut HashMap<String, String, rustc_hash::FxBuildHasher>,
+    stems: &'a mut StemCache,
+    /// The token's word while its stem is written into the token (both buffers are reused).
+    word: String,
 }
 
 impl<T: TokenStream> TokenStream for KeyStemmerStream<'_, T> {
@@ -201,17 +205,9 @@ impl<T: TokenStream> TokenStream for KeyStemmerStream<'_, T> {
             return false;
         }
         let token = self.tail.token_mut();
-        if let Some(stem) = self.stems.get(token.text.as_str()) {
-            token.text.clear();
-            token.text.push_str(stem);
-        } else {
-            let stem = crate::normalize::stem(&token.text).into_owned();
-            if self.stems.len() >= STEM_CACHE_WORDS {
-                self.stems.clear();
-            }
-            let word = std::mem::replace(&mut token.text, stem.clone());
-            self.stems.insert(word, stem);
-        }
+        std::mem::swap(&mut token.text, &mut self.word);
+        token.text.clear();
+        self.stems.push(&self.word, &mut token.text);
         true
     }
 
@@ -934,14 +930,17 @@ mod tests {
     use super::*;
     use crate::model::{Kind, Modality, Polarity};
 
-    fn index_terms(text: &str) -> Vec<String> {
-        let mut a = analyzer();
+    fn terms_of(a: &mut TextAnalyzer, text: &str) -> Vec<String> {
         let mut ts = a.token_stream(text);
         let mut out = Vec::new();
         while ts.advance() {
             out.push(ts.token().text.clone());
         }
         out
+    }
+
+    fn index_terms(text: &str) -> Vec<String> {
+        terms_of(&mut analyzer(), text)
     }
 
     /// Co-mention queries look sentences up by the words of variable keys, so every word of a
@@ -996,19 +995,8 @@ mod tests {
     fn remembered_stems_equal_fresh_ones() {
         let text = "Rising temperatures increased the flowering of the flowers; it rises.";
         let mut a = analyzer();
-        let first: Vec<String> = {
-            let mut ts = a.token_stream(text);
-            let mut v = Vec::new();
-            while ts.advance() {
-                v.push(ts.token().text.clone());
-            }
-            v
-        };
-        let mut second = Vec::new();
-        let mut ts = a.token_stream(text);
-        while ts.advance() {
-            second.push(ts.token().text.clone());
-        }
+        let first = terms_of(&mut a, text);
+        let second = terms_of(&mut a, text);
         assert_eq!(first, second);
         assert_eq!(
             first,
