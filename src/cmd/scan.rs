@@ -6,6 +6,7 @@ use clap::Args;
 use hearsay::claims::{collapse, Extractor};
 use hearsay::corpus::{self, Input, Skipped};
 use hearsay::graph::doc_id;
+use hearsay::patterns::PatternSet;
 use hearsay::pipeline;
 use hearsay::store::{FileEntry, FileResult, StoreWriter};
 use indicatif::{ProgressBar, ProgressStyle};
@@ -122,6 +123,30 @@ impl Log<'_> {
     }
 }
 
+/// Read the pending files in parallel, in their order, building the extractor first if this
+/// is the first batch. If it cannot be built, nothing of this scan is committed: the store
+/// stays as it was.
+fn read_batch(
+    g: &Global,
+    set: &PatternSet,
+    ex: &mut Option<Extractor>,
+    opts: &corpus::ReadOptions,
+    pending: &mut Vec<(&Input, ToRead)>,
+) -> Result<Vec<Outcome>> {
+    if pending.is_empty() {
+        return Ok(Vec::new());
+    }
+    // Built here, outside the workers, so that it compiles on every core.
+    let built: &Extractor = match ex {
+        Some(e) => e,
+        None => ex.insert(g.extractor_for(set)?),
+    };
+    Ok(std::mem::take(pending)
+        .into_par_iter()
+        .map(|(i, r)| read(built, opts, i, r))
+        .collect())
+}
+
 /// Size, time and content hash against what the store knows: unchanged files stop here.
 fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
     let fail = |reason: String| {
@@ -227,8 +252,6 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     let started = Instant::now();
     check_paths(&a.paths)?;
     let set = g.pattern_set()?;
-    // The extractor (cues compiled, tagger loaded) is built when the first file needs reading:
-    // it is most of the cost of a re-scan that finds nothing changed.
     let opts = g.read.options();
     let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
         .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
@@ -261,6 +284,8 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     // Files to read wait here across chunks, so that a re-scan that changed one file in a
     // hundred still reads them in parallel; at most `READ_BATCH` wait.
     let mut pending: Vec<(&Input, ToRead)> = Vec::new();
+    // The extractor (cues compiled, tagger loaded) is built when the first file needs reading:
+    // it is most of the cost of a re-scan that finds nothing changed.
     let mut ex: Option<Extractor> = None;
     let mut log = Log {
         g,
@@ -268,8 +293,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         summary: &mut summary,
         failed: &mut failed,
     };
-    let inputs_len = inputs.len();
-    for (n, chunk) in inputs.chunks(64).enumerate() {
+    for chunk in inputs.chunks(64) {
         let known: Vec<Option<FileEntry>> = chunk
             .iter()
             .map(|i| writer.known(&i.label).cloned())
@@ -285,23 +309,14 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
                 Checked::Read(r) => pending.push((i, r)),
             }
         }
-        let last = (n + 1) * 64 >= inputs_len;
-        if pending.len() >= READ_BATCH || (last && !pending.is_empty()) {
-            // Built here, outside the workers, so that it compiles on every core. If it fails,
-            // nothing of this scan is committed: the store stays as it was.
-            let built = match ex.take() {
-                Some(e) => e,
-                None => g.extractor_for(&set)?,
-            };
-            let outcomes: Vec<Outcome> = std::mem::take(&mut pending)
-                .into_par_iter()
-                .map(|(i, r)| read(&built, &opts, i, r))
-                .collect();
-            ex = Some(built);
-            for o in outcomes {
+        if pending.len() >= READ_BATCH {
+            for o in read_batch(g, &set, &mut ex, &opts, &mut pending)? {
                 log.record(o, &mut writer)?;
             }
         }
+    }
+    for o in read_batch(g, &set, &mut ex, &opts, &mut pending)? {
+        log.record(o, &mut writer)?;
     }
     progress.finish_and_clear();
     // Drop what is gone: files that no longer exist, and files under a scanned folder that the
