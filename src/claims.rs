@@ -90,40 +90,29 @@ fn token_spans(s: &str) -> Vec<(usize, usize)> {
             i += 1;
             continue;
         }
-        if !c.is_ascii() {
-            match by_regex(i) {
-                Some(m) => {
-                    out.push(m);
-                    i = m.1;
-                    continue;
+        let token = if !c.is_ascii() {
+            by_regex(i)
+        } else if !c.is_ascii_alphanumeric() {
+            Some((i, i + 1))
+        } else {
+            let start = i;
+            loop {
+                while i < b.len() && b[i].is_ascii_alphanumeric() {
+                    i += 1;
                 }
-                None => break,
-            }
-        }
-        if !c.is_ascii_alphanumeric() {
-            out.push((i, i + 1));
-            i += 1;
-            continue;
-        }
-        let start = i;
-        let mut end = None;
-        while end.is_none() {
-            while i < b.len() && b[i].is_ascii_alphanumeric() {
-                i += 1;
-            }
-            match (b.get(i), b.get(i + 1)) {
-                // A joiner and a letter or digit after it: the token goes on.
-                (Some(b'\'' | b'-' | b'.'), Some(n)) if n.is_ascii_alphanumeric() => i += 2,
-                // A non-ASCII character inside or right after the token, or after a joiner:
-                // it may be a letter (or the typographic apostrophe), so the regex decides.
-                (Some(x), _) if !x.is_ascii() => end = Some(by_regex(start)),
-                (Some(b'\'' | b'-' | b'.'), Some(n)) if !n.is_ascii() => {
-                    end = Some(by_regex(start))
+                match (b.get(i), b.get(i + 1)) {
+                    // A joiner and a letter or digit after it: the token goes on.
+                    (Some(b'\'' | b'-' | b'.'), Some(n)) if n.is_ascii_alphanumeric() => i += 2,
+                    // A non-ASCII character inside or right after the token, or after a
+                    // joiner: it may be a letter (or the typographic apostrophe), so the regex
+                    // decides.
+                    (Some(x), _) if !x.is_ascii() => break by_regex(start),
+                    (Some(b'\'' | b'-' | b'.'), Some(n)) if !n.is_ascii() => break by_regex(start),
+                    _ => break Some((start, i)),
                 }
-                _ => end = Some(Some((start, i))),
             }
-        }
-        match end.flatten() {
+        };
+        match token {
             Some(m) => {
                 out.push(m);
                 i = m.1;

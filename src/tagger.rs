@@ -200,18 +200,17 @@ impl Prepared {
             .get(&feature_hash(suffix(w, 3)))
             .copied()
             .unwrap_or_default();
-        let single = |kind: usize, value: &str| hw.single(kind, value);
         let (own, rest) = out.split_at_mut(NT);
         let (b1, rest) = rest.split_at_mut(NT);
         let (b2, rest) = rest.split_at_mut(NT);
         let (a1, a2) = rest.split_at_mut(NT);
         add(own, hw.range(word[0]));
-        add(own, single(0, suffix(w, 1)));
-        add(own, single(1, suffix(w, 2)));
+        add(own, hw.single(0, suffix(w, 1)));
+        add(own, hw.single(1, suffix(w, 2)));
         add(own, hw.range(s3[0]));
-        add(own, single(2, suffix(w, 4)));
-        add(own, single(3, first_char(raw)));
-        add(own, single(4, &sh));
+        add(own, hw.single(2, suffix(w, 4)));
+        add(own, hw.single(3, first_char(raw)));
+        add(own, hw.single(4, &sh));
         // This word as the previous word of the one after it, and so on.
         add(b1, hw.range(word[1]));
         add(b1, hw.range(s3[1]));
