@@ -34,3 +34,17 @@ pub fn elife_articles(n: usize) -> Vec<(PathBuf, String)> {
         .filter_map(|p| std::fs::read_to_string(&p).ok().map(|t| (p, t)))
         .collect()
 }
+
+/// Every non-empty line of the first `n` eLife articles, with its article's path: the real
+/// text that fast paths are checked against their reference on.
+pub fn elife_lines(n: usize) -> Vec<(PathBuf, String)> {
+    elife_articles(n)
+        .into_iter()
+        .flat_map(|(path, text)| {
+            text.lines()
+                .filter(|l| !l.trim().is_empty())
+                .map(|l| (path.clone(), l.to_string()))
+                .collect::<Vec<_>>()
+        })
+        .collect()
+}
