@@ -199,9 +199,15 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
         re.push_str("\\b");
     }
     // Hundreds of cue regexes each keep a lazy-DFA cache per thread; a small one is plenty for a
-    // pattern tried at a few places per sentence, and keeps memory flat.
+    // pattern tried at a few places per sentence, and keeps memory flat. No one-pass DFA: built
+    // for every cue they held 10 MB (a tenth of extract's memory) and cost start-up time, and the
+    // backtracker finds the slots of a sentence-long search as fast.
     let regex = MetaRegex::builder()
-        .configure(MetaRegex::config().hybrid_cache_capacity(CUE_DFA_CACHE))
+        .configure(
+            MetaRegex::config()
+                .hybrid_cache_capacity(CUE_DFA_CACHE)
+                .onepass(false),
+        )
         .build(&re)
         .map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
     let anchor_forms = toks
