@@ -62,6 +62,16 @@ fn push_stem(word: &str, out: &mut String) {
     STEMS.with(|c| c.borrow_mut().push(word, out));
 }
 
+/// The words no key contains: the lexicon's determiners and key stop words. The sentence index
+/// leaves them out too (co-mention queries only ever ask for a key's words).
+pub fn dropped_words(lexicon: &Lexicon) -> impl Iterator<Item = String> + '_ {
+    lexicon
+        .determiners
+        .iter()
+        .chain(lexicon.stopwords.iter())
+        .cloned()
+}
+
 /// Turns surface text into variable keys.
 pub struct Normalizer {
     dropped: HashSet<String, rustc_hash::FxBuildHasher>,
@@ -77,10 +87,9 @@ impl std::fmt::Debug for Normalizer {
 
 impl Normalizer {
     pub fn new(lexicon: &Lexicon) -> Self {
-        let mut dropped: HashSet<String, rustc_hash::FxBuildHasher> =
-            lexicon.determiners.iter().cloned().collect();
-        dropped.extend(lexicon.stopwords.iter().cloned());
-        Normalizer { dropped }
+        Normalizer {
+            dropped: dropped_words(lexicon).collect(),
+        }
     }
 
     /// The words of `text` that a key keeps, lower-cased but not stemmed.

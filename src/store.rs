@@ -22,6 +22,7 @@ use crate::error::StoreError;
 use crate::graph::{ClaimRef, ClaimRow};
 use crate::model::Claim;
 use crate::normalize::StemCache;
+use crate::patterns::Lexicon;
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fs::{self, File};
@@ -33,7 +34,8 @@ use tantivy::schema::{
     Field, IndexRecordOption, Schema, TextFieldIndexing, TextOptions, Value, STORED, STRING,
 };
 use tantivy::tokenizer::{
-    LowerCaser, SimpleTokenizer, TextAnalyzer, Token, TokenFilter, TokenStream, Tokenizer,
+    LowerCaser, SimpleTokenizer, StopWordFilter, TextAnalyzer, Token, TokenFilter, TokenStream,
+    Tokenizer,
 };
 use tantivy::{doc, Index, IndexReader, IndexWriter, TantivyDocument, Term};
 
@@ -131,15 +133,18 @@ fn schema() -> (Schema, Fields) {
     )
 }
 
-fn register_tokenizer(index: &Index) {
-    index.tokenizers().register(TOKENIZER, analyzer());
+fn register_tokenizer(index: &Index, unindexed: &[String]) {
+    index.tokenizers().register(TOKENIZER, analyzer(unindexed));
 }
 
-/// The index's analyzer: words split at anything not alphanumeric, lower-cased, and stemmed
-/// exactly as variable keys are (so a key's words are the index's terms).
-fn analyzer() -> TextAnalyzer {
+/// The index's analyzer: words split at anything not alphanumeric, lower-cased, the words no key
+/// contains (`unindexed`, see [`crate::normalize::dropped_words`]) left out, and the rest stemmed
+/// exactly as variable keys are (so a key's words are the index's terms). Leaving out "the",
+/// "of" and the like saves a quarter of the terms of English text.
+fn analyzer(unindexed: &[String]) -> TextAnalyzer {
     TextAnalyzer::builder(SimpleTokenizer::default())
         .filter(LowerCaser)
+        .filter(StopWordFilter::remove(unindexed.iter().cloned()))
         .filter(KeyStemmer)
         .build()
 }
@@ -220,7 +225,9 @@ impl<T: TokenStream> TokenStream for KeyStemmerStream<'_, T> {
     }
 }
 
-fn open_index(dir: &Path, create: bool) -> Result<Index, StoreError> {
+/// Open (or with `create`, create) the store's index. `unindexed` only matters for writing:
+/// queries look terms up directly.
+fn open_index(dir: &Path, create: bool, unindexed: &[String]) -> Result<Index, StoreError> {
     let idx_dir = dir.join("index");
     let exists = idx_dir.join("meta.json").exists();
     let index = if exists {
@@ -234,7 +241,7 @@ fn open_index(dir: &Path, create: bool) -> Result<Index, StoreError> {
             message: "search index missing".into(),
         });
     };
-    register_tokenizer(&index);
+    register_tokenizer(&index, unindexed);
     Ok(index)
 }
 
@@ -414,7 +421,7 @@ impl Store {
 
     fn index(&mut self) -> Result<&(Index, IndexReader, Fields), StoreError> {
         if self.index.is_none() {
-            let index = open_index(&self.dir, false)?;
+            let index = open_index(&self.dir, false, &[])?;
             let reader = index.reader()?;
             let f = schema().1;
             let s = index.schema();
@@ -577,8 +584,14 @@ pub struct StoreWriter {
 }
 
 impl StoreWriter {
-    /// Open or create the store at `dir` for writing, taking its lock.
-    pub fn open(dir: &Path, heap_bytes: usize) -> Result<StoreWriter, StoreError> {
+    /// Open or create the store at `dir` for writing, taking its lock. The sentence index leaves
+    /// out the words that no key of `lexicon` contains.
+    pub fn open(
+        dir: &Path,
+        heap_bytes: usize,
+        lexicon: &Lexicon,
+    ) -> Result<StoreWriter, StoreError> {
+        let unindexed: Vec<String> = crate::normalize::dropped_words(lexicon).collect();
         fs::create_dir_all(dir).map_err(|e| StoreError::io(dir, e))?;
         let lock_path = dir.join("lock");
         let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
@@ -591,7 +604,7 @@ impl StoreWriter {
             Err(StoreError::Missing(_)) => Manifest::default(),
             Err(e) => return Err(e),
         };
-        let index = open_index(dir, true)?;
+        let index = open_index(dir, true, &unindexed)?;
         let index_writer: IndexWriter = index.writer(heap_bytes.max(15_000_000))?;
         let s = index.schema();
         let f = schema().1;
@@ -939,9 +952,13 @@ mod tests {
         out
     }
 
-    fn index_terms(text: &str) -> Vec<String> {
-        terms_of(&mut analyzer(), text)
+    /// The analyzer a scan with the built-in patterns writes with.
+    fn builtin_analyzer() -> TextAnalyzer {
+        let lexicon = crate::patterns::PatternSet::builtin().unwrap().lexicon;
+        let unindexed: Vec<String> = crate::normalize::dropped_words(&lexicon).collect();
+        analyzer(&unindexed)
     }
+
 
     /// Co-mention queries look sentences up by the words of variable keys, so every word of a
     /// key must be a term of the sentence it came from. Checked on every line of 150 eLife
@@ -957,6 +974,8 @@ mod tests {
         let norm = crate::normalize::Normalizer::new(
             &crate::patterns::PatternSet::builtin().unwrap().lexicon,
         );
+        let mut a = builtin_analyzer();
+        let mut index_terms = |text: &str| terms_of(&mut a, text);
         let (mut lines, mut words) = (0usize, 0usize);
         for (path, text) in &articles {
             for line in text.lines().filter(|l| !l.trim().is_empty()) {
@@ -994,7 +1013,7 @@ mod tests {
     #[test]
     fn remembered_stems_equal_fresh_ones() {
         let text = "Rising temperatures increased the flowering of the flowers; it rises.";
-        let mut a = analyzer();
+        let mut a = analyzer(&[]);
         let first = terms_of(&mut a, text);
         let second = terms_of(&mut a, text);
         assert_eq!(first, second);
@@ -1013,6 +1032,27 @@ mod tests {
                 "rise"
             ]
         );
+    }
+
+    /// Words no key contains are not index terms; the words around them still are, and a word
+    /// that only stems like a dropped one ("doe" is not "does") stays.
+    #[test]
+    fn words_no_key_contains_are_not_indexed() {
+        let mut a = builtin_analyzer();
+        let mut index_terms = |text: &str| terms_of(&mut a, text);
+        assert_eq!(
+            index_terms("The rise of THE temperatures in its way, and it's a doe."),
+            ["rise", "temperatur", "doe"]
+        );
+        let lexicon = crate::patterns::PatternSet::builtin().unwrap().lexicon;
+        let norm = crate::normalize::Normalizer::new(&lexicon);
+        let mut n = 0;
+        for w in crate::normalize::dropped_words(&lexicon) {
+            n += 1;
+            assert!(index_terms(&w).is_empty(), "{w:?} is indexed");
+            assert!(norm.terms(&w).is_empty(), "{w:?} is a key word");
+        }
+        assert!(n > 50, "{n} dropped words");
     }
 
     fn row(i: u64, cause: &str) -> ClaimRow {

@@ -40,7 +40,7 @@ pub fn run(g: &Global, a: &MergeArgs) -> Result<ExitCode> {
         g.warn("shards have no sentence records (use `extract --sentences`): co-mention counts will be 0");
     }
     let results = shards.into_results()?;
-    let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
+    let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000, &set.lexicon)
         .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
     if !writer.old.files.is_empty() {
         writer.abandon();

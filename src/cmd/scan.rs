@@ -253,7 +253,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     check_paths(&a.paths)?;
     let set = g.pattern_set()?;
     let opts = g.read.options();
-    let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000)
+    let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000, &set.lexicon)
         .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
     if let Some(al) = &g.aliases {
         hearsay::patterns::load_aliases(al)
