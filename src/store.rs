@@ -28,21 +28,24 @@ use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fs::{self, File};
 use std::io::{BufWriter, Read, Seek, SeekFrom, Write};
 use std::path::{Path, PathBuf};
-use tantivy::collector::{Count, TopDocs};
+use tantivy::collector::DocSetCollector;
 use tantivy::query::{BooleanQuery, Occur, Query, TermQuery};
 use tantivy::schema::{
-    Field, IndexRecordOption, Schema, TextFieldIndexing, TextOptions, Value, STORED, STRING,
+    Field, IndexRecordOption, Schema, TextFieldIndexing, TextOptions, FAST, STRING,
 };
 use tantivy::tokenizer::{
     LowerCaser, SimpleTokenizer, StopWordFilter, TextAnalyzer, Token, TokenFilter, TokenStream,
     Tokenizer,
 };
-use tantivy::{doc, Index, IndexReader, IndexWriter, TantivyDocument, Term};
+use tantivy::DocAddress;
+use tantivy::{doc, Index, IndexReader, IndexWriter, Term};
 
 /// Version of the store layout. Bump on any incompatible change. 2: index terms are stemmed by
 /// the variable-key stemmer (they were stemmed by a newer Snowball, which differs on words such
-/// as "organism" and "internal", so queries by key missed their sentences).
-pub const STORE_VERSION: u32 = 2;
+/// as "organism" and "internal", so queries by key missed their sentences). 3: the index keeps a
+/// sentence's path, line and start as columns and no stored fields, so a version 2 index has
+/// nothing a co-mention query can read.
+pub const STORE_VERSION: u32 = 3;
 const TOKENIZER: &str = "hearsay_en";
 
 /// One input file as the store knows it.
@@ -109,19 +112,22 @@ struct Fields {
     start: Field,
 }
 
+/// One index document per sentence. Its text is indexed, not stored, and its path, line and start
+/// are columns (fast fields), not stored either: co-mention queries only need which sentences
+/// match, and reading columns is far cheaper than decoding stored documents (stored text had
+/// doubled the store's size). No field norms: nothing is ranked.
 fn schema() -> (Schema, Fields) {
     let mut b = Schema::builder();
-    let text_opts = TextOptions::default()
-        .set_indexing_options(
-            TextFieldIndexing::default()
-                .set_tokenizer(TOKENIZER)
-                .set_index_option(IndexRecordOption::Basic),
-        )
-        .set_stored();
-    let path = b.add_text_field("path", STRING | STORED);
+    let text_opts = TextOptions::default().set_indexing_options(
+        TextFieldIndexing::default()
+            .set_tokenizer(TOKENIZER)
+            .set_index_option(IndexRecordOption::Basic)
+            .set_fieldnorms(false),
+    );
+    let path = b.add_text_field("path", STRING | FAST);
     let text = b.add_text_field("text", text_opts);
-    let line = b.add_u64_field("line", STORED);
-    let start = b.add_u64_field("start", STORED);
+    let line = b.add_u64_field("line", FAST);
+    let start = b.add_u64_field("start", FAST);
     (
         b.build(),
         Fields {
@@ -456,50 +462,53 @@ impl Store {
         Some(Box::new(BooleanQuery::new(clauses)))
     }
 
-    /// Sentences that contain every term of each group (terms are stemmed keys' words).
-    pub fn sentences_with(
-        &mut self,
-        groups: &[&[String]],
-        limit: usize,
-    ) -> Result<(usize, Vec<IndexedHit>), StoreError> {
-        let (_, reader, fields) = self.index()?;
-        let fields = *fields;
-        let Some(q) = Self::terms_query(&fields, groups) else {
-            return Ok((0, Vec::new()));
-        };
-        let searcher = reader.searcher();
-        let (count, top) = searcher.search(
-            &q,
-            &(Count, TopDocs::with_limit(limit.max(1)).order_by_score()),
-        )?;
-        let mut hits = Vec::new();
-        for (_, addr) in top.into_iter().take(limit) {
-            let d: TantivyDocument = searcher.doc(addr)?;
-            let s = |f: Field| {
-                d.get_first(f)
-                    .and_then(|v| v.as_str())
-                    .unwrap_or("")
-                    .to_string()
-            };
-            let n = |f: Field| d.get_first(f).and_then(|v| v.as_u64()).unwrap_or(0);
-            hits.push(IndexedHit {
-                path: s(fields.path),
-                text: s(fields.text),
-                line: n(fields.line),
-                start: n(fields.start),
-            });
-        }
-        Ok((count, hits))
-    }
-
-    /// All (document, sentence start) pairs of sentences naming every term of each group.
+    /// The (document, sentence start) of every sentence that contains every term of each group
+    /// (terms are stemmed keys' words).
     pub fn sentence_ids_with(
         &mut self,
         groups: &[&[String]],
     ) -> Result<BTreeSet<(String, u64)>, StoreError> {
-        let (count, _) = self.sentences_with(groups, 0)?;
-        let (_, hits) = self.sentences_with(groups, count)?;
-        Ok(hits.into_iter().map(|h| (h.path, h.start)).collect())
+        let (_, reader, fields) = self.index()?;
+        let fields = *fields;
+        let mut out = BTreeSet::new();
+        let Some(q) = Self::terms_query(&fields, groups) else {
+            return Ok(out);
+        };
+        let searcher = reader.searcher();
+        let mut hits: Vec<DocAddress> =
+            searcher.search(&q, &DocSetCollector)?.into_iter().collect();
+        hits.sort_unstable();
+        let column_error = |e: tantivy::TantivyError| StoreError::Corrupt {
+            path: self.dir.join("index"),
+            message: format!("sentence columns: {e}"),
+        };
+        let mut path = String::new();
+        for seg in hits.chunk_by(|a, b| a.segment_ord == b.segment_ord) {
+            let columns = searcher.segment_reader(seg[0].segment_ord).fast_fields();
+            let starts = columns.u64("start").map_err(column_error)?;
+            let Some(paths) = columns.str("path").map_err(column_error)? else {
+                continue;
+            };
+            // Sentences of one document are neighbours: look each path up once.
+            let mut last_ord = None;
+            for addr in seg {
+                let (Some(ord), Some(start)) = (
+                    paths.term_ords(addr.doc_id).next(),
+                    starts.first(addr.doc_id),
+                ) else {
+                    continue;
+                };
+                if last_ord != Some(ord) {
+                    path.clear();
+                    paths
+                        .ord_to_str(ord, &mut path)
+                        .map_err(|e| StoreError::io(&self.dir.join("index"), e))?;
+                    last_ord = Some(ord);
+                }
+                out.insert((path.clone(), start));
+            }
+        }
+        Ok(out)
     }
 }
 
@@ -548,15 +557,6 @@ impl RowView<'_> {
             confidence: self.confidence,
         })
     }
-}
-
-/// A sentence found in the search index.
-#[derive(Debug, Clone, Serialize)]
-pub struct IndexedHit {
-    pub path: String,
-    pub text: String,
-    pub line: u64,
-    pub start: u64,
 }
 
 /// The result of reading one changed file, ready to be written.
@@ -958,7 +958,6 @@ mod tests {
         let unindexed: Vec<String> = crate::normalize::dropped_words(&lexicon).collect();
         analyzer(&unindexed)
     }
-
 
     /// Co-mention queries look sentences up by the words of variable keys, so every word of a
     /// key must be a term of the sentence it came from. Checked on every line of 150 eLife
