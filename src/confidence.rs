@@ -29,7 +29,8 @@ use std::sync::OnceLock;
 pub const FORMAT: &str = "hearsay-confidence 1";
 
 /// The model shipped in the binary.
-const BUILTIN: &str = include_str!("../patterns/confidence.toml");
+/// The shipped model's text.
+pub const BUILTIN: &str = include_str!("../patterns/confidence.toml");
 
 /// A trained model: a bias and one weight per feature name. The names are what the file shows;
 /// at load time each is hashed ([`feature_hash`]) so that scoring a claim looks weights up

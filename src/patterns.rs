@@ -147,27 +147,65 @@ pub struct PatternSet {
     pub aliases: Vec<(String, String)>,
     /// Where the set came from, for messages: "built-in" or the folder.
     pub origin: String,
+    /// BLAKE3 of everything that decides which claims a text yields: the hearsay version and the
+    /// cue, lexicon, inflection and confidence files (not aliases, which apply at query time). A
+    /// store remembers it, so a scan with other patterns or another version re-reads every file.
+    pub fingerprint: String,
+}
+
+/// Hashes the files a pattern set is made of, in load order.
+struct Fingerprint(blake3::Hasher);
+
+impl Fingerprint {
+    fn new() -> Fingerprint {
+        let mut h = blake3::Hasher::new();
+        h.update(env!("CARGO_PKG_VERSION").as_bytes());
+        Fingerprint(h)
+    }
+
+    /// Add one file: its role and its text, each length-prefixed so that no two sets collide
+    /// by moving bytes between files.
+    fn add<'t>(&mut self, role: &str, text: &'t str) -> &'t str {
+        for part in [role, text] {
+            self.0.update(&(part.len() as u64).to_le_bytes());
+            self.0.update(part.as_bytes());
+        }
+        text
+    }
+
+    fn finish(self) -> String {
+        self.0.finalize().to_hex().to_string()
+    }
 }
 
 impl PatternSet {
     /// The patterns shipped with hearsay.
     pub fn builtin() -> Result<PatternSet, PatternError> {
-        let irregular =
-            parse_irregular(Path::new("patterns/irregular-verbs.tsv"), BUILTIN_IRREGULAR)?;
+        let mut fp = Fingerprint::new();
+        let irregular = parse_irregular(
+            Path::new("patterns/irregular-verbs.tsv"),
+            fp.add("irregular", BUILTIN_IRREGULAR),
+        )?;
         let mut cues = Vec::new();
         for (name, text) in BUILTIN_CUE_FILES {
             cues.extend(parse_cue_file(
                 &Path::new("patterns").join(name),
-                text,
+                fp.add(name, text),
                 &irregular,
             )?);
         }
         check_unique(&cues)?;
+        let lexicon = parse_lexicon(
+            Path::new("patterns/lexicon.toml"),
+            fp.add("lexicon", BUILTIN_LEXICON),
+        )?;
+        fp.add("confidence", crate::confidence::BUILTIN);
         Ok(PatternSet {
             cues,
-            lexicon: parse_lexicon(Path::new("patterns/lexicon.toml"), BUILTIN_LEXICON)?,
+            lexicon,
             aliases: parse_aliases(Path::new("patterns/aliases.tsv"), BUILTIN_ALIASES)?,
             origin: "built-in".into(),
+            fingerprint: fp.finish(),
         })
     }
 
@@ -177,11 +215,15 @@ impl PatternSet {
         let read = |p: PathBuf| {
             std::fs::read_to_string(&p).map_err(|source| PatternError::Io { path: p, source })
         };
+        let mut fp = Fingerprint::new();
         let irr_path = dir.join("irregular-verbs.tsv");
         let irregular = if irr_path.exists() {
-            parse_irregular(&irr_path, &read(irr_path.clone())?)?
+            parse_irregular(&irr_path, fp.add("irregular", &read(irr_path.clone())?))?
         } else {
-            parse_irregular(Path::new("patterns/irregular-verbs.tsv"), BUILTIN_IRREGULAR)?
+            parse_irregular(
+                Path::new("patterns/irregular-verbs.tsv"),
+                fp.add("irregular", BUILTIN_IRREGULAR),
+            )?
         };
         let cue_dir = dir.join("cues");
         let mut files: Vec<PathBuf> = std::fs::read_dir(&cue_dir)
@@ -203,15 +245,27 @@ impl PatternSet {
         let mut cues = Vec::new();
         for f in files {
             let text = read(f.clone())?;
-            cues.extend(parse_cue_file(&f, &text, &irregular)?);
+            let name = f.file_name().map(|n| n.to_string_lossy().into_owned());
+            let role = format!("cues/{}", name.unwrap_or_default());
+            cues.extend(parse_cue_file(&f, fp.add(&role, &text), &irregular)?);
         }
         check_unique(&cues)?;
         let lex_path = dir.join("lexicon.toml");
         let lexicon = if lex_path.exists() {
-            parse_lexicon(&lex_path, &read(lex_path.clone())?)?
+            parse_lexicon(&lex_path, fp.add("lexicon", &read(lex_path.clone())?))?
         } else {
-            parse_lexicon(Path::new("patterns/lexicon.toml"), BUILTIN_LEXICON)?
+            parse_lexicon(
+                Path::new("patterns/lexicon.toml"),
+                fp.add("lexicon", BUILTIN_LEXICON),
+            )?
         };
+        // The folder's own confidence model when it has one (see `Global::extractor_for`).
+        let conf_path = dir.join("confidence.toml");
+        if conf_path.exists() {
+            fp.add("confidence", &read(conf_path)?);
+        } else {
+            fp.add("confidence", crate::confidence::BUILTIN);
+        }
         let al_path = dir.join("aliases.tsv");
         let aliases = if al_path.exists() {
             parse_aliases(&al_path, &read(al_path.clone())?)?
@@ -223,6 +277,7 @@ impl PatternSet {
             lexicon,
             aliases,
             origin: dir.display().to_string(),
+            fingerprint: fp.finish(),
         })
     }
 

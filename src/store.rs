@@ -22,7 +22,7 @@ use crate::error::StoreError;
 use crate::graph::{ClaimRef, ClaimRow};
 use crate::model::Claim;
 use crate::normalize::StemCache;
-use crate::patterns::Lexicon;
+use crate::patterns::{Lexicon, PatternSet};
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fs::{self, File};
@@ -75,6 +75,9 @@ pub struct Manifest {
     pub generation: u64,
     pub hearsay_version: String,
     pub patterns: String,
+    /// The pattern set's fingerprint ([`PatternSet::fingerprint`]) the files were read with.
+    #[serde(default)]
+    pub patterns_fingerprint: String,
     pub files: Vec<FileEntry>,
     /// Files the last scan passed over, with reasons.
     pub skipped: Vec<Skipped>,
@@ -730,7 +733,7 @@ impl StoreWriter {
     /// Make everything durable and switch the store to the new manifest. Returns it.
     pub fn commit(
         mut self,
-        patterns: &str,
+        patterns: &PatternSet,
         skipped: Vec<Skipped>,
         failed: Vec<Skipped>,
     ) -> Result<Manifest, StoreError> {
@@ -754,7 +757,8 @@ impl StoreWriter {
             claim_schema: crate::model::SCHEMA_VERSION,
             generation,
             hearsay_version: env!("CARGO_PKG_VERSION").to_string(),
-            patterns: patterns.to_string(),
+            patterns: patterns.origin.clone(),
+            patterns_fingerprint: patterns.fingerprint.clone(),
             files: self.entries.into_values().collect(),
             skipped,
             failed,

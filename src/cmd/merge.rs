@@ -56,7 +56,7 @@ pub fn run(g: &Global, a: &MergeArgs) -> Result<ExitCode> {
         writer.put(r).context("cannot write to the store")?;
     }
     let m = writer
-        .commit(&set.origin, Vec::new(), Vec::new())
+        .commit(&set, Vec::new(), Vec::new())
         .context("cannot commit the store")?;
     if !g.quiet {
         let (d, s, _) = m.totals();

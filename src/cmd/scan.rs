@@ -293,10 +293,21 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         summary: &mut summary,
         failed: &mut failed,
     };
+    // Claims read with other patterns (or another hearsay) must not be counted beside new ones:
+    // then every file is read again, changed or not.
+    let old = &writer.old;
+    let reread_all = !old.files.is_empty() && old.patterns_fingerprint != set.fingerprint;
+    if reread_all {
+        g.warn(&format!(
+            "the store was read with other patterns or another hearsay version (patterns {}, \
+             hearsay {}); re-reading every file",
+            old.patterns, old.hearsay_version
+        ));
+    }
     for chunk in inputs.chunks(64) {
         let known: Vec<Option<FileEntry>> = chunk
             .iter()
-            .map(|i| writer.known(&i.label).cloned())
+            .map(|i| writer.known(&i.label).filter(|_| !reread_all).cloned())
             .collect();
         let checked: Vec<Checked> = chunk
             .par_iter()
@@ -355,7 +366,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         }
     }
     let manifest = writer
-        .commit(&set.origin, skipped.clone(), failed.clone())
+        .commit(&set, skipped.clone(), failed.clone())
         .context("cannot commit the store")?;
     finish(g, a, summary, &manifest, skipped, failed, started)
 }

@@ -29,6 +29,62 @@ fn second_scan_with_nothing_changed_reads_no_file() {
     );
 }
 
+/// Claims read with one pattern set are never counted beside claims read with another: a scan
+/// with other patterns re-reads every file, changed or not, and the next scan with the same
+/// patterns reads none.
+#[test]
+fn scan_with_other_patterns_rereads_every_file() {
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    std::fs::write(corpus.join("a.txt"), "Heavy rain causes flooding.\n").unwrap();
+    std::fs::write(corpus.join("b.txt"), "The harvest failed due to drought.\n").unwrap();
+    let store = tmp.path().join("store");
+    let first = scan(&corpus, &store);
+    assert_eq!(
+        (first["files_read"].as_u64(), first["claims"].as_u64()),
+        (Some(2), Some(2)),
+        "{first}"
+    );
+    // A pattern folder with the causal verbs only: "due to" is no cue there.
+    let pats = tmp.path().join("patterns");
+    std::fs::create_dir_all(pats.join("cues")).unwrap();
+    std::fs::copy(
+        root().join("patterns/cues/causal-verbs.toml"),
+        pats.join("cues/causal-verbs.toml"),
+    )
+    .unwrap();
+    let args = [
+        "scan",
+        "--patterns",
+        pats.to_str().unwrap(),
+        corpus.to_str().unwrap(),
+    ];
+    let second = json_lines(&args, &store).remove(0);
+    assert_eq!(
+        (
+            second["files_read"].as_u64(),
+            second["files_unchanged"].as_u64(),
+            second["claims"].as_u64()
+        ),
+        (Some(2), Some(0), Some(1)),
+        "{second}"
+    );
+    let third = json_lines(&args, &store).remove(0);
+    assert_eq!(
+        (third["files_read"].as_u64(), third["claims"].as_u64()),
+        (Some(0), Some(1)),
+        "{third}"
+    );
+    // Back to the built-in patterns: everything again.
+    let fourth = scan(&corpus, &store);
+    assert_eq!(
+        (fourth["files_read"].as_u64(), fourth["claims"].as_u64()),
+        (Some(2), Some(2)),
+        "{fourth}"
+    );
+}
+
 #[test]
 fn rescan_rereads_changed_files_and_drops_deleted_ones() {
     let tmp = tempfile::tempdir().unwrap();
