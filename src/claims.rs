@@ -1058,8 +1058,19 @@ impl Extractor {
     fn noun_use(&self, m: &CueMatch, toks: &[Token], ca: usize) -> Option<String> {
         let cue = &self.cues.cues[m.cue];
         // A capitalised cue word after a word inside the sentence is part of a name ("Foster
-        // City", "Lead Author").
-        if ca > 0 && toks[ca].capital && toks[ca - 1].word {
+        // City", "Lead Author"), and so is one after a comma or an opening bracket that does not
+        // open the sentence ("(Applied Biosystems, Foster City, CA)"), when the cue word starts
+        // its token (a glued cue, "-mediated", starts inside it, and the capital is the cause's:
+        // "(ROCK-mediated").
+        let after_name = |i: usize| {
+            let punct = match toks[i].lower.as_str() {
+                "," => true,
+                "(" | "[" => i > 0,
+                _ => false,
+            };
+            toks[i].word || (punct && toks[ca].start == m.start)
+        };
+        if ca > 0 && toks[ca].capital && after_name(ca - 1) {
             return Some("capitalised inside the sentence: part of a name, not a statement".into());
         }
         if cue.left.is_none() || cue.spec.clause_spans || !cue.verb_first {
@@ -1812,5 +1823,61 @@ mod tests {
     fn noun_use_of_a_verb_cue_is_not_a_claim() {
         let e = ex();
         assert!(claims(&e, "An increase in rainfall was recorded.").is_empty());
+    }
+
+    /// Supplier addresses in methods sections, "(Applied Biosystems, Foster City, CA)", were the
+    /// most-stated causal relation of the eLife articles (990 open-access articles;
+    /// ../shared/data/elife-articles/SOURCE.txt) before a capitalised cue word after a comma
+    /// counted as part of a name. A glued cue after a comma keeps its claim: the capital of
+    /// "ROCK-mediated" is the cause's.
+    #[test]
+    fn capitalised_cue_after_a_comma_is_a_name_on_elife_text() {
+        let lines = crate::testdata::elife_lines(400);
+        if lines.is_empty() {
+            return;
+        }
+        let e = ex();
+        let (mut addresses, mut glued, mut glued_claims) = (0, 0, 0);
+        for (path, line) in &lines {
+            for s in crate::sentences::split(line) {
+                let text = &line[s.start..s.end];
+                let address = text.contains(", Foster City") || text.contains(", Sparks, MD");
+                let glued_after_comma = text.split(", ").skip(1).any(|rest| {
+                    rest.starts_with(char::is_uppercase)
+                        && rest
+                            .split(' ')
+                            .next()
+                            .is_some_and(|w| w.ends_with("-mediated") || w.ends_with("-induced"))
+                });
+                if !address && !glued_after_comma {
+                    continue;
+                }
+                let cs = claims(&e, text);
+                if address {
+                    addresses += 1;
+                    for c in &cs {
+                        assert!(
+                            !["foster", "spark"].contains(&c.cue.as_str()),
+                            "{}: a place name read as a claim: {text}",
+                            path.display()
+                        );
+                    }
+                }
+                if glued_after_comma {
+                    glued += 1;
+                    glued_claims += cs
+                        .iter()
+                        .filter(|c| c.cue.starts_with("hyphen-"))
+                        .count()
+                        .min(1);
+                }
+            }
+        }
+        assert!(addresses >= 10, "{addresses} address sentences");
+        // Measured on 400 articles: 15 address sentences, and 36 of 36 glued sentences claimed.
+        assert!(
+            glued >= 5 && glued_claims * 10 >= glued * 8,
+            "{glued_claims} of {glued}"
+        );
     }
 }
