@@ -505,7 +505,7 @@ impl Store {
                     path.clear();
                     paths
                         .ord_to_str(ord, &mut path)
-                        .map_err(|e| StoreError::io(&self.dir.join("index"), e))?;
+                        .map_err(|e| StoreError::io(self.dir.join("index"), e))?;
                     last_ord = Some(ord);
                 }
                 out.insert((path.clone(), start));
