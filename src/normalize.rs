@@ -6,6 +6,7 @@
 //! computed at extraction time and stored in the claim; aliases are applied when the graph is built,
 //! so changing an alias file needs no rescan.
 
+use compact_str::CompactString;
 use crate::patterns::Lexicon;
 use rust_stemmers::{Algorithm, Stemmer};
 use std::collections::{HashMap, HashSet};
@@ -22,7 +23,8 @@ pub fn stem(word: &str) -> std::borrow::Cow<'_, str> {
 /// the cost of making keys and of indexing sentences. When full it starts over.
 #[derive(Debug, Default)]
 pub struct StemCache {
-    stems: HashMap<String, String, rustc_hash::FxBuildHasher>,
+    /// Words and stems inline (up to 24 bytes): a hit reads one table slot, no heap strings.
+    stems: HashMap<CompactString, CompactString, rustc_hash::FxBuildHasher>,
     cap: usize,
 }
 
@@ -41,12 +43,12 @@ impl StemCache {
             out.push_str(s);
             return;
         }
-        let s = stem(word).into_owned();
+        let s = CompactString::from(stem(word));
         out.push_str(&s);
         if self.stems.len() >= self.cap {
             self.stems.clear();
         }
-        self.stems.insert(word.to_string(), s);
+        self.stems.insert(CompactString::from(word), s);
     }
 }
 

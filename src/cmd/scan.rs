@@ -3,7 +3,7 @@
 use super::{check_paths, escape, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::claims::{collapse, Extractor};
+use hearsay::claims::Extractor;
 use hearsay::corpus::{self, Input, Skipped};
 use hearsay::graph::doc_id;
 use hearsay::patterns::PatternSet;
@@ -217,10 +217,11 @@ fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) ->
         text_bytes += d.text.len() as u64;
         result.claims.extend(pipeline::document_claims(ex, &d));
         let id = doc_id(&d.path, d.record.as_deref());
+        // Index text only (not stored): whitespace need not be collapsed.
         for s in pipeline::document_sentences(&d) {
             result
                 .sentences
-                .push((id.clone(), s.line as u64, s.start as u64, collapse(s.text)));
+                .push((id.clone(), s.line as u64, s.start as u64, s.text.to_string()));
         }
     };
     let done = match &r.stdin_bytes {
