@@ -117,8 +117,8 @@ struct Fields {
 
 /// One index document per sentence. Its text is indexed, not stored, and its path, line and start
 /// are columns (fast fields), not stored either: co-mention queries only need which sentences
-/// match, and reading columns is far cheaper than decoding stored documents (stored text had
-/// doubled the store's size). No field norms: nothing is ranked.
+/// match, and reading columns is far cheaper than decoding stored documents (stored fields were
+/// 60 of the 69 MB of the eLife index). No field norms: nothing is ranked.
 fn schema() -> (Schema, Fields) {
     let mut b = Schema::builder();
     let text_opts = TextOptions::default().set_indexing_options(
@@ -149,7 +149,7 @@ fn register_tokenizer(index: &Index, unindexed: &[String]) {
 /// The index's analyzer: words split at anything not alphanumeric, lower-cased, the words no key
 /// contains (`unindexed`, see [`crate::normalize::dropped_words`]) left out, and the rest stemmed
 /// exactly as variable keys are (so a key's words are the index's terms). Leaving out "the",
-/// "of" and the like saves a quarter of the terms of English text.
+/// "of" and the like saved about a third of the postings work on eLife text.
 fn analyzer(unindexed: &[String]) -> TextAnalyzer {
     TextAnalyzer::builder(SimpleTokenizer::default())
         .filter(LowerCaser)
