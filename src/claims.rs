@@ -8,12 +8,12 @@
 //! opened by "if" makes a claim conditional; a final "?" makes it a question. The stage is pure: it
 //! sees one sentence (and the one before it) and does no I/O.
 
-use compact_str::CompactString;
 use crate::cues::{CueMatch, CueSet, SlotPlace};
 use crate::model::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::normalize::Normalizer;
 use crate::patterns::{Lexicon, PatternSet, PatternToken, Role};
 use crate::tagger::{Tag, Tagger};
+use compact_str::CompactString;
 use regex::Regex;
 use std::collections::HashSet;
 use std::sync::OnceLock;
@@ -335,7 +335,12 @@ impl Extractor {
     }
 
     fn strip_determiners(&self, toks: &[Token], mut s: Span) -> Span {
-        while s.from < s.to && self.lexicon.determiners.contains(toks[s.from].lower.as_str()) {
+        while s.from < s.to
+            && self
+                .lexicon
+                .determiners
+                .contains(toks[s.from].lower.as_str())
+        {
             s.from += 1;
         }
         s
@@ -361,7 +366,9 @@ impl Extractor {
                 .get(from)
                 .is_some_and(|t| t.tag.is_some_and(Tag::is_noun));
         let parenthetical = |k: usize| {
-            toks[k].word && !blocked[k] && self.lexicon.parenthetical.contains(toks[k].lower.as_str())
+            toks[k].word
+                && !blocked[k]
+                && self.lexicon.parenthetical.contains(toks[k].lower.as_str())
         };
         loop {
             if i == 0 || blocked[i - 1] {
@@ -476,7 +483,8 @@ impl Extractor {
         let mut i = ca;
         while i > 0
             && toks[i - 1].word
-            && (self.verb_group.contains(toks[i - 1].lower.as_str()) || self.adverb(&toks[i - 1].lower))
+            && (self.verb_group.contains(toks[i - 1].lower.as_str())
+                || self.adverb(&toks[i - 1].lower))
         {
             i -= 1;
         }
@@ -529,7 +537,8 @@ impl Extractor {
             toks.first()
                 .filter(|t| self.lexicon.clause_breaks.contains(t.lower.as_str()))?;
             let comma = (1..p).find(|&i| toks[i].lower == ",")?;
-            let from = (1..comma).find(|&i| !self.lexicon.determiners.contains(toks[i].lower.as_str()))?;
+            let from =
+                (1..comma).find(|&i| !self.lexicon.determiners.contains(toks[i].lower.as_str()))?;
             let mut j = from;
             while j < comma
                 && toks[j].word
@@ -587,7 +596,10 @@ impl Extractor {
         if k + 1 < toks.len()
             && (self.lexicon.increase_nouns.contains(toks[k].lower.as_str())
                 || self.lexicon.decrease_nouns.contains(toks[k].lower.as_str()))
-            && self.lexicon.change_links.contains(toks[k + 1].lower.as_str())
+            && self
+                .lexicon
+                .change_links
+                .contains(toks[k + 1].lower.as_str())
         {
             j = k + 2;
         }
@@ -668,7 +680,12 @@ impl Extractor {
         }
         let mut s = self.strip_determiners(toks, Span { from: i, to: from });
         // "Erosion is because of traffic": the copula belongs to the cue, not the clause.
-        while s.to > s.from + 1 && self.lexicon.auxiliaries.contains(toks[s.to - 1].lower.as_str()) {
+        while s.to > s.from + 1
+            && self
+                .lexicon
+                .auxiliaries
+                .contains(toks[s.to - 1].lower.as_str())
+        {
             s.to -= 1;
         }
         s.to = s.to.min(s.from + self.lexicon.max_words + CLAUSE_CAP_EXTRA);
@@ -679,14 +696,17 @@ impl Extractor {
     fn clause_forward(&self, toks: &[Token], from: usize) -> Span {
         let mut j = from;
         while j < toks.len()
-            && (Self::clause_punct(&toks[j]) || self.lexicon.determiners.contains(toks[j].lower.as_str()))
+            && (Self::clause_punct(&toks[j])
+                || self.lexicon.determiners.contains(toks[j].lower.as_str()))
         {
             j += 1;
         }
         let start = j;
         while j < toks.len()
             && !Self::clause_punct(&toks[j])
-            && !(j > start && toks[j].word && self.lexicon.clause_breaks.contains(toks[j].lower.as_str()))
+            && !(j > start
+                && toks[j].word
+                && self.lexicon.clause_breaks.contains(toks[j].lower.as_str()))
         {
             j += 1;
         }
@@ -1173,7 +1193,8 @@ impl Extractor {
             }
             let mut j = i + 1;
             while j < b
-                && (self.single_negators.contains(toks[j].lower.as_str()) || self.adverb(&toks[j].lower))
+                && (self.single_negators.contains(toks[j].lower.as_str())
+                    || self.adverb(&toks[j].lower))
             {
                 j += 1;
             }
@@ -1510,7 +1531,12 @@ impl Extractor {
     fn conjuncts_back(&self, toks: &[Token], span: Span, blocked: &[bool]) -> Vec<Span> {
         let mut out = Vec::new();
         let mut from = span.from;
-        while from > 0 && self.lexicon.determiners.contains(toks[from - 1].lower.as_str()) {
+        while from > 0
+            && self
+                .lexicon
+                .determiners
+                .contains(toks[from - 1].lower.as_str())
+        {
             from -= 1;
         }
         let mut first = true;
@@ -1535,7 +1561,11 @@ impl Extractor {
             }
             if i == end
                 || (i > 0
-                    && (blocked[i - 1] || self.lexicon.auxiliaries.contains(toks[i - 1].lower.as_str())))
+                    && (blocked[i - 1]
+                        || self
+                            .lexicon
+                            .auxiliaries
+                            .contains(toks[i - 1].lower.as_str())))
             {
                 break;
             }
@@ -1586,7 +1616,11 @@ impl Extractor {
                 break;
             }
             if np.to < toks.len()
-                && (blocked[np.to] || self.lexicon.auxiliaries.contains(toks[np.to].lower.as_str()))
+                && (blocked[np.to]
+                    || self
+                        .lexicon
+                        .auxiliaries
+                        .contains(toks[np.to].lower.as_str()))
             {
                 break;
             }
@@ -1612,9 +1646,11 @@ fn noun_first(spec: &crate::patterns::CueSpec) -> bool {
 
 /// Nothing but punctuation, conjunctions and fillers stands before token `ca`.
 fn opens_sentence(toks: &[Token], ca: usize, l: &Lexicon) -> bool {
-    toks[..ca]
-        .iter()
-        .all(|t| !t.word || l.clause_breaks.contains(t.lower.as_str()) || l.fillers.contains(t.lower.as_str()))
+    toks[..ca].iter().all(|t| {
+        !t.word
+            || l.clause_breaks.contains(t.lower.as_str())
+            || l.fillers.contains(t.lower.as_str())
+    })
 }
 
 fn token_range(toks: &[Token], start: usize, end: usize) -> (usize, usize) {

@@ -6,8 +6,8 @@
 //! computed at extraction time and stored in the claim; aliases are applied when the graph is built,
 //! so changing an alias file needs no rescan.
 
-use compact_str::CompactString;
 use crate::patterns::Lexicon;
+use compact_str::CompactString;
 use rust_stemmers::{Algorithm, Stemmer};
 use std::collections::{HashMap, HashSet};
 

@@ -219,9 +219,12 @@ fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) ->
         let id = doc_id(&d.path, d.record.as_deref());
         // Index text only (not stored): whitespace need not be collapsed.
         for s in pipeline::document_sentences(&d) {
-            result
-                .sentences
-                .push((id.clone(), s.line as u64, s.start as u64, s.text.to_string()));
+            result.sentences.push((
+                id.clone(),
+                s.line as u64,
+                s.start as u64,
+                s.text.to_string(),
+            ));
         }
     };
     let done = match &r.stdin_bytes {
