@@ -151,6 +151,9 @@ pub struct PatternSet {
     /// cue, lexicon, inflection and confidence files (not aliases, which apply at query time). A
     /// store remembers it, so a scan with other patterns or another version re-reads every file.
     pub fingerprint: String,
+    /// The folder's own confidence model (path and text), when it has one; read once here so
+    /// that the fingerprint covers the model the extractor installs.
+    pub confidence: Option<(PathBuf, String)>,
 }
 
 /// Hashes the files a pattern set is made of, in load order.
@@ -206,6 +209,7 @@ impl PatternSet {
             aliases: parse_aliases(Path::new("patterns/aliases.tsv"), BUILTIN_ALIASES)?,
             origin: "built-in".into(),
             fingerprint: fp.finish(),
+            confidence: None,
         })
     }
 
@@ -261,11 +265,14 @@ impl PatternSet {
         };
         // The folder's own confidence model when it has one (see `Global::extractor_for`).
         let conf_path = dir.join("confidence.toml");
-        if conf_path.exists() {
-            fp.add("confidence", &read(conf_path)?);
+        let confidence = if conf_path.exists() {
+            let text = read(conf_path.clone())?;
+            fp.add("confidence", &text);
+            Some((conf_path, text))
         } else {
             fp.add("confidence", crate::confidence::BUILTIN);
-        }
+            None
+        };
         let al_path = dir.join("aliases.tsv");
         let aliases = if al_path.exists() {
             parse_aliases(&al_path, &read(al_path.clone())?)?
@@ -278,6 +285,7 @@ impl PatternSet {
             aliases,
             origin: dir.display().to_string(),
             fingerprint: fp.finish(),
+            confidence,
         })
     }
 

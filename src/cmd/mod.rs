@@ -260,15 +260,11 @@ impl Global {
 
     /// The extractor for a pattern set already loaded by [`Global::pattern_set`].
     pub fn extractor_for(&self, set: &PatternSet) -> Result<Extractor> {
-        // A pattern folder may carry its own confidence model.
-        if let Some(f) = self.patterns.as_ref().map(|d| d.join("confidence.toml")) {
-            if f.exists() {
-                let text = std::fs::read_to_string(&f)
-                    .with_context(|| format!("cannot read {}", f.display()))?;
-                let m = hearsay::confidence::Model::parse(&f.display().to_string(), &text)?;
-                // Already installed by an earlier call in this process: the same file.
-                let _ = hearsay::confidence::install(m);
-            }
+        // A pattern folder may carry its own confidence model (read with the set).
+        if let Some((f, text)) = &set.confidence {
+            let m = hearsay::confidence::Model::parse(&f.display().to_string(), text)?;
+            // Already installed by an earlier call in this process: the same file.
+            let _ = hearsay::confidence::install(m);
         }
         Extractor::new(set)
             .map_err(|e| anyhow::anyhow!(e))
