@@ -40,11 +40,9 @@ fn token_regex() -> &'static Regex {
     })
 }
 
-/// A token's lower-case form with the typographic apostrophe made plain; one allocation.
+/// A token's lower-case form with the typographic apostrophe made plain (inline: no allocation
+/// for a word of up to 24 bytes).
 fn lower_word(s: &str) -> CompactString {
-    if s.bytes().all(|b| b.is_ascii() && !b.is_ascii_uppercase()) {
-        return CompactString::from(s);
-    }
     if s.is_ascii() {
         let mut lower = CompactString::from(s);
         lower.make_ascii_lowercase();
@@ -1481,12 +1479,6 @@ impl Extractor {
                 "cause and effect are the same variable (\"{ckey}\")"
             ));
         }
-        // "(Smith et al., 2013). Thus, ...", "in experiments 2 and 4 ... drives": a span whose
-        // words are all numbers is a year, a count or a label, not a variable.
-        let numbers_only = |key: &str| {
-            key.split(' ')
-                .all(|w| w.chars().all(|c| c.is_ascii_digit()))
-        };
         if numbers_only(&ckey) || numbers_only(&ekey) {
             return Err(format!(
                 "a span is only numbers (cause \"{}\", effect \"{}\")",
@@ -1656,6 +1648,13 @@ fn noun_first(spec: &crate::patterns::CueSpec) -> bool {
     }) == Some(true)
 }
 
+/// A key whose words are all numbers: a year, a count or a label, not a variable ("(Smith et
+/// al., 2013). Thus, ...", "in experiments 2 and 4 ... drives").
+fn numbers_only(key: &str) -> bool {
+    key.split(' ')
+        .all(|w| w.chars().all(|c| c.is_ascii_digit()))
+}
+
 /// Nothing but punctuation, conjunctions and fillers stands before token `ca`.
 fn opens_sentence(toks: &[Token], ca: usize, l: &Lexicon) -> bool {
     toks[..ca].iter().all(|t| {
@@ -1752,6 +1751,15 @@ mod tests {
     }
 
     fn claims(e: &Extractor, text: &str) -> Vec<Claim> {
+        claims_after(e, None, SentenceRef { text, offset: 0 })
+    }
+
+    /// The claims of `sent`, with `prev` as the sentence before it.
+    fn claims_after(
+        e: &Extractor,
+        prev: Option<SentenceRef<'_>>,
+        sent: SentenceRef<'_>,
+    ) -> Vec<Claim> {
         let origin = Origin {
             path: "t",
             line: 1,
@@ -1759,11 +1767,11 @@ mod tests {
             page: None,
             record: None,
         };
-        let hits = e.cues.hits(text);
+        let hits = e.cues.hits(sent.text);
         let mut out = Vec::new();
         e.extract(
-            SentenceRef { text, offset: 0 },
-            None,
+            sent,
+            prev,
             &origin,
             &e.cues.candidates(&hits, 0),
             &mut out,
@@ -1902,30 +1910,13 @@ mod tests {
                     text,
                     offset: s.start,
                 };
-                let origin = Origin {
-                    path: "t",
-                    line: 1,
-                    column: 1,
-                    page: None,
-                    record: None,
-                };
-                let hits = e.cues.hits(text);
-                let mut cs = Vec::new();
-                e.extract(
-                    sent,
-                    prev,
-                    &origin,
-                    &e.cues.candidates(&hits, 0),
-                    &mut cs,
-                    None,
-                );
+                let cs = claims_after(&e, prev, sent);
                 prev = Some(sent);
                 for c in &cs {
                     claims_seen += 1;
                     for key in [&c.cause.key, &c.effect.key] {
                         assert!(
-                            !key.split(' ')
-                                .all(|w| w.chars().all(|ch| ch.is_ascii_digit())),
+                            !numbers_only(key),
                             "{}: number-only variable {key:?} in {text}",
                             path.display()
                         );
