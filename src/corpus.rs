@@ -240,9 +240,18 @@ pub fn sniff(head: &[u8], path: &Path) -> InputFormat {
         return f;
     }
     if trimmed.starts_with(b"{") {
-        let first = trimmed.split(|&b| b == b'\n').next().unwrap_or(trimmed);
-        if serde_json::from_slice::<serde_json::Value>(first).is_ok_and(|v| v.is_object()) {
-            return InputFormat::Jsonl;
+        let mut lines = trimmed.splitn(2, |&b| b == b'\n');
+        let first = lines.next().unwrap_or(trimmed);
+        let whole_line = lines.next().is_some();
+        match serde_json::from_slice::<serde_json::Value>(first) {
+            Ok(v) if v.is_object() => return InputFormat::Jsonl,
+            // A first record longer than the bytes looked at (a stream's buffer, at least
+            // 8 KiB): valid JSON as far as it goes counts as the same sign. A short file that
+            // ends inside its JSON is no such sign.
+            Err(e) if e.is_eof() && !whole_line && first.len() >= 4096 => {
+                return InputFormat::Jsonl
+            }
+            _ => {}
         }
     }
     InputFormat::Text
@@ -409,14 +418,83 @@ pub fn read_input(
     emit: &mut dyn FnMut(Document),
 ) -> Result<(), ReadError> {
     if input.is_stdin() {
-        let bytes = read_bytes(input)?;
-        return read_bytes_into(input, &bytes, opts, warnings, emit);
+        // Streamed like a file: a JSON Lines dump piped in is never held whole.
+        let stdin = std::io::stdin();
+        let mut src = stdin.lock();
+        return guarded(input, opts, || {
+            read_from(&input.label, &input.path, &mut src, opts, warnings, emit)
+        });
     }
     let f = std::fs::File::open(&input.path)?;
     let mut src = std::io::BufReader::with_capacity(1 << 16, f);
     guarded(input, opts, || {
         read_from(&input.label, &input.path, &mut src, opts, warnings, emit)
     })
+}
+
+/// Inputs at least this large on disk are read as streams (see [`streams`]).
+pub const STREAM_BYTES: u64 = 8 << 20;
+
+/// Whether an input is better read as a stream of document batches ([`read_batched`]) than
+/// whole, with one thread per file: standard input, JSON Lines (one file may hold millions of
+/// documents), compressed files (their size on disk says little), and files of
+/// [`STREAM_BYTES`] or more. What is extracted from them is the same either way.
+pub fn streams(input: &Input, opts: &ReadOptions) -> bool {
+    if input.is_stdin() || opts.format == InputFormat::Jsonl {
+        return true;
+    }
+    let (_, compression) = extensions(&input.path);
+    compression.is_some()
+        || format_by_extension(&input.path) == Some(InputFormat::Jsonl)
+        || std::fs::metadata(&input.path).is_ok_and(|m| m.len() >= STREAM_BYTES)
+}
+
+/// Read one input on a thread of its own and hand its documents to `each` in input order, in
+/// batches of about `batch_bytes` of text, with at most `ahead` batches read ahead: memory stays
+/// bounded whatever the input's size, and the caller can work on a batch in parallel while the
+/// next one is read. Returns the reader's warnings with its result. When `each` fails, its
+/// error is returned at once and no further batch is handed over.
+pub fn read_batched<E>(
+    input: &Input,
+    opts: &ReadOptions,
+    batch_bytes: usize,
+    ahead: usize,
+    mut each: impl FnMut(Vec<Document>) -> Result<(), E>,
+) -> Result<(Warnings, Result<(), ReadError>), E> {
+    let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<Document>>(ahead.max(1));
+    let (input_c, opts_c) = (input.clone(), opts.clone());
+    // Not a scoped thread: if `each` fails, the caller returns at once instead of waiting for
+    // the rest of a long input to be read; the reader then only discards what it reads.
+    let reader = std::thread::spawn(move || {
+        let mut warnings = Warnings::new();
+        let mut batch = Vec::new();
+        let mut bytes = 0;
+        let mut open = true;
+        let r = read_input(&input_c, &opts_c, &mut warnings, &mut |d| {
+            if !open {
+                return;
+            }
+            bytes += d.text.len();
+            batch.push(d);
+            if bytes >= batch_bytes {
+                bytes = 0;
+                open = tx.send(std::mem::take(&mut batch)).is_ok();
+            }
+        });
+        if open && !batch.is_empty() {
+            let _ = tx.send(batch);
+        }
+        (warnings, r)
+    });
+    for batch in rx.iter() {
+        each(batch)?;
+    }
+    Ok(reader.join().unwrap_or_else(|_| {
+        (
+            Warnings::new(),
+            Err(ReadError::Malformed("the reader failed".into())),
+        )
+    }))
 }
 
 /// Read documents from bytes already in memory (standard input, tests).
@@ -619,5 +697,83 @@ mod tests {
         assert_eq!(names, ["a.txt", "b.md"]);
         assert_eq!(skipped.len(), 1);
         assert!(skipped[0].path.ends_with("c.bin"));
+    }
+
+    /// A JSON Lines file of `n` records, the last one broken, as an input.
+    fn records(dir: &Path, n: usize) -> Input {
+        let mut text = String::new();
+        for i in 0..n {
+            text.push_str(&format!("{{\"id\": {i}, \"text\": \"record {i} text\"}}\n"));
+        }
+        text.push_str("{\"id\": broken\n");
+        let path = dir.join("d.jsonl");
+        std::fs::write(&path, text).unwrap();
+        Input {
+            label: path.to_string_lossy().into_owned(),
+            path,
+        }
+    }
+
+    #[test]
+    fn batches_hold_every_document_in_order() {
+        let dir = tempfile::tempdir().unwrap();
+        let input = records(dir.path(), 1000);
+        let opts = ReadOptions::default();
+        assert!(streams(&input, &opts));
+        let mut whole = Vec::new();
+        let mut w1 = Warnings::new();
+        read_input(&input, &opts, &mut w1, &mut |d| whole.push(d)).unwrap();
+        assert_eq!(whole.len(), 1000);
+        let mut sizes = Vec::new();
+        let mut batched = Vec::new();
+        let (w2, r) = read_batched(&input, &opts, 200, 2, |b| {
+            sizes.push(b.len());
+            batched.extend(b);
+            Ok::<_, ()>(())
+        })
+        .unwrap();
+        r.unwrap();
+        assert_eq!(batched, whole);
+        assert_eq!(w2, w1, "the broken record is warned about once");
+        assert_eq!(w2.len(), 1);
+        // "record N text" is 13 to 15 bytes: 14 documents reach 200 bytes.
+        assert!(sizes.len() > 60, "{sizes:?}");
+        assert!(sizes[..sizes.len() - 1]
+            .iter()
+            .all(|&n| (13..=16).contains(&n)));
+    }
+
+    #[test]
+    fn a_failing_consumer_stops_the_batches() {
+        let dir = tempfile::tempdir().unwrap();
+        let input = records(dir.path(), 1000);
+        let mut seen = 0;
+        let r = read_batched(&input, &ReadOptions::default(), 200, 1, |_| {
+            seen += 1;
+            if seen == 3 {
+                Err("stdout closed")
+            } else {
+                Ok(())
+            }
+        });
+        assert_eq!(r.err(), Some("stdout closed"));
+        assert_eq!(seen, 3);
+    }
+
+    #[test]
+    fn a_long_first_record_is_sniffed_as_json_lines() {
+        let record = format!("{{\"text\": \"{}\"}}\n", "word ".repeat(5000));
+        let head = &record.as_bytes()[..8192];
+        assert_eq!(sniff(head, Path::new("-")), InputFormat::Jsonl);
+        // A short file ending inside its JSON, or a brace that starts no JSON, is text.
+        assert_eq!(
+            sniff(b"{\"text\": \"open", Path::new("-")),
+            InputFormat::Text
+        );
+        let prose = format!("{{Editor's note}} {}", "word ".repeat(5000));
+        assert_eq!(
+            sniff(&prose.as_bytes()[..8192], Path::new("-")),
+            InputFormat::Text
+        );
     }
 }

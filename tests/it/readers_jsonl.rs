@@ -5,7 +5,8 @@
 //! seconds) are written as one JSON Lines file (`{"id": file stem, "text": file text}`), then
 //! compressed with Python's `gzip` module and the `zstd` program (Debian zstd). All three must
 //! give exactly the claims of the folder of `.txt` files: cause, effect, cue, polarity,
-//! modality and sentence, with each record id naming its file.
+//! modality and sentence, with each record id naming its file; so must the dump piped into
+//! standard input.
 
 use crate::common::*;
 use std::collections::BTreeMap;
@@ -14,13 +15,15 @@ use std::process::Command;
 
 type Claims = BTreeMap<String, Vec<[String; 6]>>;
 
-/// Claims per document: by record id for JSON Lines, by file stem for text files.
-fn claims_by_document(paths: &[&Path]) -> BTreeMap<String, Claims> {
-    let out = hearsay()
-        .args(["-q", "extract"])
-        .args(paths)
-        .output()
-        .expect("runs");
+/// Claims per document: by record id for JSON Lines, by file stem for text files. `stdin` is
+/// piped in when a path is `-`.
+fn claims_by_document(paths: &[&Path], stdin: Option<&Path>) -> BTreeMap<String, Claims> {
+    let mut cmd = hearsay();
+    cmd.args(["-q", "extract"]).args(paths);
+    if let Some(p) = stdin {
+        cmd.pipe_stdin(p).unwrap();
+    }
+    let out = cmd.output().expect("runs");
     assert!(
         out.status.success(),
         "{}",
@@ -109,12 +112,14 @@ fn elife_as_jsonl_gz_and_zst_gives_the_claims_of_the_text_files() {
         .expect("zstd runs");
     assert!(st.success());
 
-    let all = claims_by_document(&[&txt, &dump, &gz, &zst]);
+    // Standard input streams too: the dump piped in is sniffed as JSON Lines although its first
+    // record is longer than the bytes sniffed.
+    let all = claims_by_document(&[&txt, &dump, &gz, &zst, Path::new("-")], Some(&dump));
     let from_txt = &all["txt"];
     let n: usize = from_txt.values().map(Vec::len).sum();
     assert!(n >= 100, "only {n} claims from the text files");
     assert_eq!(from_txt.len(), 8, "every article states something");
-    for p in [&dump, &gz, &zst] {
+    for p in [&dump, &gz, &zst, &Path::new("-").to_path_buf()] {
         let got = all
             .get(&p.to_string_lossy().into_owned())
             .unwrap_or_else(|| panic!("no claims from {}", p.display()));
