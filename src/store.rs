@@ -5,7 +5,8 @@
 //! ```text
 //! manifest.json      the one file that says what the store holds (written last, atomically)
 //! seg-NNNNNN.jsonl   full claim records, one JSON object a line (the documented schema)
-//! seg-NNNNNN.rows    the same claims in compact form (postcard), for rebuilding the graph fast
+//! seg-NNNNNN.rows    the same claims in compact form (postcard records back to back), for
+//!                    rebuilding the graph fast
 //! index/             a tantivy index with one entry per sentence, for search and co-mentions
 //! aliases.tsv        the alias file given to `scan --aliases`, if any
 //! lock               held while a scan writes
@@ -44,8 +45,12 @@ use tantivy::{doc, Index, IndexReader, IndexWriter, Term};
 /// the variable-key stemmer (they were stemmed by a newer Snowball, which differs on words such
 /// as "organism" and "internal", so queries by key missed their sentences). 3: the index keeps a
 /// sentence's path, line and start as columns and no stored fields, so a version 2 index has
-/// nothing a co-mention query can read.
-pub const STORE_VERSION: u32 = 3;
+/// nothing a co-mention query can read. 4: rows are written as claims arrive (postcard records
+/// back to back, no count first), a file may have several row ranges (`merge` of a path that
+/// recurs), and every sentence carries its file as a term, so replacing a file drops all its
+/// sentences (version 3 deleted by the new content's document ids, which kept the sentences of
+/// records a changed file no longer has).
+pub const STORE_VERSION: u32 = 4;
 const TOKENIZER: &str = "hearsay_en";
 
 /// One input file as the store knows it.
@@ -63,6 +68,10 @@ pub struct FileEntry {
     /// Which segment holds this file's claims, and which rows of it.
     pub segment: u32,
     pub rows: (u64, u64),
+    /// Further row ranges in the same segment, after `rows` (a path whose records `merge` met
+    /// in more than one place).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub more_rows: Vec<(u64, u64)>,
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub warnings: Vec<String>,
 }
@@ -83,6 +92,30 @@ pub struct Manifest {
     pub skipped: Vec<Skipped>,
     /// Files the last scan could not read, with reasons.
     pub failed: Vec<Skipped>,
+}
+
+impl FileEntry {
+    /// A file about to be read: known metadata, nothing stored yet.
+    pub fn new(path: &str) -> FileEntry {
+        FileEntry {
+            path: path.to_string(),
+            size: 0,
+            mtime_ns: 0,
+            hash: String::new(),
+            documents: 0,
+            sentences: 0,
+            claims: 0,
+            segment: 0,
+            rows: (0, 0),
+            more_rows: Vec::new(),
+            warnings: Vec::new(),
+        }
+    }
+
+    /// The file's row ranges in its segment, in order.
+    pub fn row_ranges(&self) -> impl Iterator<Item = (u64, u64)> + '_ {
+        std::iter::once(self.rows).chain(self.more_rows.iter().copied())
+    }
 }
 
 impl Manifest {
@@ -110,15 +143,32 @@ pub struct Store {
 #[derive(Clone, Copy)]
 struct Fields {
     path: Field,
+    file: Field,
     text: Field,
     line: Field,
     start: Field,
 }
 
+impl Fields {
+    /// The fields of an opened index (by name, as the index's own schema numbers them).
+    fn of(index: &Index) -> Fields {
+        let s = index.schema();
+        let f = schema().1;
+        Fields {
+            path: s.get_field("path").unwrap_or(f.path),
+            file: s.get_field("file").unwrap_or(f.file),
+            text: s.get_field("text").unwrap_or(f.text),
+            line: s.get_field("line").unwrap_or(f.line),
+            start: s.get_field("start").unwrap_or(f.start),
+        }
+    }
+}
+
 /// One index document per sentence. Its text is indexed, not stored, and its path, line and start
 /// are columns (fast fields), not stored either: co-mention queries only need which sentences
 /// match, and reading columns is far cheaper than decoding stored documents (stored fields were
-/// 60 of the 69 MB of the eLife index). No field norms: nothing is ranked.
+/// 60 of the 69 MB of the eLife index). No field norms: nothing is ranked. `file` (indexed
+/// only) is the input file the sentence came from, for dropping a file's sentences.
 fn schema() -> (Schema, Fields) {
     let mut b = Schema::builder();
     let text_opts = TextOptions::default().set_indexing_options(
@@ -128,6 +178,7 @@ fn schema() -> (Schema, Fields) {
             .set_fieldnorms(false),
     );
     let path = b.add_text_field("path", STRING | FAST);
+    let file = b.add_text_field("file", STRING);
     let text = b.add_text_field("text", text_opts);
     let line = b.add_u64_field("line", FAST);
     let start = b.add_u64_field("start", FAST);
@@ -135,6 +186,7 @@ fn schema() -> (Schema, Fields) {
         b.build(),
         Fields {
             path,
+            file,
             text,
             line,
             start,
@@ -254,6 +306,23 @@ fn open_index(dir: &Path, create: bool, unindexed: &[String]) -> Result<Index, S
     Ok(index)
 }
 
+/// A segment's rows: postcard records back to back.
+fn decode_rows<'a, T: Deserialize<'a>>(
+    path: &Path,
+    mut bytes: &'a [u8],
+) -> Result<Vec<T>, StoreError> {
+    let mut out = Vec::new();
+    while !bytes.is_empty() {
+        let (row, rest) = postcard::take_from_bytes(bytes).map_err(|e| StoreError::Corrupt {
+            path: path.to_path_buf(),
+            message: format!("row {}: {e}", out.len()),
+        })?;
+        out.push(row);
+        bytes = rest;
+    }
+    Ok(out)
+}
+
 fn seg_name(seg: u32, ext: &str) -> String {
     format!("seg-{seg:06}.{ext}")
 }
@@ -315,12 +384,7 @@ impl Store {
         for seg in self.manifest.segments() {
             let p = self.dir.join(seg_name(seg, "rows"));
             let bytes = fs::read(&p).map_err(|e| StoreError::io(&p, e))?;
-            let rows: Vec<ClaimRow> =
-                postcard::from_bytes(&bytes).map_err(|e| StoreError::Corrupt {
-                    path: p.clone(),
-                    message: e.to_string(),
-                })?;
-            by_seg.insert(seg, rows);
+            by_seg.insert(seg, decode_rows(&p, &bytes)?);
         }
         let mut out = Vec::new();
         for f in &self.manifest.files {
@@ -331,12 +395,14 @@ impl Store {
                 path: self.dir.clone(),
                 message: format!("segment {} missing", f.segment),
             })?;
-            let (a, b) = (f.rows.0 as usize, f.rows.1 as usize);
-            let slice = rows.get(a..b).ok_or_else(|| StoreError::Corrupt {
-                path: self.dir.clone(),
-                message: format!("rows {a}..{b} out of range for {}", f.path),
-            })?;
-            out.extend_from_slice(slice);
+            for (a, b) in f.row_ranges() {
+                let (a, b) = (a as usize, b as usize);
+                let slice = rows.get(a..b).ok_or_else(|| StoreError::Corrupt {
+                    path: self.dir.clone(),
+                    message: format!("rows {a}..{b} out of range for {}", f.path),
+                })?;
+                out.extend_from_slice(slice);
+            }
         }
         Ok(out)
     }
@@ -369,7 +435,7 @@ impl Store {
                 path: p.clone(),
                 message,
             };
-            let rows: Vec<RowView> = postcard::from_bytes(b).map_err(|e| corrupt(e.to_string()))?;
+            let rows: Vec<RowView> = decode_rows(&p, b)?;
             lens.insert(seg, rows.len());
             let mut kept = Vec::new();
             for (i, r) in rows.iter().enumerate() {
@@ -390,16 +456,18 @@ impl Store {
                     message: format!("segment {} missing", f.segment),
                 });
             };
-            let (a, b) = (f.rows.0 as usize, f.rows.1 as usize);
-            if a > b || b > len {
-                return Err(StoreError::Corrupt {
-                    path: self.dir.clone(),
-                    message: format!("rows {a}..{b} out of range for {}", f.path),
-                });
+            for (a, b) in f.row_ranges() {
+                let (a, b) = (a as usize, b as usize);
+                if a > b || b > len {
+                    return Err(StoreError::Corrupt {
+                        path: self.dir.clone(),
+                        message: format!("rows {a}..{b} out of range for {}", f.path),
+                    });
+                }
+                let from = rows.partition_point(|(i, _)| *i < a);
+                let to = rows.partition_point(|(i, _)| *i < b);
+                out.extend(rows[from..to].iter().map(|(_, r)| r.clone()));
             }
-            let from = rows.partition_point(|(i, _)| *i < a);
-            let to = rows.partition_point(|(i, _)| *i < b);
-            out.extend(rows[from..to].iter().map(|(_, r)| r.clone()));
         }
         Ok(out)
     }
@@ -432,14 +500,7 @@ impl Store {
         if self.index.is_none() {
             let index = open_index(&self.dir, false, &[])?;
             let reader = index.reader()?;
-            let f = schema().1;
-            let s = index.schema();
-            let fields = Fields {
-                path: s.get_field("path").unwrap_or(f.path),
-                text: s.get_field("text").unwrap_or(f.text),
-                line: s.get_field("line").unwrap_or(f.line),
-                start: s.get_field("start").unwrap_or(f.start),
-            };
+            let fields = Fields::of(&index);
             self.index = Some((index, reader, fields));
         }
         self.index.as_ref().ok_or_else(|| StoreError::Corrupt {
@@ -571,14 +632,18 @@ pub struct FileResult {
     pub sentences: Vec<(String, u64, u64, String)>,
 }
 
-/// A scan's writer: holds the lock, collects new segments and index entries, commits at the end.
+/// A scan's writer: holds the lock, writes a new segment and index entries as files come, and
+/// switches the store to them at commit. Claims and rows go to disk as they are added, so its
+/// memory is the file entries and the index writer's budget, whatever the corpus size.
 pub struct StoreWriter {
     dir: PathBuf,
     _lock: File,
     pub old: Manifest,
     segment: u32,
     jsonl: Option<BufWriter<File>>,
-    rows: Vec<ClaimRow>,
+    rows_out: Option<BufWriter<File>>,
+    /// Rows written to the new segment so far.
+    rows: u64,
     offset: u64,
     index_writer: IndexWriter,
     fields: Fields,
@@ -609,14 +674,7 @@ impl StoreWriter {
         };
         let index = open_index(dir, true, &unindexed)?;
         let index_writer: IndexWriter = index.writer(heap_bytes.max(15_000_000))?;
-        let s = index.schema();
-        let f = schema().1;
-        let fields = Fields {
-            path: s.get_field("path").unwrap_or(f.path),
-            text: s.get_field("text").unwrap_or(f.text),
-            line: s.get_field("line").unwrap_or(f.line),
-            start: s.get_field("start").unwrap_or(f.start),
-        };
+        let fields = Fields::of(&index);
         // A new segment number above every one on disk (live or left by a killed scan).
         let mut segment = old.segments().iter().max().copied().unwrap_or(0) + 1;
         if let Ok(rd) = fs::read_dir(dir) {
@@ -642,7 +700,8 @@ impl StoreWriter {
             old,
             segment,
             jsonl: None,
-            rows: Vec::new(),
+            rows_out: None,
+            rows: 0,
             offset: 0,
             index_writer,
             fields,
@@ -666,67 +725,117 @@ impl StoreWriter {
         self.entries.remove(path);
         self.removed.insert(path.to_string());
         self.index_writer
-            .delete_term(Term::from_field_text(self.fields.path, path));
+            .delete_term(Term::from_field_text(self.fields.file, path));
+        Ok(())
+    }
+
+    /// Start a file afresh: its old claims and sentences are dropped, and what [`Self::append`]
+    /// adds next belongs to it. `entry` carries the file's metadata and counts.
+    pub fn begin(&mut self, mut entry: FileEntry) {
+        self.index_writer
+            .delete_term(Term::from_field_text(self.fields.file, &entry.path));
+        entry.claims = 0;
+        entry.segment = 0;
+        entry.rows = (self.rows, self.rows);
+        entry.more_rows.clear();
+        self.removed.remove(&entry.path);
+        self.entries.insert(entry.path.clone(), entry);
+    }
+
+    /// The entry of a file begun in this writer, to update its counts.
+    pub fn entry_mut(&mut self, path: &str) -> Option<&mut FileEntry> {
+        self.entries.get_mut(path)
+    }
+
+    /// Add claims to a file (begun with [`Self::begin`], or new: then it gets an entry with no
+    /// metadata). Claims added to a file after another file's keep their order in a second row
+    /// range.
+    pub fn append_claims(&mut self, path: &str, claims: &[Claim]) -> Result<(), StoreError> {
+        if claims.is_empty() {
+            return Ok(());
+        }
+        if !self.entries.contains_key(path) {
+            self.begin(FileEntry::new(path));
+        }
+        let corrupt = |dir: &Path, e: postcard::Error| StoreError::Corrupt {
+            path: dir.to_path_buf(),
+            message: e.to_string(),
+        };
+        if self.jsonl.is_none() {
+            let p = self.dir.join(seg_name(self.segment, "jsonl"));
+            self.jsonl = Some(BufWriter::new(
+                File::create(&p).map_err(|e| StoreError::io(&p, e))?,
+            ));
+            let p = self.dir.join(seg_name(self.segment, "rows"));
+            self.rows_out = Some(BufWriter::new(
+                File::create(&p).map_err(|e| StoreError::io(&p, e))?,
+            ));
+        }
+        let first = self.rows;
+        let (Some(w), Some(rw)) = (self.jsonl.as_mut(), self.rows_out.as_mut()) else {
+            return Ok(());
+        };
+        let mut line = Vec::new();
+        for c in claims {
+            line.clear();
+            serde_json::to_writer(&mut line, c).map_err(|e| StoreError::Corrupt {
+                path: self.dir.clone(),
+                message: e.to_string(),
+            })?;
+            line.push(b'\n');
+            w.write_all(&line)
+                .map_err(|e| StoreError::io(&self.dir, e))?;
+            let at = ClaimRef {
+                segment: self.segment,
+                offset: self.offset,
+                len: (line.len() - 1) as u32,
+            };
+            self.offset += line.len() as u64;
+            postcard::to_io(&ClaimRow::from_claim(c, at), &mut *rw)
+                .map_err(|e| corrupt(&self.dir, e))?;
+            self.rows += 1;
+        }
+        let (segment, rows) = (self.segment, self.rows);
+        if let Some(entry) = self.entries.get_mut(path) {
+            entry.segment = segment;
+            entry.claims += claims.len() as u64;
+            match entry.more_rows.last_mut() {
+                Some(r) if r.1 == first => r.1 = rows,
+                Some(_) => entry.more_rows.push((first, rows)),
+                None if entry.rows.1 == first => entry.rows.1 = rows,
+                None => entry.more_rows.push((first, rows)),
+            }
+        }
+        Ok(())
+    }
+
+    /// Add one sentence of `file` to the search index (`id`: its document id).
+    pub fn add_sentence(
+        &mut self,
+        file: &str,
+        id: &str,
+        line: u64,
+        start: u64,
+        text: &str,
+    ) -> Result<(), StoreError> {
+        let f = self.fields;
+        self.index_writer.add_document(
+            doc!(f.path => id, f.file => file, f.text => text, f.line => line, f.start => start),
+        )?;
         Ok(())
     }
 
     /// Replace one file's claims and sentences.
     pub fn put(&mut self, result: FileResult) -> Result<(), StoreError> {
-        let Some(mut entry) = result.entry else {
+        let Some(entry) = result.entry else {
             return Ok(());
         };
-        // Documents of a file are indexed under their document id; delete by file path and by
-        // each id the file had.
-        self.index_writer
-            .delete_term(Term::from_field_text(self.fields.path, &entry.path));
-        let mut ids: BTreeSet<&str> = BTreeSet::new();
-        for (id, _, _, _) in &result.sentences {
-            ids.insert(id);
+        let path = entry.path.clone();
+        self.begin(entry);
+        self.append_claims(&path, &result.claims)?;
+        for (id, line, start, text) in &result.sentences {
+            self.add_sentence(&path, id, *line, *start, text)?;
         }
-        for id in &ids {
-            if *id != entry.path {
-                self.index_writer
-                    .delete_term(Term::from_field_text(self.fields.path, id));
-            }
-        }
-        if self.jsonl.is_none() && !result.claims.is_empty() {
-            let p = self.dir.join(seg_name(self.segment, "jsonl"));
-            self.jsonl = Some(BufWriter::new(
-                File::create(&p).map_err(|e| StoreError::io(&p, e))?,
-            ));
-        }
-        let first = self.rows.len() as u64;
-        if let Some(w) = self.jsonl.as_mut() {
-            for c in &result.claims {
-                let mut line = serde_json::to_vec(c).map_err(|e| StoreError::Corrupt {
-                    path: self.dir.clone(),
-                    message: e.to_string(),
-                })?;
-                line.push(b'\n');
-                w.write_all(&line)
-                    .map_err(|e| StoreError::io(&self.dir, e))?;
-                let at = ClaimRef {
-                    segment: self.segment,
-                    offset: self.offset,
-                    len: (line.len() - 1) as u32,
-                };
-                self.offset += line.len() as u64;
-                self.rows.push(ClaimRow::from_claim(c, at));
-            }
-        }
-        entry.segment = if result.claims.is_empty() {
-            0
-        } else {
-            self.segment
-        };
-        entry.rows = (first, self.rows.len() as u64);
-        entry.claims = result.claims.len() as u64;
-        for (id, line, start, text) in result.sentences {
-            self.index_writer
-                .add_document(doc!(self.fields.path => id, self.fields.text => text, self.fields.line => line, self.fields.start => start))?;
-        }
-        self.removed.remove(&entry.path);
-        self.entries.insert(entry.path.clone(), entry);
         Ok(())
     }
 
@@ -737,16 +846,14 @@ impl StoreWriter {
         skipped: Vec<Skipped>,
         failed: Vec<Skipped>,
     ) -> Result<Manifest, StoreError> {
-        if let Some(mut w) = self.jsonl.take() {
-            w.flush().map_err(|e| StoreError::io(&self.dir, e))?;
-            w.get_ref()
-                .sync_all()
-                .map_err(|e| StoreError::io(&self.dir, e))?;
-            let bytes = postcard::to_stdvec(&self.rows).map_err(|e| StoreError::Corrupt {
-                path: self.dir.clone(),
-                message: e.to_string(),
-            })?;
-            write_atomic(&self.dir.join(seg_name(self.segment, "rows")), &bytes)?;
+        for w in [self.jsonl.take(), self.rows_out.take()]
+            .into_iter()
+            .flatten()
+        {
+            let f = w
+                .into_inner()
+                .map_err(|e| StoreError::io(&self.dir, e.into_error()))?;
+            f.sync_all().map_err(|e| StoreError::io(&self.dir, e))?;
         }
         let generation = self.old.generation + 1;
         let mut prepared = self.index_writer.prepare_commit()?;
@@ -804,6 +911,12 @@ pub struct SentenceRecord {
     pub text: String,
 }
 
+/// The record of `extract --sentences` that opens one input file's sentence records.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct FileStart {
+    pub begin_file: String,
+}
+
 /// A file record of `extract --sentences`: closes one input file's records.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
 pub struct FileRecord {
@@ -821,116 +934,158 @@ pub enum ShardLine {
     Claim(Box<Claim>),
     Sentence(SentenceRecord),
     File(FileRecord),
+    Start(FileStart),
 }
 
-/// Collects `extract` shards into per-file results, to be written with [`StoreWriter::put`].
-///
-/// Claims, sentences and file records are grouped by file path; records of one path may come
-/// from several shards (standard input split into partitions gives every partition the path
-/// `-`), and are kept in arrival order, so shards given in corpus order give rows in corpus
-/// order. Everything is held until [`Shards::into_results`]: memory grows with the merged output.
+/// What a merge has seen of one path.
 #[derive(Debug, Default)]
-pub struct Shards {
-    files: BTreeMap<String, FileResult>,
-    /// Paths that had a file record (and so exact document and sentence counts).
-    closed: BTreeSet<String>,
-    docs: BTreeMap<String, BTreeSet<String>>,
-    /// Sentence records waiting for their file record (which may be in the next shard).
-    pending: Vec<SentenceRecord>,
+struct MergedPath {
+    /// It had a file record (and so exact document and sentence counts).
+    closed: bool,
+    /// Documents its claims named, counted where the document id changes (a document's claims
+    /// are neighbours in a shard): the document count of a path without a file record.
+    claim_docs: u64,
+    last_doc: String,
 }
 
-impl Shards {
-    fn file(&mut self, path: &str) -> &mut FileResult {
-        self.files
-            .entry(path.to_string())
-            .or_insert_with(|| FileResult {
-                entry: Some(FileEntry {
-                    path: path.to_string(),
-                    size: 0,
-                    mtime_ns: 0,
-                    hash: String::new(),
-                    documents: 0,
-                    sentences: 0,
-                    claims: 0,
-                    segment: 0,
-                    rows: (0, 0),
-                    warnings: Vec::new(),
-                }),
-                ..FileResult::default()
-            })
+/// Writes `extract` shards into a new store as they are read (the reduce step).
+///
+/// Claims go to the store's segment as they come, grouped by file path in the manifest; records
+/// of one path may come from several shards (standard input split into partitions gives every
+/// partition the path `-`) and keep their arrival order, so shards given in corpus order give
+/// rows in corpus order. Sentences go to the index as they come, under the file their
+/// `begin_file` record named. Memory holds one entry per path, not the merged output. Shards
+/// of older versions without `begin_file` records still merge: their sentences wait for the file
+/// record that names their file.
+pub struct Merge {
+    writer: StoreWriter,
+    paths: HashMap<String, MergedPath>,
+    /// The file whose sentence records are being read.
+    current: Option<String>,
+    /// Sentence records with no `begin_file` before them, waiting for their file record.
+    pending: Vec<SentenceRecord>,
+    pub claims: u64,
+}
+
+impl Merge {
+    /// Merge into `writer`'s store, which must hold no files (else the writer is given up).
+    pub fn new(writer: StoreWriter) -> Result<Merge, StoreError> {
+        if !writer.old.files.is_empty() {
+            let path = writer.dir.clone();
+            writer.abandon();
+            return Err(StoreError::Corrupt {
+                path,
+                message: "the store already holds files; merge into a new store".into(),
+            });
+        }
+        Ok(Merge {
+            writer,
+            paths: HashMap::new(),
+            current: None,
+            pending: Vec::new(),
+            claims: 0,
+        })
     }
 
     /// Add the lines of one shard (`name` is used in error messages).
     pub fn read(&mut self, name: &str, input: impl std::io::BufRead) -> Result<(), StoreError> {
         for (i, line) in input.lines().enumerate() {
-            let line = line.map_err(|e| StoreError::Shard {
+            let shard_error = |message: String| StoreError::Shard {
                 path: name.to_string(),
                 line: i + 1,
-                message: e.to_string(),
-            })?;
+                message,
+            };
+            let line = line.map_err(|e| shard_error(e.to_string()))?;
             if line.trim().is_empty() {
                 continue;
             }
-            let rec: ShardLine = serde_json::from_str(&line).map_err(|e| StoreError::Shard {
-                path: name.to_string(),
-                line: i + 1,
-                message: format!("not a claim, sentence or file record of `hearsay extract`: {e}"),
+            let rec: ShardLine = serde_json::from_str(&line).map_err(|e| {
+                shard_error(format!(
+                    "not a claim, sentence or file record of `hearsay extract`: {e}"
+                ))
             })?;
-            match rec {
-                ShardLine::Claim(c) => {
-                    let id = crate::graph::doc_id(&c.source.path, c.source.record.as_deref());
-                    self.docs
-                        .entry(c.source.path.clone())
-                        .or_default()
-                        .insert(id);
-                    self.file(&c.source.path).claims.push(*c);
+            self.record(rec)?;
+        }
+        Ok(())
+    }
+
+    fn record(&mut self, rec: ShardLine) -> Result<(), StoreError> {
+        match rec {
+            ShardLine::Claim(c) => {
+                let p = self.paths.entry(c.source.path.clone()).or_default();
+                let id = crate::graph::doc_id(&c.source.path, c.source.record.as_deref());
+                if p.last_doc != id || p.claim_docs == 0 {
+                    p.claim_docs += 1;
+                    p.last_doc = id;
                 }
-                // A file's sentence records come before its file record, which names the file.
-                ShardLine::Sentence(s) => self.pending.push(s),
-                ShardLine::File(f) => {
-                    let pending = std::mem::take(&mut self.pending);
-                    let r = self.file(&f.file);
-                    for s in pending {
-                        r.sentences.push((s.sentence_of, s.line, s.start, s.text));
-                    }
-                    if let Some(e) = r.entry.as_mut() {
-                        e.documents += f.documents;
-                        e.sentences += f.sentences;
-                        e.size += f.bytes;
-                    }
-                    self.closed.insert(f.file);
+                self.writer
+                    .append_claims(&c.source.path, std::slice::from_ref(&*c))?;
+                self.claims += 1;
+            }
+            ShardLine::Start(s) => self.current = Some(s.begin_file),
+            ShardLine::Sentence(s) => match &self.current {
+                Some(file) => {
+                    self.writer
+                        .add_sentence(file, &s.sentence_of, s.line, s.start, &s.text)?
+                }
+                None => self.pending.push(s),
+            },
+            ShardLine::File(f) => {
+                for s in std::mem::take(&mut self.pending) {
+                    self.writer
+                        .add_sentence(&f.file, &s.sentence_of, s.line, s.start, &s.text)?;
+                }
+                self.current = None;
+                self.paths.entry(f.file.clone()).or_default().closed = true;
+                if self.writer.entry_mut(&f.file).is_none() {
+                    self.writer.begin(FileEntry::new(&f.file));
+                }
+                if let Some(e) = self.writer.entry_mut(&f.file) {
+                    e.documents += f.documents;
+                    e.sentences += f.sentences;
+                    e.size += f.bytes;
                 }
             }
         }
         Ok(())
     }
 
-    /// True when every file came with a file record (and so with its sentences).
+    /// True when every path came with a file record (and so with its sentences).
     pub fn has_sentences(&self) -> bool {
-        self.files.keys().all(|p| self.closed.contains(p))
+        self.paths.values().all(|p| p.closed)
     }
 
-    /// The per-file results, in path order. Files without a file record count the distinct
-    /// documents their claims name.
-    pub fn into_results(mut self) -> Result<Vec<FileResult>, StoreError> {
+    /// Paths merged.
+    pub fn files(&self) -> usize {
+        self.paths.len()
+    }
+
+    /// Commit the store. Paths without a file record count the documents their claims name.
+    pub fn commit(mut self, patterns: &PatternSet) -> Result<Manifest, StoreError> {
         if !self.pending.is_empty() {
+            let n = self.pending.len();
+            self.writer.abandon();
             return Err(StoreError::Shard {
                 path: "-".into(),
                 line: 0,
                 message: format!(
-                    "{} sentence records after the last file record (a truncated shard?)",
-                    self.pending.len()
+                    "{n} sentence records after the last file record (a truncated shard?)"
                 ),
             });
         }
-        for (path, r) in self.files.iter_mut() {
-            if !self.closed.contains(path) {
-                if let Some(e) = r.entry.as_mut() {
-                    e.documents = self.docs.get(path).map_or(0, |d| d.len() as u64);
+        for (path, p) in &self.paths {
+            if !p.closed {
+                if let Some(e) = self.writer.entry_mut(path) {
+                    e.documents = p.claim_docs;
                 }
             }
         }
-        Ok(self.files.into_values().collect())
+        self.writer.commit(patterns, Vec::new(), Vec::new())
+    }
+
+    /// Give up: nothing is committed.
+    pub fn abandon(self) {
+        self.writer.abandon();
     }
 }
 

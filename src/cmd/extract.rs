@@ -8,7 +8,7 @@ use hearsay::claims::collapse;
 use hearsay::corpus::{self, Input};
 use hearsay::graph::doc_id;
 use hearsay::pipeline;
-use hearsay::store::{FileRecord, SentenceRecord};
+use hearsay::store::{FileRecord, FileStart, SentenceRecord};
 use rayon::prelude::*;
 use std::io::Write;
 use std::process::ExitCode;
@@ -31,9 +31,10 @@ pub struct ExtractArgs {
     /// Exit with status 1 when any file could not be read.
     #[arg(long)]
     pub strict: bool,
-    /// Also print every sentence (`{"sentence_of": doc, "line", "start", "text"}`) and, after
-    /// each file's records, a file record (`{"file", "documents", "sentences", "bytes"}`), so
-    /// that `hearsay merge` can rebuild the search index and co-mention counts.
+    /// Also print every sentence (`{"sentence_of": doc, "line", "start", "text"}`), opened by a
+    /// `{"begin_file": path}` record and closed by a file record (`{"file", "documents",
+    /// "sentences", "bytes"}`) per input file, so that `hearsay merge` can rebuild the search
+    /// index and co-mention counts.
     #[arg(long)]
     pub sentences: bool,
     /// Print only the claims that pass these filters (sentence and file records are kept).
@@ -186,6 +187,22 @@ impl Job<'_> {
         }
     }
 
+    /// The record that opens an input's sentence records under `--sentences`.
+    fn file_start(&self, input: &Input, o: &mut DocOut) {
+        if self.sentences {
+            let rec = FileStart {
+                begin_file: input.label.clone(),
+            };
+            match serde_json::to_string(&rec) {
+                Ok(j) => {
+                    o.text.push_str(&j);
+                    o.text.push('\n');
+                }
+                Err(e) => o.failed = Some(e.to_string()),
+            }
+        }
+    }
+
     /// The file record that closes an input's records under `--sentences`.
     fn file_record(&self, input: &Input, documents: u64, o: &mut DocOut) {
         if self.sentences {
@@ -209,6 +226,7 @@ impl Job<'_> {
     fn whole(&self, input: &Input) -> Extracted {
         let mut warnings = Vec::new();
         let mut o = DocOut::default();
+        self.file_start(input, &mut o);
         let mut docs = 0u64;
         let r = corpus::read_input(input, self.opts, &mut warnings, &mut |d| {
             docs += 1;
@@ -235,7 +253,12 @@ impl Job<'_> {
     ) -> Result<Result<(usize, usize), String>> {
         let (mut claims, mut bytes, mut docs, mut sentences) = (0, 0, 0u64, 0u64);
         let mut failed = None;
+        let mut start = DocOut::default();
+        self.file_start(input, &mut start);
         let (warnings, r) = corpus::read_batched(input, self.opts, BATCH_BYTES, 2, |batch| {
+            if docs == 0 {
+                out.write_all(start.text.as_bytes())?;
+            }
             docs += batch.len() as u64;
             let outs: Vec<DocOut> = batch
                 .par_iter()
@@ -272,6 +295,9 @@ impl Job<'_> {
             bytes,
             ..DocOut::default()
         };
+        if docs == 0 {
+            o.text = start.text;
+        }
         self.file_record(input, docs, &mut o);
         out.write_all(o.text.as_bytes())?;
         Ok(Ok((claims, bytes)))

@@ -3,7 +3,7 @@
 use super::Global;
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::store::{Shards, StoreWriter};
+use hearsay::store::{Merge, StoreWriter};
 use std::io::BufReader;
 use std::process::ExitCode;
 
@@ -13,7 +13,9 @@ use std::process::ExitCode;
 input). The store built is the one `scan` would build from the same documents, claim for claim \
 and count for count, when the shards were written with `extract --sentences` (without it the \
 search index is empty, so co-mention counts are 0). Give shards in corpus order to keep corpus \
-order. The store must be new or empty: merge does not add to a scanned store.\n\nExit status: \
+order. Records are written to the store as they are read: memory does not grow with the \
+shards. The store must be new or empty: merge does not add to a scanned store; on an error \
+nothing is committed.\n\nExit status: \
 0 on success, 2 on an error (a line that is not an extract record names the shard and line)."
 )]
 pub struct MergeArgs {
@@ -27,37 +29,30 @@ pub struct MergeArgs {
 
 pub fn run(g: &Global, a: &MergeArgs) -> Result<ExitCode> {
     let set = g.pattern_set()?;
-    let mut shards = Shards::default();
-    for s in &a.shards {
-        if s == "-" {
-            shards.read("-", std::io::stdin().lock())?;
-        } else {
-            let f = std::fs::File::open(s).with_context(|| format!("{s}: cannot open"))?;
-            shards.read(s, BufReader::with_capacity(1 << 16, f))?;
+    let writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000, &set.lexicon)
+        .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
+    let mut merge = Merge::new(writer)?;
+    // Shards stream into the store; on any error nothing is committed.
+    let read = (|| -> Result<()> {
+        for s in &a.shards {
+            if s == "-" {
+                merge.read("-", std::io::stdin().lock())?;
+            } else {
+                let f = std::fs::File::open(s).with_context(|| format!("{s}: cannot open"))?;
+                merge.read(s, BufReader::with_capacity(1 << 16, f))?;
+            }
         }
+        Ok(())
+    })();
+    if let Err(e) = read {
+        merge.abandon();
+        return Err(e);
     }
-    if !shards.has_sentences() && !g.quiet {
+    if !merge.has_sentences() && !g.quiet {
         g.warn("shards have no sentence records (use `extract --sentences`): co-mention counts will be 0");
     }
-    let results = shards.into_results()?;
-    let mut writer = StoreWriter::open(&g.store, a.index_memory * 1_000_000, &set.lexicon)
-        .with_context(|| format!("cannot open the store {} for writing", g.store.display()))?;
-    if !writer.old.files.is_empty() {
-        writer.abandon();
-        anyhow::bail!(
-            "the store {} already holds files; merge into a new store",
-            g.store.display()
-        );
-    }
-    let (mut files, mut claims) = (0usize, 0usize);
-    for r in results {
-        files += 1;
-        claims += r.claims.len();
-        writer.put(r).context("cannot write to the store")?;
-    }
-    let m = writer
-        .commit(&set, Vec::new(), Vec::new())
-        .context("cannot commit the store")?;
+    let (files, claims) = (merge.files(), merge.claims);
+    let m = merge.commit(&set).context("cannot commit the store")?;
     if !g.quiet {
         let (d, s, _) = m.totals();
         eprintln!("hearsay: merged {files} files, {d} documents, {s} sentences, {claims} claims");

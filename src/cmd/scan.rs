@@ -247,6 +247,7 @@ fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) ->
         claims: 0,
         segment: 0,
         rows: (0, 0),
+        more_rows: Vec::new(),
         warnings,
     });
     Outcome::Changed(Box::new(result))

@@ -125,3 +125,107 @@ fn merge_names_the_shard_and_line_of_a_bad_record() {
     let err = String::from_utf8_lossy(&o.stderr);
     assert!(err.contains("bad.jsonl:2:"), "{err}");
 }
+
+/// Drop the `begin_file` records, as shards of older hearsay versions lack them.
+fn without_begin_records(shard: &[u8]) -> Vec<u8> {
+    let text = String::from_utf8(shard.to_vec()).unwrap();
+    let mut out = String::new();
+    for l in text.lines().filter(|l| !l.starts_with("{\"begin_file\"")) {
+        out.push_str(l);
+        out.push('\n');
+    }
+    out.into_bytes()
+}
+
+#[test]
+fn a_path_split_across_shards_merges_in_order_with_older_shards_too() {
+    let Some(articles) = shared_data("elife-articles/articles") else {
+        return;
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let mut names: Vec<_> = std::fs::read_dir(&articles)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
+    names.sort();
+    // Standard input of six articles as records, split in two partitions (both get the path
+    // `-`), with a text file's shard between them.
+    let records: Vec<String> = names[20..26]
+        .iter()
+        .map(|p| {
+            let text = std::fs::read_to_string(p).unwrap();
+            let id = p.file_stem().unwrap().to_string_lossy().into_owned();
+            serde_json::json!({"id": id, "text": text}).to_string() + "\n"
+        })
+        .collect();
+    let (part1, part2) = (records[..3].concat(), records[3..].concat());
+    let file = tmp.path().join("other.txt");
+    std::fs::copy(&names[30], &file).unwrap();
+    let extract = |stdin: Option<&str>, path: &str| {
+        let mut cmd = hearsay();
+        cmd.args(["-q", "extract", "--sentences", path]);
+        if let Some(s) = stdin {
+            cmd.write_stdin(s.to_string());
+        }
+        let o = cmd.output().unwrap();
+        assert!(o.status.success());
+        o.stdout
+    };
+    let shards = [
+        extract(Some(&part1), "-"),
+        extract(None, file.to_str().unwrap()),
+        without_begin_records(&extract(Some(&part2), "-")),
+    ];
+    assert!(String::from_utf8_lossy(&shards[0]).starts_with("{\"begin_file\":\"-\"}"));
+    let mut args = Vec::new();
+    for (i, s) in shards.iter().enumerate() {
+        let p = tmp.path().join(format!("shard-{i}.jsonl"));
+        std::fs::write(&p, s).unwrap();
+        args.push(p);
+    }
+    let merged = tmp.path().join("merged");
+    hearsay()
+        .arg("--store")
+        .arg(&merged)
+        .arg("merge")
+        .args(&args)
+        .assert()
+        .success();
+    let scanned = tmp.path().join("scanned");
+    let mut scan = hearsay();
+    scan.arg("--store")
+        .arg(&scanned)
+        .args(["-q", "scan", "-"])
+        .arg(&file)
+        .write_stdin(records.concat())
+        .assert()
+        .success();
+    // Claims in store order, not only as sets: the two runs of `-` are one file in order.
+    let claims = out(&["claims"], &scanned);
+    assert!(claims.lines().count() > 100, "{}", claims.lines().count());
+    assert_eq!(claims, out(&["claims"], &merged));
+    let manifest: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(merged.join("manifest.json")).unwrap()).unwrap();
+    let stdin_entry = manifest["files"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["path"] == "-")
+        .unwrap();
+    assert_eq!(stdin_entry["documents"], 6);
+    assert_eq!(
+        stdin_entry["more_rows"].as_array().map(Vec::len),
+        Some(1),
+        "the second run of `-` is a second row range: {stdin_entry}"
+    );
+    let mut co = 0;
+    for t in &json_lines(&["top", "-n", "6"], &scanned) {
+        let (c, e) = (t["cause"].as_str().unwrap(), t["effect"].as_str().unwrap());
+        for (a, b) in [(c, e), (e, "cells"), (c, "protein")] {
+            let s = json_lines(&["pair", a, b], &scanned);
+            assert_eq!(s, json_lines(&["pair", a, b], &merged), "{a} / {b}");
+            co += s[0]["co_mentions"].as_u64().unwrap();
+        }
+    }
+    assert!(co > 0, "no co-mention was compared");
+}

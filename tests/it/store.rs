@@ -190,3 +190,70 @@ fn a_scan_killed_mid_way_leaves_the_last_complete_store() {
         last["claims"].as_u64().unwrap()
     );
 }
+
+/// eLife articles (../shared/data/elife-articles, see its SOURCE.txt) as JSON Lines records.
+fn elife_records(articles: &std::path::Path, picked: &[usize]) -> String {
+    let mut names: Vec<_> = std::fs::read_dir(articles)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
+    names.sort();
+    let mut out = String::new();
+    for &i in picked {
+        let text = std::fs::read_to_string(&names[i]).unwrap();
+        out.push_str(&serde_json::json!({"id": format!("a{i}"), "text": text}).to_string());
+        out.push('\n');
+    }
+    out
+}
+
+#[test]
+fn a_changed_dump_drops_the_sentences_of_records_it_no_longer_has() {
+    let Some(articles) = shared_data("elife-articles/articles") else {
+        return;
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    let dump = corpus.join("dump.jsonl");
+    std::fs::write(&dump, elife_records(&articles, &[3, 40, 77])).unwrap();
+    let store = tmp.path().join("store");
+    scan(&corpus, &store);
+    let pairs: Vec<(String, String)> = json_lines(&["top", "-n", "8"], &store)
+        .iter()
+        .map(|t| {
+            (
+                t["cause"].as_str().unwrap().into(),
+                t["effect"].as_str().unwrap().into(),
+            )
+        })
+        .collect();
+    let co = |store: &std::path::Path| -> Vec<u64> {
+        pairs
+            .iter()
+            .flat_map(|(c, e)| [(c.as_str(), e.as_str()), (e.as_str(), "cells")])
+            .map(|(a, b)| {
+                json_lines(&["pair", a, b], store)[0]["co_mentions"]
+                    .as_u64()
+                    .unwrap()
+            })
+            .collect()
+    };
+    let before = co(&store);
+    // The last record goes; the file's size changes, so it is read again.
+    std::fs::write(&dump, elife_records(&articles, &[3, 40])).unwrap();
+    let again = scan(&corpus, &store);
+    assert_eq!(again["files_read"], 1, "{again}");
+    let fresh = tmp.path().join("fresh");
+    scan(&corpus, &fresh);
+    let after = co(&fresh);
+    assert_ne!(
+        before, after,
+        "the dropped record held none of these co-mentions"
+    );
+    assert_eq!(
+        co(&store),
+        after,
+        "sentences of the dropped record are still counted"
+    );
+}
