@@ -88,6 +88,10 @@ enum Checked {
 /// Files whose reading may wait for others, so that they are read in parallel.
 const READ_BATCH: usize = 64;
 
+/// Text of a streamed input (see `corpus::streams`) extracted at a time, its documents in
+/// parallel (as in `extract`).
+const STREAM_BATCH_BYTES: usize = 1 << 20;
+
 /// Where the outcome of each file goes: the store, the summary, the warnings.
 struct Log<'a> {
     g: &'a Global,
@@ -212,13 +216,11 @@ fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) ->
     let (mut documents, mut text_bytes) = (0u64, 0u64);
     // Each document is taken through the pipeline as soon as it is read, so a JSON Lines dump
     // costs the memory of one record plus its results.
-    let mut take = |d: corpus::Document| {
-        documents += 1;
-        text_bytes += d.text.len() as u64;
-        result.claims.extend(pipeline::document_claims(ex, &d));
+    let take = |d: &corpus::Document, result: &mut FileResult| {
+        result.claims.extend(pipeline::document_claims(ex, d));
         let id = doc_id(&d.path, d.record.as_deref());
         // Index text only (not stored): whitespace need not be collapsed.
-        for s in pipeline::document_sentences(&d) {
+        for s in pipeline::document_sentences(d) {
             result.sentences.push((
                 id.clone(),
                 s.line as u64,
@@ -227,9 +229,42 @@ fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) ->
             ));
         }
     };
+    let mut count = |d: &corpus::Document| {
+        documents += 1;
+        text_bytes += d.text.len() as u64;
+    };
     let done = match &r.stdin_bytes {
-        Some(b) => corpus::read_bytes_into(input, b, opts, &mut warnings, &mut take),
-        None => corpus::read_input(input, opts, &mut warnings, &mut take),
+        Some(b) => corpus::read_bytes_into(input, b, opts, &mut warnings, &mut |d| {
+            count(&d);
+            take(&d, &mut result);
+        }),
+        // A stream (a JSON Lines dump, a large file): batches of its documents in parallel,
+        // their results joined in order.
+        None if corpus::streams(input, opts) => {
+            let (w, r) = corpus::read_batched(input, opts, STREAM_BATCH_BYTES, 2, |batch| {
+                batch.iter().for_each(&mut count);
+                let parts: Vec<FileResult> = batch
+                    .par_iter()
+                    .map(|d| {
+                        let mut part = FileResult::default();
+                        take(d, &mut part);
+                        part
+                    })
+                    .collect();
+                for p in parts {
+                    result.claims.extend(p.claims);
+                    result.sentences.extend(p.sentences);
+                }
+                Ok::<(), std::convert::Infallible>(())
+            })
+            .unwrap_or_else(|never| match never {});
+            warnings = w;
+            r
+        }
+        None => corpus::read_input(input, opts, &mut warnings, &mut |d| {
+            count(&d);
+            take(&d, &mut result);
+        }),
     };
     if let Err(e) = done {
         return Outcome::Failed(Skipped {

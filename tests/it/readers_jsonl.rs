@@ -29,9 +29,18 @@ fn claims_by_document(paths: &[&Path], stdin: Option<&Path>) -> BTreeMap<String,
         "{}",
         String::from_utf8_lossy(&out.stderr)
     );
+    let records: Vec<serde_json::Value> = String::from_utf8(out.stdout)
+        .unwrap()
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    group_by_document(&records)
+}
+
+/// Claim records grouped by input (`txt` for text files) and document.
+fn group_by_document(records: &[serde_json::Value]) -> BTreeMap<String, Claims> {
     let mut by_input: BTreeMap<String, Claims> = BTreeMap::new();
-    for l in String::from_utf8(out.stdout).unwrap().lines() {
-        let c: serde_json::Value = serde_json::from_str(l).unwrap();
+    for c in records {
         let s = |v: &serde_json::Value| v.as_str().unwrap_or_default().to_string();
         let path = s(&c["source"]["path"]);
         let (input, doc) = match c["source"]["record"].as_str() {
@@ -125,4 +134,60 @@ fn elife_as_jsonl_gz_and_zst_gives_the_claims_of_the_text_files() {
             .unwrap_or_else(|| panic!("no claims from {}", p.display()));
         assert_eq!(got, from_txt, "{} differs from the text files", p.display());
     }
+}
+
+/// Copies of the eLife articles picked by `step`, as text files in `txt/` and as one JSON Lines
+/// dump (`{"id": file stem, "text": file text}`).
+fn picked_articles(
+    articles: &Path,
+    tmp: &Path,
+    step: usize,
+    n: usize,
+) -> (std::path::PathBuf, std::path::PathBuf) {
+    let mut files: Vec<_> = std::fs::read_dir(articles)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "txt"))
+        .collect();
+    files.sort();
+    let txt = tmp.join("txt");
+    std::fs::create_dir_all(&txt).unwrap();
+    let mut jsonl = String::new();
+    for f in files.iter().step_by(step).take(n) {
+        std::fs::copy(f, txt.join(f.file_name().unwrap())).unwrap();
+        let id = f.file_stem().unwrap().to_string_lossy();
+        let text = std::fs::read_to_string(f).unwrap();
+        jsonl.push_str(&serde_json::json!({"id": id, "text": text}).to_string());
+        jsonl.push('\n');
+    }
+    let dump = tmp.join("dump").join("elife.jsonl");
+    std::fs::create_dir_all(dump.parent().unwrap()).unwrap();
+    std::fs::write(&dump, jsonl).unwrap();
+    (txt, dump)
+}
+
+#[test]
+fn a_dump_of_many_batches_scans_to_the_claims_of_the_text_files() {
+    let Some(articles) = shared_data("elife-articles/articles") else {
+        return;
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    // 80 articles, about 3 MB: a stream of several 1 MB batches, extracted in parallel.
+    let (txt, dump) = picked_articles(&articles, tmp.path(), 12, 80);
+    assert!(std::fs::metadata(&dump).unwrap().len() > 2 << 20);
+    let from_txt = claims_by_document(&[&txt], None);
+    let store = tmp.path().join("store");
+    json_lines(&["scan", dump.parent().unwrap().to_str().unwrap()], &store);
+    let scanned = group_by_document(&json_lines(&["claims"], &store));
+    let key = dump.to_string_lossy().into_owned();
+    assert!(from_txt["txt"].values().map(Vec::len).sum::<usize>() > 1000);
+    assert_eq!(
+        scanned[&key], from_txt["txt"],
+        "the scanned dump differs from the text files"
+    );
+    let extracted = claims_by_document(&[&dump], None);
+    assert_eq!(
+        extracted[&key], from_txt["txt"],
+        "the extracted dump differs"
+    );
 }
