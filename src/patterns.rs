@@ -136,6 +136,9 @@ pub struct Lexicon {
     /// Nouns that name an outcome (pain, damage, heat), with their plurals: the heads that a cue
     /// marked `outcome_effect` needs.
     pub outcomes: WordSet,
+    /// Names of things that contain a glued cue ("cyclin-dependent kinase"), lower-cased, as
+    /// words: inside them the glued cue states nothing.
+    pub fixed_terms: Vec<Vec<String>>,
 }
 
 /// Everything loaded from one pattern folder.
@@ -665,6 +668,13 @@ struct RawLexicon {
     keys: RawKeys,
     #[serde(default)]
     outcomes: RawOutcomes,
+    #[serde(default)]
+    terms: RawTerms,
+}
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct RawTerms {
+    fixed: Vec<String>,
 }
 #[derive(Deserialize, Default)]
 #[serde(deny_unknown_fields)]
@@ -731,6 +741,18 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
             .filter(|p| !p.is_empty())
             .collect::<Vec<_>>()
     };
+    // A fixed term must hold a glued word ("x-linked"), or it could never match a glued cue.
+    if let Some(t) = raw.terms.fixed.iter().find(|t| {
+        t.split_whitespace()
+            .next()
+            .is_none_or(|w| !w.trim_matches('-').contains('-'))
+    }) {
+        return Err(invalid(
+            path,
+            line_of(text, text.find(&format!("\"{t}\"")).unwrap_or(0)),
+            format!("fixed term \"{t}\" must start with a hyphenated word (\"cyclin-dependent kinase\")"),
+        ));
+    }
     if raw.span.max_words == 0 {
         return Err(invalid(
             path,
@@ -767,6 +789,7 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
                 [plural(&n), n]
             })
             .collect(),
+        fixed_terms: phrases(raw.terms.fixed),
     })
 }
 
@@ -862,6 +885,27 @@ mod tests {
             err.starts_with("x.toml:8: cue 'bad': unknown polarity 'upward'"),
             "{err}"
         );
+    }
+
+    #[test]
+    fn a_fixed_term_without_a_hyphenated_word_names_its_line() {
+        let lexicon = include_str!("../patterns/lexicon.toml");
+        let bad = lexicon.replacen("fixed = [", "fixed = [\"protein kinase\", ", 1);
+        let err = parse_lexicon(Path::new("lexicon.toml"), &bad)
+            .unwrap_err()
+            .to_string();
+        let line = bad
+            .lines()
+            .position(|l| l.contains("\"protein kinase\""))
+            .unwrap()
+            + 1;
+        assert!(
+            err.starts_with(&format!(
+                "lexicon.toml:{line}: fixed term \"protein kinase\""
+            )),
+            "{err}"
+        );
+        assert!(parse_lexicon(Path::new("lexicon.toml"), lexicon).is_ok());
     }
 
     #[test]
