@@ -133,6 +133,9 @@ pub struct Lexicon {
     pub decrease_nouns: WordSet,
     pub change_links: WordSet,
     pub stopwords: WordSet,
+    /// Words that name no variable when they are all a span holds ("the conclusion",
+    /// "possibly"): a claim with such a cause or effect is a statement about reasoning.
+    pub not_alone: WordSet,
     /// Nouns that name an outcome (pain, damage, heat), with their plurals: the heads that a cue
     /// marked `outcome_effect` needs.
     pub outcomes: WordSet,
@@ -721,6 +724,8 @@ struct RawSign {
 #[serde(deny_unknown_fields)]
 struct RawKeys {
     stopwords: Vec<String>,
+    #[serde(default)]
+    not_alone: Vec<String>,
 }
 
 /// Parse `lexicon.toml`.
@@ -780,6 +785,7 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
         decrease_nouns: set(raw.sign.decrease_nouns),
         change_links: set(raw.sign.change_links),
         stopwords: set(raw.keys.stopwords),
+        not_alone: set(raw.keys.not_alone),
         outcomes: raw
             .outcomes
             .nouns
