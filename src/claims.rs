@@ -1523,7 +1523,13 @@ impl Extractor {
                 cause.text, effect.text
             ));
         }
-        let alone = |key: &str| key.split(' ').all(|w| self.not_alone.contains(w));
+        // Only such words, and labels with digits beside them ("Figure 6C").
+        let alone = |key: &str| {
+            key.split(' ').any(|w| self.not_alone.contains(w))
+                && key
+                    .split(' ')
+                    .all(|w| self.not_alone.contains(w) || w.chars().any(|c| c.is_ascii_digit()))
+        };
         if alone(&ckey) || alone(&ekey) {
             return Err(format!(
                 "a span names no variable on its own (cause \"{}\", effect \"{}\"; [keys] \
@@ -1984,7 +1990,8 @@ mod tests {
     /// "These results lead to the conclusion that ..." states an inference, not a cause: on the
     /// eLife articles (990 open-access articles; ../shared/data/elife-articles/SOURCE.txt) about
     /// 300 claims had a cause or effect made only of reasoning words ("conclusion",
-    /// "possibility", "possibly", "suggesting"). Such spans give no claim (`[keys] not_alone`);
+    /// "possibility", "possibly", "suggesting"), and about 1 100 one that only pointed at a
+    /// figure ("(Figure 6C), and reduces ..."). Such spans give no claim (`[keys] not_alone`);
     /// "leads to an increase in" keeps its claim.
     #[test]
     fn reasoning_words_alone_are_no_variable_on_elife_text() {
@@ -2000,10 +2007,28 @@ mod tests {
         let outcome =
             Regex::new(r"(?i)\b(?:leads|led) to (?:an? )?(?:increase|decrease|reduction|loss)\b")
                 .unwrap();
-        let (mut inferred, mut stated, mut kept) = (0, 0, 0);
+        let pointer = Regex::new(r"^(?i:figure|fig\.?|table)\s*\d+[A-Za-z]?$").unwrap();
+        let (mut inferred, mut stated, mut kept, mut pointing) = (0, 0, 0, 0);
         for (path, line) in &lines {
             for s in crate::sentences::split(line) {
                 let text = &line[s.start..s.end];
+                // "(Figure 6C), and reduces ...": a pointer into the paper is no variable.
+                if text.contains("(Figure ") {
+                    pointing += 1;
+                    let sent = SentenceRef {
+                        text,
+                        offset: s.start,
+                    };
+                    for c in claims_after(&e, None, sent) {
+                        assert!(
+                            !pointer.is_match(&c.cause.text) && !pointer.is_match(&c.effect.text),
+                            "{}: a figure as a variable: {} -> {} in {text}",
+                            path.display(),
+                            c.cause.text,
+                            c.effect.text
+                        );
+                    }
+                }
                 let (i, o) = (inference.is_match(text), outcome.is_match(text));
                 if i == o {
                     continue;
@@ -2029,6 +2054,10 @@ mod tests {
         // in them fail the test at once), and 48 of 58 outcome sentences keep a claim (the
         // others fail on their spans: "no cause span found", "either" before the cue).
         assert!(inferred > 20, "only {inferred} inference sentences");
+        assert!(
+            pointing > 1000,
+            "only {pointing} sentences pointing at a figure"
+        );
         assert!(
             kept * 5 >= stated * 4,
             "{kept} of {stated} outcome sentences kept a claim"

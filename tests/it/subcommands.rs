@@ -132,7 +132,7 @@ fn extract_gives_the_same_claims_as_scan() {
     };
     norm(&mut extracted);
     norm(&mut stored);
-    assert_eq!(extracted.len(), 75);
+    assert_eq!(extracted.len(), 73);
     assert_eq!(extracted, stored);
 }
 
