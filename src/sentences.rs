@@ -262,13 +262,14 @@ fn mixed_case_starts(flat: &str, ends: &mut Vec<usize>) {
             continue;
         }
         let w = i + gap;
-        let word = b[w..]
+        let len = b[w..]
             .iter()
             .take(16)
             .take_while(|c| c.is_ascii_alphanumeric())
-            .collect::<Vec<_>>();
-        let mixed = word.first().is_some_and(|c| c.is_ascii_lowercase())
-            && word[1..].iter().any(|c| c.is_ascii_uppercase());
+            .count();
+        let word = &b[w..w + len];
+        let mixed = word.first().is_some_and(u8::is_ascii_lowercase)
+            && word[1..].iter().any(u8::is_ascii_uppercase);
         if mixed {
             ends.push(w);
             added = true;
