@@ -154,22 +154,28 @@ struct DocOut {
     failed: Option<String>,
 }
 
+impl DocOut {
+    /// Append one record as a JSON line, or remember why it could not be written.
+    fn push(&mut self, rec: &impl serde::Serialize) {
+        match serde_json::to_string(rec) {
+            Ok(j) => {
+                self.text.push_str(&j);
+                self.text.push('\n');
+            }
+            Err(e) => self.failed = Some(e.to_string()),
+        }
+    }
+}
+
 impl Job<'_> {
     /// Append one document's claim records (and sentence records) to `o`.
     fn document(&self, d: &corpus::Document, o: &mut DocOut) {
-        let push = |o: &mut DocOut, r: serde_json::Result<String>| match r {
-            Ok(j) => {
-                o.text.push_str(&j);
-                o.text.push('\n');
-            }
-            Err(e) => o.failed = Some(e.to_string()),
-        };
         o.bytes += d.text.len();
         for c in pipeline::document_claims(self.ex, d) {
             if !self.filter.accepts_claim(&c) {
                 continue;
             }
-            push(o, serde_json::to_string(&c));
+            o.push(&c);
             o.claims += 1;
         }
         if self.sentences {
@@ -182,7 +188,7 @@ impl Job<'_> {
                     start: s.start as u64,
                     text: collapse(s.text),
                 };
-                push(o, serde_json::to_string(&rec));
+                o.push(&rec);
             }
         }
     }
@@ -190,16 +196,9 @@ impl Job<'_> {
     /// The record that opens an input's sentence records under `--sentences`.
     fn file_start(&self, input: &Input, o: &mut DocOut) {
         if self.sentences {
-            let rec = FileStart {
+            o.push(&FileStart {
                 begin_file: input.label.clone(),
-            };
-            match serde_json::to_string(&rec) {
-                Ok(j) => {
-                    o.text.push_str(&j);
-                    o.text.push('\n');
-                }
-                Err(e) => o.failed = Some(e.to_string()),
-            }
+            });
         }
     }
 
@@ -212,13 +211,7 @@ impl Job<'_> {
                 sentences: o.sentences,
                 bytes: o.bytes as u64,
             };
-            match serde_json::to_string(&rec) {
-                Ok(j) => {
-                    o.text.push_str(&j);
-                    o.text.push('\n');
-                }
-                Err(e) => o.failed = Some(e.to_string()),
-            }
+            o.push(&rec);
         }
     }
 
