@@ -58,6 +58,28 @@ pub fn json_lines(args: &[&str], store: &Path) -> Vec<serde_json::Value> {
         .collect()
 }
 
+/// The files of a folder, sorted by name (the order the shared datasets are read in).
+pub fn sorted_files(dir: &Path) -> Vec<PathBuf> {
+    let mut files: Vec<PathBuf> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
+    files.sort();
+    files
+}
+
+/// One JSON Lines record `{"id": id, "text": the file's text}`, newline included: the dump the
+/// JSON Lines reader reads with its default fields.
+pub fn text_record(id: &str, file: &Path) -> String {
+    let text = std::fs::read_to_string(file).unwrap();
+    serde_json::json!({"id": id, "text": text}).to_string() + "\n"
+}
+
+/// A file's name without its extension.
+pub fn stem(file: &Path) -> String {
+    file.file_stem().unwrap().to_string_lossy().into_owned()
+}
+
 /// Copy a folder tree.
 pub fn copy_tree(from: &Path, to: &Path) {
     std::fs::create_dir_all(to).unwrap();

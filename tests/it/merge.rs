@@ -29,11 +29,7 @@ fn merged_shards_equal_a_scan_claim_for_claim_and_count_for_count() {
     let tmp = tempfile::tempdir().unwrap();
     let corpus = tmp.path().join("corpus");
     std::fs::create_dir_all(&corpus).unwrap();
-    let mut names: Vec<_> = std::fs::read_dir(&articles)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .collect();
-    names.sort();
+    let names = sorted_files(&articles);
     for p in names.iter().take(12) {
         std::fs::copy(p, corpus.join(p.file_name().unwrap())).unwrap();
     }
@@ -143,20 +139,12 @@ fn a_path_split_across_shards_merges_in_order_with_older_shards_too() {
         return;
     };
     let tmp = tempfile::tempdir().unwrap();
-    let mut names: Vec<_> = std::fs::read_dir(&articles)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .collect();
-    names.sort();
+    let names = sorted_files(&articles);
     // Standard input of six articles as records, split in two partitions (both get the path
     // `-`), with a text file's shard between them.
     let records: Vec<String> = names[20..26]
         .iter()
-        .map(|p| {
-            let text = std::fs::read_to_string(p).unwrap();
-            let id = p.file_stem().unwrap().to_string_lossy().into_owned();
-            serde_json::json!({"id": id, "text": text}).to_string() + "\n"
-        })
+        .map(|p| text_record(&stem(p), p))
         .collect();
     let (part1, part2) = (records[..3].concat(), records[3..].concat());
     let file = tmp.path().join("other.txt");

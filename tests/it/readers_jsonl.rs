@@ -79,28 +79,8 @@ fn elife_as_jsonl_gz_and_zst_gives_the_claims_of_the_text_files() {
     if !external_tool("zstd", "zstd") {
         return;
     }
-    let mut files: Vec<_> = std::fs::read_dir(&articles)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|e| e == "txt"))
-        .collect();
-    files.sort();
-    let picked: Vec<_> = files.iter().step_by(120).take(8).collect();
-    assert_eq!(picked.len(), 8);
-
     let tmp = tempfile::tempdir().unwrap();
-    let txt = tmp.path().join("txt");
-    std::fs::create_dir_all(&txt).unwrap();
-    let mut jsonl = String::new();
-    for f in &picked {
-        std::fs::copy(f, txt.join(f.file_name().unwrap())).unwrap();
-        let id = f.file_stem().unwrap().to_string_lossy();
-        let text = std::fs::read_to_string(f).unwrap();
-        jsonl.push_str(&serde_json::json!({"id": id, "text": text}).to_string());
-        jsonl.push('\n');
-    }
-    let dump = tmp.path().join("elife.jsonl");
-    std::fs::write(&dump, jsonl).unwrap();
+    let (txt, dump) = picked_articles(&articles, tmp.path(), 120, 8);
     let gz = tmp.path().join("elife2.jsonl.gz");
     let st = Command::new("python3")
         .args([
@@ -144,21 +124,18 @@ fn picked_articles(
     step: usize,
     n: usize,
 ) -> (std::path::PathBuf, std::path::PathBuf) {
-    let mut files: Vec<_> = std::fs::read_dir(articles)
-        .unwrap()
-        .map(|e| e.unwrap().path())
+    let files: Vec<_> = sorted_files(articles)
+        .into_iter()
         .filter(|p| p.extension().is_some_and(|e| e == "txt"))
         .collect();
-    files.sort();
+    let picked: Vec<_> = files.iter().step_by(step).take(n).collect();
+    assert_eq!(picked.len(), n);
     let txt = tmp.join("txt");
     std::fs::create_dir_all(&txt).unwrap();
     let mut jsonl = String::new();
-    for f in files.iter().step_by(step).take(n) {
+    for f in picked {
         std::fs::copy(f, txt.join(f.file_name().unwrap())).unwrap();
-        let id = f.file_stem().unwrap().to_string_lossy();
-        let text = std::fs::read_to_string(f).unwrap();
-        jsonl.push_str(&serde_json::json!({"id": id, "text": text}).to_string());
-        jsonl.push('\n');
+        jsonl.push_str(&text_record(&stem(f), f));
     }
     let dump = tmp.join("dump").join("elife.jsonl");
     std::fs::create_dir_all(dump.parent().unwrap()).unwrap();

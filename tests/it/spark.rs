@@ -27,18 +27,12 @@ fn spark_partitions_piped_through_extract_merge_to_a_scan() {
         return;
     };
     let tmp = tempfile::tempdir().unwrap();
-    let mut names: Vec<_> = std::fs::read_dir(&articles)
-        .unwrap()
-        .map(|e| e.unwrap().path())
+    let names = sorted_files(&articles);
+    let jsonl: String = names
+        .iter()
+        .take(9)
+        .map(|p| text_record(&stem(p), p))
         .collect();
-    names.sort();
-    let mut jsonl = String::new();
-    for p in names.iter().take(9) {
-        let text = std::fs::read_to_string(p).unwrap();
-        let id = p.file_stem().unwrap().to_string_lossy().to_string();
-        jsonl.push_str(&serde_json::json!({"id": id, "text": text}).to_string());
-        jsonl.push('\n');
-    }
     let corpus = tmp.path().join("corpus.jsonl");
     std::fs::write(&corpus, &jsonl).unwrap();
     let scanned = tmp.path().join("scanned");

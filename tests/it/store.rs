@@ -193,18 +193,11 @@ fn a_scan_killed_mid_way_leaves_the_last_complete_store() {
 
 /// eLife articles (../shared/data/elife-articles, see its SOURCE.txt) as JSON Lines records.
 fn elife_records(articles: &std::path::Path, picked: &[usize]) -> String {
-    let mut names: Vec<_> = std::fs::read_dir(articles)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .collect();
-    names.sort();
-    let mut out = String::new();
-    for &i in picked {
-        let text = std::fs::read_to_string(&names[i]).unwrap();
-        out.push_str(&serde_json::json!({"id": format!("a{i}"), "text": text}).to_string());
-        out.push('\n');
-    }
-    out
+    let names = sorted_files(articles);
+    picked
+        .iter()
+        .map(|&i| text_record(&format!("a{i}"), &names[i]))
+        .collect()
 }
 
 #[test]
