@@ -1806,6 +1806,26 @@ mod tests {
         claims_after(e, None, SentenceRef { text, offset: 0 })
     }
 
+    /// Every sentence of `lines` (path, one paragraph a line: `testdata::elife_lines`) with the
+    /// sentence before it in the same line.
+    fn sentences_of(
+        lines: &[(std::path::PathBuf, String)],
+    ) -> Vec<(&std::path::Path, Option<SentenceRef<'_>>, SentenceRef<'_>)> {
+        let mut out = Vec::new();
+        for (path, line) in lines {
+            let mut prev = None;
+            for s in crate::sentences::split(line) {
+                let sent = SentenceRef {
+                    text: &line[s.start..s.end],
+                    offset: s.start,
+                };
+                out.push((path.as_path(), prev, sent));
+                prev = Some(sent);
+            }
+        }
+        out
+    }
+
     /// The claims of `sent`, with `prev` as the sentence before it.
     fn claims_after(
         e: &Extractor,
@@ -1954,29 +1974,21 @@ mod tests {
         let e = ex();
         let digit_cause = Regex::new(r"\d\s+caus(?:es|ed|e)\s").unwrap();
         let (mut claims_seen, mut after_digit) = (0, 0);
-        for (path, line) in &lines {
-            let mut prev = None;
-            for s in crate::sentences::split(line) {
-                let text = &line[s.start..s.end];
-                let sent = SentenceRef {
-                    text,
-                    offset: s.start,
-                };
-                let cs = claims_after(&e, prev, sent);
-                prev = Some(sent);
-                for c in &cs {
-                    claims_seen += 1;
-                    for key in [&c.cause.key, &c.effect.key] {
-                        assert!(
-                            !numbers_only(key),
-                            "{}: number-only variable {key:?} in {text}",
-                            path.display()
-                        );
-                    }
+        for (path, prev, sent) in sentences_of(&lines) {
+            let text = sent.text;
+            let cs = claims_after(&e, prev, sent);
+            for c in &cs {
+                claims_seen += 1;
+                for key in [&c.cause.key, &c.effect.key] {
+                    assert!(
+                        !numbers_only(key),
+                        "{}: number-only variable {key:?} in {text}",
+                        path.display()
+                    );
                 }
-                if digit_cause.is_match(text) && cs.iter().any(|c| c.cue == "cause") {
-                    after_digit += 1;
-                }
+            }
+            if digit_cause.is_match(text) && cs.iter().any(|c| c.cue == "cause") {
+                after_digit += 1;
             }
         }
         // Measured on 300 articles: 22 849 claims, 27 with a number right before "cause" (1 with
@@ -2009,45 +2021,37 @@ mod tests {
                 .unwrap();
         let pointer = Regex::new(r"^(?i:figure|fig\.?|table)\s*\d+[A-Za-z]?$").unwrap();
         let (mut inferred, mut stated, mut kept, mut pointing) = (0, 0, 0, 0);
-        for (path, line) in &lines {
-            for s in crate::sentences::split(line) {
-                let text = &line[s.start..s.end];
-                // "(Figure 6C), and reduces ...": a pointer into the paper is no variable.
-                if text.contains("(Figure ") {
-                    pointing += 1;
-                    let sent = SentenceRef {
-                        text,
-                        offset: s.start,
-                    };
-                    for c in claims_after(&e, None, sent) {
-                        assert!(
-                            !pointer.is_match(&c.cause.text) && !pointer.is_match(&c.effect.text),
-                            "{}: a figure as a variable: {} -> {} in {text}",
-                            path.display(),
-                            c.cause.text,
-                            c.effect.text
-                        );
-                    }
+        for (path, _, sent) in sentences_of(&lines) {
+            let text = sent.text;
+            // "(Figure 6C), and reduces ...": a pointer into the paper is no variable.
+            let figure = text.contains("(Figure ");
+            let (i, o) = (inference.is_match(text), outcome.is_match(text));
+            if !figure && i == o {
+                continue;
+            }
+            let cs = claims_after(&e, None, sent);
+            if figure {
+                pointing += 1;
+                for c in &cs {
+                    assert!(
+                        !pointer.is_match(&c.cause.text) && !pointer.is_match(&c.effect.text),
+                        "{}: a figure as a variable: {} -> {} in {text}",
+                        path.display(),
+                        c.cause.text,
+                        c.effect.text
+                    );
                 }
-                let (i, o) = (inference.is_match(text), outcome.is_match(text));
-                if i == o {
-                    continue;
-                }
-                let sent = SentenceRef {
-                    text,
-                    offset: s.start,
-                };
-                let n = claims_after(&e, None, sent)
-                    .iter()
-                    .filter(|c| c.cue == "lead-to")
-                    .count();
-                if i {
-                    inferred += 1;
-                    assert_eq!(n, 0, "{}: an inference claimed in {text}", path.display());
-                } else {
-                    stated += 1;
-                    kept += n.min(1);
-                }
+            }
+            if i == o {
+                continue;
+            }
+            let n = cs.iter().filter(|c| c.cue == "lead-to").count();
+            if i {
+                inferred += 1;
+                assert_eq!(n, 0, "{}: an inference claimed in {text}", path.display());
+            } else {
+                stated += 1;
+                kept += n.min(1);
             }
         }
         // Measured on all 990 articles: 27 inference sentences (with the list emptied, claims
@@ -2084,43 +2088,38 @@ mod tests {
             Regex::new(r"(?i)\b(?:shrna|sirna|clathrin)-mediated (?:knockdown|endocytosis)\b|\bdiet-induced obesity\b")
                 .unwrap();
         let (mut named, mut stated, mut kept) = (0, 0, 0);
-        for (path, line) in &lines {
-            for s in crate::sentences::split(line) {
-                let text = &line[s.start..s.end];
-                let in_name = names.is_match(text);
-                let in_statement = statements.is_match(text);
-                if !in_name && !in_statement {
-                    continue;
+        for (path, _, sent) in sentences_of(&lines) {
+            let text = sent.text;
+            let in_name = names.is_match(text);
+            let in_statement = statements.is_match(text);
+            if !in_name && !in_statement {
+                continue;
+            }
+            let glued: Vec<Claim> = claims_after(&e, None, sent)
+                .into_iter()
+                .filter(|c| c.cue.starts_with("hyphen-"))
+                .collect();
+            if in_name && !in_statement {
+                named += 1;
+                for c in &glued {
+                    let inside = |span: &crate::model::Slot| {
+                        names.find_iter(text).any(|m| {
+                            span.start - sent.offset >= m.start()
+                                && span.end - sent.offset <= m.end()
+                        })
+                    };
+                    assert!(
+                        !(inside(&c.cause) && inside(&c.effect)),
+                        "{}: a claim inside a fixed name: {} -> {} in {text}",
+                        path.display(),
+                        c.cause.text,
+                        c.effect.text
+                    );
                 }
-                let sent = SentenceRef {
-                    text,
-                    offset: s.start,
-                };
-                let glued: Vec<Claim> = claims_after(&e, None, sent)
-                    .into_iter()
-                    .filter(|c| c.cue.starts_with("hyphen-"))
-                    .collect();
-                if in_name && !in_statement {
-                    named += 1;
-                    for c in &glued {
-                        let inside = |span: &crate::model::Slot| {
-                            names.find_iter(text).any(|m| {
-                                span.start - s.start >= m.start() && span.end - s.start <= m.end()
-                            })
-                        };
-                        assert!(
-                            !(inside(&c.cause) && inside(&c.effect)),
-                            "{}: a claim inside a fixed name: {} -> {} in {text}",
-                            path.display(),
-                            c.cause.text,
-                            c.effect.text
-                        );
-                    }
-                }
-                if in_statement {
-                    stated += 1;
-                    kept += usize::from(!glued.is_empty());
-                }
+            }
+            if in_statement {
+                stated += 1;
+                kept += usize::from(!glued.is_empty());
             }
         }
         // Measured on all 990 articles: 59 sentences with one of these names (each gave a
@@ -2150,31 +2149,25 @@ mod tests {
         .unwrap();
         let stated = Regex::new(r"\b[a-z]{4,} determines\b").unwrap();
         let (mut measured, mut kept, mut stated_sentences) = (0, 0, 0);
-        for (path, line) in &lines {
-            for s in crate::sentences::split(line) {
-                let text = &line[s.start..s.end];
-                let sent = SentenceRef {
-                    text,
-                    offset: s.start,
-                };
-                let n = claims_after(&e, None, sent)
-                    .iter()
-                    .filter(|c| c.cue == "determine")
-                    .count();
-                let once = text.to_lowercase().matches("determin").count() == 1;
-                if once && measuring.is_match(text) {
-                    measured += 1;
-                    assert_eq!(
-                        n,
-                        0,
-                        "{}: a measuring 'determine' claimed in {text}",
-                        path.display()
-                    );
-                }
-                if once && stated.is_match(text) {
-                    stated_sentences += 1;
-                    kept += n.min(1);
-                }
+        for (path, _, sent) in sentences_of(&lines) {
+            let text = sent.text;
+            let n = claims_after(&e, None, sent)
+                .iter()
+                .filter(|c| c.cue == "determine")
+                .count();
+            let once = text.to_lowercase().matches("determin").count() == 1;
+            if once && measuring.is_match(text) {
+                measured += 1;
+                assert_eq!(
+                    n,
+                    0,
+                    "{}: a measuring 'determine' claimed in {text}",
+                    path.display()
+                );
+            }
+            if once && stated.is_match(text) {
+                stated_sentences += 1;
+                kept += n.min(1);
             }
         }
         // Sentences with one "determin..." only, so the sentence shows which use was read.
@@ -2200,39 +2193,37 @@ mod tests {
         }
         let e = ex();
         let (mut addresses, mut glued, mut glued_claims) = (0, 0, 0);
-        for (path, line) in &lines {
-            for s in crate::sentences::split(line) {
-                let text = &line[s.start..s.end];
-                let address = text.contains(", Foster City") || text.contains(", Sparks, MD");
-                let glued_after_comma = text.split(", ").skip(1).any(|rest| {
-                    rest.starts_with(char::is_uppercase)
-                        && rest
-                            .split(' ')
-                            .next()
-                            .is_some_and(|w| w.ends_with("-mediated") || w.ends_with("-induced"))
-                });
-                if !address && !glued_after_comma {
-                    continue;
+        for (path, _, sent) in sentences_of(&lines) {
+            let text = sent.text;
+            let address = text.contains(", Foster City") || text.contains(", Sparks, MD");
+            let glued_after_comma = text.split(", ").skip(1).any(|rest| {
+                rest.starts_with(char::is_uppercase)
+                    && rest
+                        .split(' ')
+                        .next()
+                        .is_some_and(|w| w.ends_with("-mediated") || w.ends_with("-induced"))
+            });
+            if !address && !glued_after_comma {
+                continue;
+            }
+            let cs = claims(&e, text);
+            if address {
+                addresses += 1;
+                for c in &cs {
+                    assert!(
+                        !["foster", "spark"].contains(&c.cue.as_str()),
+                        "{}: a place name read as a claim: {text}",
+                        path.display()
+                    );
                 }
-                let cs = claims(&e, text);
-                if address {
-                    addresses += 1;
-                    for c in &cs {
-                        assert!(
-                            !["foster", "spark"].contains(&c.cue.as_str()),
-                            "{}: a place name read as a claim: {text}",
-                            path.display()
-                        );
-                    }
-                }
-                if glued_after_comma {
-                    glued += 1;
-                    glued_claims += cs
-                        .iter()
-                        .filter(|c| c.cue.starts_with("hyphen-"))
-                        .count()
-                        .min(1);
-                }
+            }
+            if glued_after_comma {
+                glued += 1;
+                glued_claims += cs
+                    .iter()
+                    .filter(|c| c.cue.starts_with("hyphen-"))
+                    .count()
+                    .min(1);
             }
         }
         assert!(addresses >= 10, "{addresses} address sentences");
