@@ -131,11 +131,6 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
 
 type Extracted = (Result<(String, usize, usize), String>, Vec<String>);
 
-/// Text of a streamed input handed to the extractor at a time: with two batches read ahead, a
-/// stream holds about 3 MB of documents. On eLife as one JSON Lines file, 1 MB batches ran as
-/// fast as the folder of files at -j2 with 88 MB peak RSS; 4 MB batches held 105 MB.
-const BATCH_BYTES: usize = 1 << 20;
-
 /// What every input is extracted with.
 struct Job<'a> {
     ex: &'a hearsay::claims::Extractor,
@@ -248,7 +243,7 @@ impl Job<'_> {
         let mut failed = None;
         let mut start = DocOut::default();
         self.file_start(input, &mut start);
-        let (warnings, r) = corpus::read_batched(input, self.opts, BATCH_BYTES, 2, |batch| {
+        let (warnings, r) = corpus::read_batched(input, self.opts, |batch| {
             if docs == 0 {
                 out.write_all(start.text.as_bytes())?;
             }

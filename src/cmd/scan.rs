@@ -88,10 +88,6 @@ enum Checked {
 /// Files whose reading may wait for others, so that they are read in parallel.
 const READ_BATCH: usize = 64;
 
-/// Text of a streamed input (see `corpus::streams`) extracted at a time, its documents in
-/// parallel (as in `extract`).
-const STREAM_BATCH_BYTES: usize = 1 << 20;
-
 /// Where the outcome of each file goes: the store, the summary, the warnings.
 struct Log<'a> {
     g: &'a Global,
@@ -241,7 +237,7 @@ fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) ->
         // A stream (a JSON Lines dump, a large file): batches of its documents in parallel,
         // their results joined in order.
         None if corpus::streams(input, opts) => {
-            let (w, r) = corpus::read_batched(input, opts, STREAM_BATCH_BYTES, 2, |batch| {
+            let (w, r) = corpus::read_batched(input, opts, |batch| {
                 batch.iter().for_each(&mut count);
                 let parts: Vec<FileResult> = batch
                     .par_iter()
@@ -273,17 +269,13 @@ fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) ->
         });
     }
     result.entry = Some(FileEntry {
-        path: input.label.clone(),
         size: if input.is_stdin() { text_bytes } else { r.size },
         mtime_ns: r.mtime,
         hash: r.hash,
         documents,
         sentences: result.sentences.len() as u64,
-        claims: 0,
-        segment: 0,
-        rows: (0, 0),
-        more_rows: Vec::new(),
         warnings,
+        ..FileEntry::new(&input.label)
     });
     Outcome::Changed(Box::new(result))
 }
