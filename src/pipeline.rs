@@ -11,8 +11,10 @@ use crate::corpus::Document;
 use crate::model::Claim;
 use crate::sentences::{self, SentenceSpan};
 
-/// The largest block around a hit that is split into sentences, on each side of it.
-const BLOCK_CAP: usize = 4096;
+/// The largest block around a hit that is split into sentences, on each side of it. Paragraphs
+/// are seldom longer (eLife's longest line is 6 KB), so a block is nearly always a whole
+/// paragraph and its sentences are the ones a split of the whole document gives.
+const BLOCK_CAP: usize = 32 * 1024;
 
 /// Byte offsets of line starts, for turning offsets into line and column.
 #[derive(Debug, Clone)]
@@ -60,14 +62,12 @@ fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&
     let lines = LineIndex::new(text);
     let mut h = 0;
     while h < hits.len() {
-        let (bs, be) =
-            sentences::block_around(text, hits[h].pos, doc.lines_are_paragraphs, BLOCK_CAP);
+        let (spans, be) = block_sentences(text, hits[h].pos, doc.lines_are_paragraphs);
         let mut h_end = h;
         while h_end < hits.len() && hits[h_end].pos < be {
             h_end += 1;
         }
         let block_hits = &hits[h..h_end.max(h + 1)];
-        let spans = sentences::split_region(text, bs, be);
         let mut k = 0;
         for (si, s) in spans.iter().enumerate() {
             // Hits inside this sentence.
@@ -105,6 +105,24 @@ fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&
         }
         h = h_end.max(h + 1);
     }
+}
+
+/// The sentences of the block around the hit at `pos`, and the byte where the block ends (hits
+/// from there on belong to later blocks). A block cut short by [`BLOCK_CAP`] inside a paragraph
+/// loses the sentence at each cut edge, which may be a fragment: it starts and ends at sentence
+/// boundaries, so a claim's sentence does not depend on where the hits before it fell.
+fn block_sentences(text: &str, pos: usize, lines: bool) -> (Vec<SentenceSpan>, usize) {
+    let block = sentences::block_around(text, pos, lines, BLOCK_CAP);
+    let mut spans = sentences::split_region(text, block.start, block.end);
+    let mut end = block.end;
+    if block.cut_end && spans.len() > 1 && spans[spans.len() - 1].start > pos {
+        end = spans[spans.len() - 1].start;
+        spans.pop();
+    }
+    if block.cut_start && spans.len() > 1 && spans[1].start <= pos {
+        spans.remove(0);
+    }
+    (spans, end)
 }
 
 /// A sentence for the search index.

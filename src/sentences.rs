@@ -102,37 +102,54 @@ pub fn split_region(text: &str, start: usize, end: usize) -> Vec<SentenceSpan> {
     out
 }
 
+/// A block of text around a position: see [`block_around`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Block {
+    pub start: usize,
+    pub end: usize,
+    /// The block starts (ends) where the length cap cut it, not at a paragraph edge: the
+    /// sentence at that edge may be a fragment.
+    pub cut_start: bool,
+    pub cut_end: bool,
+}
+
 /// The paragraph-like block around byte `pos`: from the previous blank line (or a line break, when
 /// `lines_are_paragraphs` is true) to the next one, capped at `max_len` bytes on each side (cut at a
 /// char boundary / whitespace). Used to segment only the text around a cue hit.
-pub fn block_around(
-    text: &str,
-    pos: usize,
-    lines_are_paragraphs: bool,
-    max_len: usize,
-) -> (usize, usize) {
+pub fn block_around(text: &str, pos: usize, lines_are_paragraphs: bool, max_len: usize) -> Block {
     let b = text.as_bytes();
     let pos = floor_boundary(text, pos.min(text.len()));
     let lo = pos.saturating_sub(max_len);
     let hi = pos.saturating_add(max_len).min(text.len());
     // A cut window starts after its first whitespace and ends at its last one.
-    let start = match paragraph_break(b, (lo..pos).rev(), lines_are_paragraphs) {
-        Some(i) => i + 1,
-        None if lo == 0 => 0,
-        None => b[lo..pos]
-            .iter()
-            .position(u8::is_ascii_whitespace)
-            .map_or_else(|| ceil_boundary(text, lo), |k| lo + k + 1),
+    let (start, cut_start) = match paragraph_break(b, (lo..pos).rev(), lines_are_paragraphs) {
+        Some(i) => (i + 1, false),
+        None if lo == 0 => (0, false),
+        None => (
+            b[lo..pos]
+                .iter()
+                .position(u8::is_ascii_whitespace)
+                .map_or_else(|| ceil_boundary(text, lo), |k| lo + k + 1),
+            true,
+        ),
     };
-    let end = match paragraph_break(b, pos..hi, lines_are_paragraphs) {
-        Some(i) => i,
-        None if hi == text.len() => hi,
-        None => b[pos..hi]
-            .iter()
-            .rposition(u8::is_ascii_whitespace)
-            .map_or_else(|| floor_boundary(text, hi), |k| pos + k),
+    let (end, cut_end) = match paragraph_break(b, pos..hi, lines_are_paragraphs) {
+        Some(i) => (i, false),
+        None if hi == text.len() => (hi, false),
+        None => (
+            b[pos..hi]
+                .iter()
+                .rposition(u8::is_ascii_whitespace)
+                .map_or_else(|| floor_boundary(text, hi), |k| pos + k),
+            true,
+        ),
     };
-    (start.min(pos), end.max(pos))
+    Block {
+        start: start.min(pos),
+        end: end.max(pos),
+        cut_start,
+        cut_end,
+    }
 }
 
 /// Walking `idx` away from a position, the first newline of the nearest blank line (of the
@@ -636,9 +653,9 @@ mod tests {
             let (a, b) = (rng() % (text.len() + 2), rng() % (text.len() + 2));
             let spans = split_region(&text, a.min(b), a.max(b));
             check_invariants(&text, &spans, a.min(b), a.max(b).min(text.len()));
-            let (s, e) = block_around(&text, a, rng() % 2 == 0, rng() % 40);
-            assert!(s <= e && e <= text.len());
-            assert!(text.is_char_boundary(s) && text.is_char_boundary(e));
+            let b = block_around(&text, a, rng() % 2 == 0, rng() % 40);
+            assert!(b.start <= b.end && b.end <= text.len());
+            assert!(text.is_char_boundary(b.start) && text.is_char_boundary(b.end));
         }
     }
 
@@ -665,8 +682,8 @@ mod tests {
     }
 
     fn block(text: &str, pos: usize, lines: bool, max_len: usize) -> &str {
-        let (s, e) = block_around(text, pos, lines, max_len);
-        &text[s..e]
+        let b = block_around(text, pos, lines, max_len);
+        &text[b.start..b.end]
     }
 
     #[test]
@@ -684,9 +701,11 @@ mod tests {
             "gamma delta"
         );
         let cjk = "雨".repeat(50);
-        let (s, e) = block_around(&cjk, 75, false, 10);
-        assert!(cjk.is_char_boundary(s) && cjk.is_char_boundary(e) && s < 75 && e > 75);
-        assert_eq!(block_around("", 5, false, 10), (0, 0));
+        let b = block_around(&cjk, 75, false, 10);
+        assert!(cjk.is_char_boundary(b.start) && cjk.is_char_boundary(b.end));
+        assert!(b.start < 75 && b.end > 75 && b.cut_start && b.cut_end);
+        let whole = block_around("", 5, false, 10);
+        assert_eq!((whole.start, whole.end, whole.cut_start, whole.cut_end), (0, 0, false, false));
     }
 
     /// Checked against the sentence boundaries of the GUM corpus (Zeldes 2017; CC BY 4.0
