@@ -53,7 +53,17 @@ pub fn document_attempts(ex: &Extractor, doc: &Document) -> (Vec<Claim>, Vec<Att
     (out, trace)
 }
 
-fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&mut Vec<Attempt>>) {
+fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, trace: Option<&mut Vec<Attempt>>) {
+    run_capped(ex, doc, out, trace, BLOCK_CAP);
+}
+
+fn run_capped(
+    ex: &Extractor,
+    doc: &Document,
+    out: &mut Vec<Claim>,
+    mut trace: Option<&mut Vec<Attempt>>,
+    cap: usize,
+) {
     let text = doc.text.as_str();
     let hits = ex.cues.hits(text);
     if hits.is_empty() {
@@ -62,7 +72,7 @@ fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&
     let lines = LineIndex::new(text);
     let mut h = 0;
     while h < hits.len() {
-        let (spans, be) = block_sentences(text, hits[h].pos, doc.lines_are_paragraphs);
+        let (spans, be) = block_sentences(text, hits[h].pos, doc.lines_are_paragraphs, cap);
         let mut h_end = h;
         while h_end < hits.len() && hits[h_end].pos < be {
             h_end += 1;
@@ -108,11 +118,11 @@ fn run(ex: &Extractor, doc: &Document, out: &mut Vec<Claim>, mut trace: Option<&
 }
 
 /// The sentences of the block around the hit at `pos`, and the byte where the block ends (hits
-/// from there on belong to later blocks). A block cut short by [`BLOCK_CAP`] inside a paragraph
+/// from there on belong to later blocks). A block cut short by the cap ([`BLOCK_CAP`]) inside a paragraph
 /// loses the sentence at each cut edge, which may be a fragment: it starts and ends at sentence
 /// boundaries, so a claim's sentence does not depend on where the hits before it fell.
-fn block_sentences(text: &str, pos: usize, lines: bool) -> (Vec<SentenceSpan>, usize) {
-    let block = sentences::block_around(text, pos, lines, BLOCK_CAP);
+fn block_sentences(text: &str, pos: usize, lines: bool, cap: usize) -> (Vec<SentenceSpan>, usize) {
+    let block = sentences::block_around(text, pos, lines, cap);
     let mut spans = sentences::split_region(text, block.start, block.end);
     let mut end = block.end;
     if block.cut_end && spans.len() > 1 && spans[spans.len() - 1].start > pos {
@@ -212,6 +222,65 @@ mod tests {
             &d.text[c.source.start..c.source.end],
             "Heavy rain causes flooding."
         );
+    }
+
+    /// Over real text (eLife articles, elife-articles/SOURCE.txt): every claim's sentence is a
+    /// sentence of the whole document's split (the one the search index holds), and cutting
+    /// blocks at 1 KB instead of 32 KB changes no claim but those whose sentence is longer than
+    /// the cut allows.
+    #[test]
+    fn claims_keep_their_sentences_wherever_blocks_are_cut() {
+        let ex = Extractor::new(&PatternSet::builtin().unwrap()).unwrap();
+        let articles = crate::testdata::elife_articles(40);
+        let (mut claims, mut long) = (0, 0);
+        for (path, text) in &articles {
+            let d = crate::readers::text::text_document(
+                &path.display().to_string(),
+                None,
+                text.clone(),
+            );
+            let whole: std::collections::HashSet<(usize, usize)> = document_sentences(&d)
+                .iter()
+                .map(|s| (s.start, s.start + s.text.len()))
+                .collect();
+            let key = |c: &Claim| {
+                let s = (c.source.start, c.source.end);
+                (s, c.cue.clone(), c.cause.start, c.effect.start)
+            };
+            let mut wide = Vec::new();
+            run_capped(&ex, &d, &mut wide, None, BLOCK_CAP);
+            let mut narrow = Vec::new();
+            run_capped(&ex, &d, &mut narrow, None, 1024);
+            for c in &wide {
+                let span = (c.source.start, c.source.end);
+                assert!(
+                    whole.contains(&span),
+                    "{}: {:?}",
+                    path.display(),
+                    c.sentence
+                );
+            }
+            let narrow: Vec<_> = narrow.iter().map(key).collect();
+            for c in &wide {
+                if c.source.end - c.source.start > 1024 {
+                    long += 1;
+                } else {
+                    assert!(
+                        narrow.contains(&key(c)),
+                        "{}: {:?}",
+                        path.display(),
+                        c.sentence
+                    );
+                }
+            }
+            claims += wide.len();
+        }
+        if !articles.is_empty() {
+            assert!(
+                claims > 2000 && long < claims / 100,
+                "{claims} claims, {long} long"
+            );
+        }
     }
 
     #[test]
