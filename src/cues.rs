@@ -283,8 +283,10 @@ fn word_start_before(text: &str, pos: usize) -> usize {
         .map_or(pos, |(i, _)| i)
 }
 
-fn is_word_byte(b: u8) -> bool {
-    b.is_ascii_alphanumeric() || b >= 0x80
+/// A letter or digit, in any script: a hit next to one is inside a longer word. Dashes and curly
+/// quotes are not ("rain—causes", "“causes”").
+fn is_word_char(c: Option<char>) -> bool {
+    c.is_some_and(char::is_alphanumeric)
 }
 
 impl CueSet {
@@ -354,15 +356,13 @@ impl CueSet {
 
     /// Every whole-word anchor hit in `text`, in order.
     pub fn hits(&self, text: &str) -> Vec<Hit> {
-        let b = text.as_bytes();
         self.prefilter
             .find_iter(text)
             .filter(|m| {
                 let a = m.pattern().as_usize();
                 let left_ok =
-                    self.anchor_glued[a] || m.start() == 0 || !is_word_byte(b[m.start() - 1]);
-                let right_ok = m.end() == b.len() || !is_word_byte(b[m.end()]);
-                left_ok && right_ok
+                    self.anchor_glued[a] || !is_word_char(text[..m.start()].chars().next_back());
+                left_ok && !is_word_char(text[m.end()..].chars().next())
             })
             .map(|m| Hit {
                 pos: m.start(),
@@ -523,6 +523,14 @@ mod tests {
         assert!(words.iter().any(|w| w.starts_with("Because")));
         assert!(words.iter().any(|w| w.starts_with("causes")));
         assert!(!words.iter().any(|w| w.starts_with("causeway")));
+        // Next to a dash or a curly quote a word is whole; next to a letter of any script not.
+        let text = "rain—causes floods; “causes”; écauses; causesé";
+        let words: Vec<&str> = s.hits(text).iter().map(|h| &text[h.pos..]).collect();
+        assert_eq!(
+            words.iter().filter(|w| w.starts_with("causes")).count(),
+            2,
+            "{words:?}"
+        );
     }
 
     #[test]
