@@ -705,7 +705,10 @@ mod tests {
         assert!(cjk.is_char_boundary(b.start) && cjk.is_char_boundary(b.end));
         assert!(b.start < 75 && b.end > 75 && b.cut_start && b.cut_end);
         let whole = block_around("", 5, false, 10);
-        assert_eq!((whole.start, whole.end, whole.cut_start, whole.cut_end), (0, 0, false, false));
+        assert_eq!(
+            (whole.start, whole.end, whole.cut_start, whole.cut_end),
+            (0, 0, false, false)
+        );
     }
 
     /// Checked against the sentence boundaries of the GUM corpus (Zeldes 2017; CC BY 4.0
