@@ -1,8 +1,9 @@
 //! Cue matching: where in a text a cue entry fires.
 //!
 //! Two layers, so that text without a cue costs almost nothing. A single Aho-Corasick automaton
-//! holds one *anchor* literal per cue (all inflected forms of the cue's longest word); it runs over
-//! whole documents and tells which sentences deserve a closer look and which cues to try there.
+//! holds one *anchor* literal per cue (all inflected forms of the cue's longest word that is not a
+//! function word); it runs over whole documents and tells which sentences deserve a closer look
+//! and which cues to try there.
 //! Each cue is then checked with its own regular expression, built from the pattern string, over
 //! that sentence alone. The matcher only says where a cue's literal words are and where inner slots
 //! lie; choosing the cause and effect spans around it is the `claims` stage's job.
@@ -121,7 +122,7 @@ fn alternation(forms: &[String]) -> String {
     format!("(?:{})", parts.join("|"))
 }
 
-fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
+fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, String> {
     let toks = &spec.tokens;
     let is_lit =
         |t: &PatternToken| matches!(t, PatternToken::Word { .. } | PatternToken::Glued { .. });
@@ -216,7 +217,13 @@ fn compile(spec: CueSpec) -> Result<CompiledCue, String> {
             PatternToken::Word { forms, .. } | PatternToken::Glued { forms } => Some(forms),
             _ => None,
         })
-        .max_by_key(|forms| forms.iter().map(|f| f.len()).min().unwrap_or(0))
+        // The rarest literal makes the fewest prefilter hits. Function words ("with", "from",
+        // "that", "between") are the commonest words of any English text, so any other word
+        // beats them; among the rest the longest is taken, as longer words are rarer.
+        .max_by_key(|forms| {
+            let shortest = forms.iter().map(|f| f.len()).min().unwrap_or(0);
+            (!forms.iter().any(|f| common(f)), shortest)
+        })
         .cloned()
         .unwrap_or_default();
     let glued_anchor = toks
@@ -289,17 +296,34 @@ fn is_word_char(c: Option<char>) -> bool {
     c.is_some_and(char::is_alphanumeric)
 }
 
+/// A closed-class word of the lexicon (determiner, relative, auxiliary, preposition, clause
+/// break, key stop word): the commonest words of English text, so the worst prefilter anchors.
+fn is_function_word(lx: &crate::patterns::Lexicon, w: &str) -> bool {
+    let w = w.to_lowercase();
+    [
+        &lx.determiners,
+        &lx.relatives,
+        &lx.auxiliaries,
+        &lx.prepositions,
+        &lx.clause_breaks,
+        &lx.stopwords,
+    ]
+    .iter()
+    .any(|s| s.contains(&w))
+}
+
 impl CueSet {
     /// Compile every cue of a pattern set.
     pub fn new(set: &PatternSet) -> Result<CueSet, String> {
         use rayon::prelude::*;
+        let common = |w: &str| is_function_word(&set.lexicon, w);
         // Compiling the regexes is most of the cost of starting up (and of a small re-scan):
         // cues compile in parallel, and the first error in file order is the one reported.
         let compiled: Vec<Result<CompiledCue, String>> = set
             .cues
             .par_iter()
             .map(|spec| {
-                compile(spec.clone()).map_err(|e| {
+                compile(spec.clone(), &common).map_err(|e| {
                     format!(
                         "{}:{}: cue '{}': {e}",
                         spec.origin.0.display(),
@@ -513,6 +537,51 @@ mod tests {
             assert!(!c.anchors.is_empty(), "{} has no anchor", c.spec.id);
         }
         assert!(s.literals().len() > 100);
+    }
+
+    /// A function word anchors a cue only when the cue has no other word ("so", "since"): "link
+    /// between" is found by "link", "come~ from" by "come".
+    #[test]
+    fn anchors_avoid_function_words() {
+        let set_ = PatternSet::builtin().unwrap();
+        let s = CueSet::new(&set_).unwrap();
+        let lx = &set_.lexicon;
+        let mut checked = 0;
+        for c in &s.cues {
+            let words: Vec<&Vec<String>> = c
+                .spec
+                .tokens
+                .iter()
+                .filter_map(|t| match t {
+                    PatternToken::Word { forms, .. } | PatternToken::Glued { forms } => Some(forms),
+                    _ => None,
+                })
+                .collect();
+            let content = words
+                .iter()
+                .any(|f| !f.iter().any(|w| is_function_word(lx, w)));
+            if content {
+                checked += 1;
+                let bare: Vec<&str> = c
+                    .anchors
+                    .iter()
+                    .map(|a| a.trim_start_matches('-'))
+                    .collect();
+                assert!(
+                    !bare.iter().any(|a| is_function_word(lx, a)),
+                    "{}: anchors {bare:?}",
+                    c.spec.id
+                );
+            }
+        }
+        assert!(checked > 200, "{checked}");
+        let lits = s.literals();
+        // ("from" stays: "EFFECT from CAUSE" has no other word.)
+        for w in [
+            "with", "that", "this", "which", "between", "about", "against",
+        ] {
+            assert!(!lits.iter().any(|l| l == w), "{w} is a literal");
+        }
     }
 
     #[test]
