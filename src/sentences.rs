@@ -92,10 +92,7 @@ pub fn split_region(text: &str, start: usize, end: usize) -> Vec<SentenceSpan> {
     }
     // Newlines become spaces (same byte length, ASCII), so UAX #29 sees wrapped lines as one
     // line while every offset stays valid for `text`.
-    let flat: String = text[start..end]
-        .chars()
-        .map(|c| if c == '\n' || c == '\r' { ' ' } else { c })
-        .collect();
+    let flat = flatten_lines(&text[start..end]);
     for (s, e) in blocks(text, start, end) {
         split_block(text, &flat[s - start..e - start], s, e, &mut out);
     }
@@ -111,6 +108,37 @@ pub struct Block {
     /// sentence at that edge may be a fragment.
     pub cut_start: bool,
     pub cut_end: bool,
+}
+
+/// `text` with every newline and carriage return replaced by a space. Byte for byte: both are
+/// ASCII, so every offset stays valid. (Collecting `chars()` was a tenth of splitting.)
+fn flatten_lines(text: &str) -> String {
+    let mut flat = String::with_capacity(text.len());
+    let mut from = 0;
+    for i in memchr::memchr2_iter(b'\n', b'\r', text.as_bytes()) {
+        flat.push_str(&text[from..i]);
+        flat.push(' ');
+        from = i + 1;
+    }
+    flat.push_str(&text[from..]);
+    flat
+}
+
+/// The Unicode separators that end a hard block (line and paragraph separators, next line,
+/// vertical tab, form feed) in `text`, as byte ranges. Found by their bytes (0x0B, 0x0C, and the
+/// lead bytes 0xC2 and 0xE2), so ASCII text is skipped at memchr speed.
+fn separators(text: &str) -> impl Iterator<Item = (usize, usize)> + '_ {
+    let b = text.as_bytes();
+    memchr::memchr3_iter(0x0B, 0x0C, 0xC2, b)
+        .chain(memchr::memchr_iter(0xE2, b))
+        .filter_map(move |i| match b[i] {
+            0x0B | 0x0C => Some((i, i + 1)),
+            0xC2 if b.get(i + 1) == Some(&0x85) => Some((i, i + 2)),
+            0xE2 if b.get(i + 1) == Some(&0x80) && matches!(b.get(i + 2), Some(0xA8 | 0xA9)) => {
+                Some((i, i + 3))
+            }
+            _ => None,
+        })
 }
 
 /// The paragraph-like block around byte `pos`: from the previous blank line (or a line break, when
@@ -173,10 +201,11 @@ fn blocks(text: &str, start: usize, end: usize) -> Vec<(usize, usize)> {
     let mut out = Vec::new();
     let region = &text[start..end];
     let mut part_start = start;
-    let seps = region
-        .match_indices(['\u{2028}', '\u{2029}', '\u{85}', '\u{0B}', '\u{0C}'])
-        .map(|(i, s)| (start + i, start + i + s.len()))
-        .chain(std::iter::once((end, end)));
+    let mut found: Vec<(usize, usize)> = separators(region)
+        .map(|(i, j)| (start + i, start + j))
+        .collect();
+    found.sort_unstable();
+    let seps = found.into_iter().chain(std::iter::once((end, end)));
     for (sep_s, sep_e) in seps {
         let part_end = sep_s;
         let mut seg_start = part_start;
@@ -684,6 +713,33 @@ mod tests {
     fn block(text: &str, pos: usize, lines: bool, max_len: usize) -> &str {
         let b = block_around(text, pos, lines, max_len);
         &text[b.start..b.end]
+    }
+
+    /// The byte-level fast paths against their `char` reference: on eLife text (its em dashes,
+    /// curly quotes and non-breaking spaces share the lead bytes) and on every separator.
+    #[test]
+    fn separators_and_flattening_match_the_char_reference() {
+        let reference = |t: &str| -> Vec<(usize, usize)> {
+            t.match_indices(['\u{2028}', '\u{2029}', '\u{85}', '\u{0B}', '\u{0C}'])
+                .map(|(i, s)| (i, i + s.len()))
+                .collect()
+        };
+        let mut texts: Vec<String> = crate::testdata::elife_articles(30)
+            .into_iter()
+            .map(|(_, t)| t)
+            .collect();
+        texts.push("a\u{2028}b\u{2029}c\u{85}d\u{0B}e\u{0C}f\u{a0}g\u{2014}h\r\n\u{2027}".into());
+        for t in &texts {
+            let mut got: Vec<_> = separators(t).collect();
+            got.sort_unstable();
+            assert_eq!(got, reference(t));
+            let flat: String = t
+                .chars()
+                .map(|c| if c == '\n' || c == '\r' { ' ' } else { c })
+                .collect();
+            assert_eq!(flatten_lines(t), flat);
+        }
+        assert_eq!(separators(texts.last().unwrap()).count(), 5);
     }
 
     #[test]
