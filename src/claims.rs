@@ -168,6 +168,9 @@ pub struct Extractor {
     single_negators: HashSet<String>,
     /// Keys of the words that name no variable on their own (`[keys] not_alone`), stemmed.
     not_alone: HashSet<String>,
+    /// The first words of the negator, conditional and hedge phrases: only a token among them
+    /// can start one, so the phrase lists are compared at few positions.
+    modal_firsts: rustc_hash::FxHashSet<String>,
     /// The part-of-speech tagger, loaded once per process.
     tagger: &'static Tagger,
 }
@@ -279,6 +282,11 @@ impl Extractor {
                 .collect::<HashSet<_>>()
         };
         let single_negators = single(&lexicon.negators);
+        let modal_firsts = [&lexicon.negators, &lexicon.conditionals, &lexicon.hedges]
+            .into_iter()
+            .flatten()
+            .filter_map(|p| p.first().cloned())
+            .collect();
         let mut verb_group: HashSet<String> = lexicon.fillers.iter().cloned().collect();
         verb_group.extend(lexicon.auxiliaries.iter().cloned());
         verb_group.extend(single_negators.iter().cloned());
@@ -301,6 +309,7 @@ impl Extractor {
             right_skip,
             single_negators,
             not_alone,
+            modal_firsts,
             tagger: Tagger::load_builtin(),
         })
     }
@@ -872,7 +881,10 @@ impl Extractor {
         }
         let prefix = &toks[clause_start..cue_from];
         let found = |phrases: &[Vec<String>], within: &[Token]| -> Option<String> {
-            for (i, _) in within.iter().enumerate() {
+            for (i, t) in within.iter().enumerate() {
+                if !self.modal_firsts.contains(t.lower.as_str()) {
+                    continue;
+                }
                 for p in phrases {
                     if within.len() - i >= p.len()
                         && p.iter().zip(&within[i..]).all(|(w, t)| *w == t.lower)
