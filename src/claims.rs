@@ -15,7 +15,7 @@ use crate::patterns::{Lexicon, PatternSet, PatternToken, Role};
 use crate::tagger::{Tag, Tagger};
 use compact_str::CompactString;
 use regex::Regex;
-use std::collections::HashSet;
+use rustc_hash::FxHashSet as HashSet;
 use std::sync::OnceLock;
 
 /// A word or punctuation mark of a sentence; offsets are bytes into the sentence.
@@ -170,7 +170,7 @@ pub struct Extractor {
     not_alone: HashSet<String>,
     /// The first words of the negator, conditional and hedge phrases: only a token among them
     /// can start one, so the phrase lists are compared at few positions.
-    modal_firsts: rustc_hash::FxHashSet<String>,
+    modal_firsts: HashSet<String>,
     /// The part-of-speech tagger, loaded once per process.
     tagger: &'static Tagger,
 }
