@@ -20,7 +20,16 @@ use std::collections::BTreeSet;
 #[derive(Debug)]
 pub struct CompiledCue {
     pub spec: CueSpec,
+    /// The cue's regex with its inner slots unbounded (`\S.*?`): a small automaton, so cheap to
+    /// build and to search. Its match is the bounded one's whenever no bounded slot runs past
+    /// [`SLOT_CHARS`]; otherwise `exact` decides.
     regex: MetaRegex,
+    /// The cue's regex as the pattern means it, each inner slot at most [`SLOT_CHARS`] characters
+    /// (`\S.{0,160}?`, about 1 600 automaton states a slot), built on first need. `None` when
+    /// no slot is bounded.
+    exact: Option<Exact>,
+    /// Capture-group indexes (into `group_names`) of the bounded inner slots.
+    bounded: Vec<usize>,
     /// Where a match starts relative to a prefilter hit of this cue's anchor.
     start: MatchStart,
     /// Capture-group names of the inner slots, `s0`, `s1`, …
@@ -41,8 +50,50 @@ pub struct CompiledCue {
     pub glued_last: bool,
 }
 
+impl CompiledCue {
+    /// The exact regex, when one of the fast regex's matches `found` has a bounded slot longer
+    /// than [`SLOT_CHARS`]: then the exact regex may match elsewhere or not at all. Where the
+    /// fast regex matches with every slot in bounds, both take the same shortest slots, so their
+    /// matches agree.
+    fn exact_regex(&self, sentence: &str, found: &[Captures]) -> Option<&MetaRegex> {
+        let too_long = found.iter().any(|caps| {
+            self.bounded.iter().any(|&gi| {
+                caps.get_group_by_name(&self.group_names[gi])
+                    .is_some_and(|g| {
+                        g.len() > SLOT_CHARS && sentence[g.range()].chars().count() > SLOT_CHARS
+                    })
+            })
+        });
+        if too_long {
+            self.exact.as_ref()?.regex()
+        } else {
+            None
+        }
+    }
+}
+
 /// Bytes of lazy-DFA cache per cue regex and thread.
 const CUE_DFA_CACHE: usize = 64 * 1024;
+
+/// The longest inner slot, in characters ("between CAUSE and EFFECT": at most this between
+/// "between" and "and").
+const SLOT_CHARS: usize = 161;
+
+/// A cue's exact regex, compiled when a match of the fast one has a slot that is too long.
+#[derive(Debug)]
+struct Exact {
+    pattern: String,
+    /// `None` inside when it does not compile (size limits): the fast match stands.
+    regex: std::sync::OnceLock<Option<MetaRegex>>,
+}
+
+impl Exact {
+    fn regex(&self) -> Option<&MetaRegex> {
+        self.regex
+            .get_or_init(|| lean_regex(&self.pattern).ok())
+            .as_ref()
+    }
+}
 
 /// Where a match of a cue can start, given a prefilter hit of its anchor.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -122,6 +173,21 @@ fn alternation(forms: &[String]) -> String {
     format!("(?:{})", parts.join("|"))
 }
 
+/// A regex for one of hundreds of cues: each keeps a lazy-DFA cache per thread, and a small one
+/// is plenty for a pattern tried at a few places per sentence, which keeps memory flat. No
+/// one-pass DFA: built for every cue they held 10 MB (a tenth of extract's memory) and cost
+/// start-up time, and the backtracker finds the slots of a sentence-long search as fast.
+fn lean_regex(re: &str) -> Result<MetaRegex, String> {
+    MetaRegex::builder()
+        .configure(
+            MetaRegex::config()
+                .hybrid_cache_capacity(CUE_DFA_CACHE)
+                .onepass(false),
+        )
+        .build(re)
+        .map_err(|e| e.to_string())
+}
+
 fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, String> {
     let toks = &spec.tokens;
     let is_lit =
@@ -148,6 +214,9 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
     // A slot glued to the first literal ("CAUSE -induced") is captured inside the match.
     let glued_first = matches!(toks[first], PatternToken::Glued { .. });
     let mut re = String::from("(?i)");
+    // Inner slots that run to the next literal: bounded in the exact regex, not in the fast one.
+    const BOUNDED_SLOT: &str = "\u{0}slot\u{0}";
+    let mut bounded = Vec::new();
     for (i, t) in toks.iter().enumerate() {
         match t {
             PatternToken::Slot(r) if i < first => {
@@ -170,7 +239,8 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
                 if matches!(toks.get(i + 1), Some(PatternToken::Glued { .. })) {
                     re.push_str(&format!("\\s+(?P<s{}>[\\p{{L}}\\p{{N}}]+)", inner.len()));
                 } else {
-                    re.push_str(&format!("\\s+(?P<s{}>\\S.{{0,160}}?)", inner.len()));
+                    re.push_str(&format!("\\s+(?P<s{}>{BOUNDED_SLOT})", inner.len()));
+                    bounded.push(inner.len());
                 }
                 inner.push(*r);
             }
@@ -199,18 +269,12 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
     if required_punct.is_none() {
         re.push_str("\\b");
     }
-    // Hundreds of cue regexes each keep a lazy-DFA cache per thread; a small one is plenty for a
-    // pattern tried at a few places per sentence, and keeps memory flat. No one-pass DFA: built
-    // for every cue they held 10 MB (a tenth of extract's memory) and cost start-up time, and the
-    // backtracker finds the slots of a sentence-long search as fast.
-    let regex = MetaRegex::builder()
-        .configure(
-            MetaRegex::config()
-                .hybrid_cache_capacity(CUE_DFA_CACHE)
-                .onepass(false),
-        )
-        .build(&re)
+    let regex = lean_regex(&re.replace(BOUNDED_SLOT, "\\S.*?"))
         .map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
+    let exact = (!bounded.is_empty()).then(|| Exact {
+        pattern: re.replace(BOUNDED_SLOT, &format!("\\S.{{0,{}}}?", SLOT_CHARS - 1)),
+        regex: std::sync::OnceLock::new(),
+    });
     let anchor_forms = toks
         .iter()
         .filter_map(|t| match t {
@@ -272,6 +336,8 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
         reject_before: anchored(&spec.reject_before, false)?,
         spec,
         regex,
+        exact,
+        bounded,
         left,
         right,
         inner,
@@ -425,8 +491,13 @@ impl CueSet {
                 MatchStart::Scan => {
                     if !scanned.contains(&c.cue) {
                         scanned.push(c.cue);
-                        for caps in cue.regex.captures_iter(sentence) {
-                            self.accept(c.cue, sentence, &caps, &mut found);
+                        let all: Vec<Captures> = cue.regex.captures_iter(sentence).collect();
+                        let all = match cue.exact_regex(sentence, &all) {
+                            Some(exact) => exact.captures_iter(sentence).collect(),
+                            None => all,
+                        };
+                        for caps in &all {
+                            self.accept(c.cue, sentence, caps, &mut found);
                         }
                     }
                     continue;
@@ -443,7 +514,14 @@ impl CueSet {
                 }
                 let caps = scratch.1[c.cue].get_or_insert_with(|| cue.regex.create_captures());
                 cue.regex.search_captures(&input, caps);
-                self.accept(c.cue, sentence, caps, &mut found);
+                match cue.exact_regex(sentence, std::slice::from_ref(caps)) {
+                    Some(exact) => {
+                        let mut exact_caps = exact.create_captures();
+                        exact.search_captures(&input, &mut exact_caps);
+                        self.accept(c.cue, sentence, &exact_caps, &mut found);
+                    }
+                    None => self.accept(c.cue, sentence, caps, &mut found),
+                }
             });
         }
         // The same match can be reached from two hits.
@@ -607,6 +685,39 @@ mod tests {
         assert!(set()
             .hits("The quick brown fox jumps over the lazy dog.")
             .is_empty());
+    }
+
+    /// An inner slot holds at most `SLOT_CHARS` characters, as the exact regex says, although
+    /// the regex searched first leaves it unbounded: at the bound and one past it, in ASCII and
+    /// in two-byte characters, found from the hit and by scanning the sentence.
+    #[test]
+    fn inner_slots_stop_at_their_bound() {
+        let s = set();
+        let ids = |sentence: &str| -> Vec<String> {
+            s.match_all(sentence)
+                .iter()
+                .map(|m| s.cues[m.cue].spec.id.clone())
+                .collect()
+        };
+        for (unit, n) in [("x", SLOT_CHARS), ("é", SLOT_CHARS), ("x", SLOT_CHARS + 1)] {
+            let slot = unit.repeat(n);
+            let fits = n <= SLOT_CHARS;
+            let anchored = format!("A correlation between {slot} and yield was found.");
+            assert_eq!(
+                ids(&anchored).contains(&"correlation-between".to_string()),
+                fits,
+                "{n} x {unit}: {:?}",
+                ids(&anchored)
+            );
+            // "EFFECT increase~ with CAUSE" has no inner slot; "no link between" scans.
+            let scanned = format!("We saw no link between {slot} and yield.");
+            assert_eq!(
+                ids(&scanned).iter().any(|id| id.contains("link")),
+                fits,
+                "{n} x {unit}: {:?}",
+                ids(&scanned)
+            );
+        }
     }
 
     #[test]
