@@ -942,6 +942,8 @@ pub enum ShardLine {
 struct MergedPath {
     /// It had a file record (and so exact document and sentence counts).
     closed: bool,
+    /// It had a `begin_file` record: its extract run wrote sentences.
+    started: bool,
     /// Documents its claims named, counted where the document id changes (a document's claims
     /// are neighbours in a shard): the document count of a path without a file record.
     claim_docs: u64,
@@ -1022,7 +1024,10 @@ impl Merge {
                     .append_claims(&c.source.path, std::slice::from_ref(&*c))?;
                 self.claims += 1;
             }
-            ShardLine::Start(s) => self.current = Some(s.begin_file),
+            ShardLine::Start(s) => {
+                self.paths.entry(s.begin_file.clone()).or_default().started = true;
+                self.current = Some(s.begin_file);
+            }
             ShardLine::Sentence(s) => match &self.current {
                 Some(file) => {
                     self.writer
@@ -1050,9 +1055,23 @@ impl Merge {
         Ok(())
     }
 
-    /// True when every path came with a file record (and so with its sentences).
-    pub fn has_sentences(&self) -> bool {
-        self.paths.values().all(|p| p.closed)
+    /// Paths without a file record: those whose sentences began (their `extract` stopped
+    /// part-way through them), sorted, and the number that had no sentence records at all
+    /// (shards written without `--sentences`).
+    pub fn unclosed(&self) -> (Vec<&str>, usize) {
+        let mut cut: Vec<&str> = self
+            .paths
+            .iter()
+            .filter(|(_, p)| !p.closed && p.started)
+            .map(|(k, _)| k.as_str())
+            .collect();
+        cut.sort_unstable();
+        let bare = self
+            .paths
+            .values()
+            .filter(|p| !p.closed && !p.started)
+            .count();
+        (cut, bare)
     }
 
     /// Paths merged.

@@ -48,8 +48,21 @@ pub fn run(g: &Global, a: &MergeArgs) -> Result<ExitCode> {
         merge.abandon();
         return Err(e);
     }
-    if !merge.has_sentences() && !g.quiet {
-        g.warn("shards have no sentence records (use `extract --sentences`): co-mention counts will be 0");
+    let (cut, bare) = merge.unclosed();
+    if !cut.is_empty() {
+        g.warn(&format!(
+            "{} file(s) have sentence records but no closing file record, so the extract run \
+             stopped part-way through them (first: {}); what the shards hold of them is merged, \
+             and their document counts are those their claims name",
+            cut.len(),
+            cut[0]
+        ));
+    }
+    if bare > 0 {
+        g.warn(&format!(
+            "{bare} file(s) have no sentence records (use `extract --sentences`): their \
+             co-mention counts will be 0"
+        ));
     }
     let (files, claims) = (merge.files(), merge.claims);
     let m = merge.commit(&set).context("cannot commit the store")?;

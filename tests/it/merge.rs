@@ -217,3 +217,56 @@ fn a_path_split_across_shards_merges_in_order_with_older_shards_too() {
     }
     assert!(co > 0, "no co-mention was compared");
 }
+
+/// A shard cut off inside a file (its extract run stopped part-way) still merges, and the
+/// warning says so and names the file; a shard without sentence records gets the other warning.
+#[test]
+fn merge_names_a_file_whose_shard_stops_part_way() {
+    let Some(articles) = shared_data("elife-articles/articles") else {
+        return;
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let names = sorted_files(&articles);
+    let (cut_file, plain_file) = (tmp.path().join("cut.txt"), tmp.path().join("plain.txt"));
+    std::fs::copy(&names[40], &cut_file).unwrap();
+    std::fs::copy(&names[41], &plain_file).unwrap();
+    let extract = |extra: &[&str], file: &Path| {
+        let o = hearsay()
+            .args(["-q", "extract"])
+            .args(extra)
+            .arg(file)
+            .output()
+            .unwrap();
+        assert!(o.status.success());
+        String::from_utf8(o.stdout).unwrap()
+    };
+    let full = extract(&["--sentences"], &cut_file);
+    let lines: Vec<&str> = full.lines().collect();
+    assert!(
+        lines.last().unwrap().contains("\"file\""),
+        "{:?}",
+        lines.last()
+    );
+    // Everything but the closing file record and the last few records before it.
+    let cut = lines[..lines.len() - 5].join("\n");
+    let cut_shard = tmp.path().join("cut.jsonl");
+    std::fs::write(&cut_shard, cut).unwrap();
+    let plain_shard = tmp.path().join("plain.jsonl");
+    std::fs::write(&plain_shard, extract(&[], &plain_file)).unwrap();
+    let o = hearsay()
+        .arg("--store")
+        .arg(tmp.path().join("s"))
+        .arg("merge")
+        .arg(&cut_shard)
+        .arg(&plain_shard)
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(o.status.success(), "{err}");
+    assert!(err.contains("stopped part-way"), "{err}");
+    assert!(
+        err.contains("cut.txt") && !err.contains("first: plain"),
+        "{err}"
+    );
+    assert!(err.contains("1 file(s) have no sentence records"), "{err}");
+}
