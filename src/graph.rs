@@ -336,10 +336,10 @@ pub fn near_duplicates(
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
 
-    fn row(c: &str, e: &str, kind: Kind, m: Modality, doc: &str) -> ClaimRow {
+    pub(crate) fn row(c: &str, e: &str, kind: Kind, m: Modality, doc: &str) -> ClaimRow {
         ClaimRow {
             cause: c.into(),
             effect: e.into(),

@@ -285,7 +285,19 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
     for (a, b, rel) in g.edges() {
         push(Kind::Causal, a, b, rel);
     }
+    // An association is filed under its two nodes in index order, which is the order in which
+    // the corpus first named them: shown as its first claim states it instead ("cap-dependent
+    // translation" as cap, translation).
     for (&(a, b), rel) in &g.associations {
+        let first_cause = rel
+            .rows
+            .first()
+            .and_then(|&r| g.index.get(&g.rows[r].cause));
+        let (a, b) = if first_cause == Some(&b) {
+            (b, a)
+        } else {
+            (a, b)
+        };
         push(Kind::Association, a, b, rel);
     }
     out.sort_by(|x, y| {
@@ -309,5 +321,51 @@ pub fn evidence_text(g: &ClaimGraph, store: &crate::store::Store, r: usize) -> (
             format!("{}:{}", row.doc, row.line),
             format!("(evidence unavailable: {e})"),
         ),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::graph::tests::row;
+    use crate::graph::Filter;
+    use crate::model::{Kind, Modality};
+    use crate::normalize::Aliases;
+
+    #[test]
+    fn an_association_is_shown_as_its_first_claim_states_it() {
+        // "translation" is named first (by a causal claim), "cap" later: the association is
+        // filed as (translation, cap) but its first claim says cap, translation.
+        let rows = vec![
+            row(
+                "stress",
+                "translation",
+                Kind::Causal,
+                Modality::Asserted,
+                "d1",
+            ),
+            row(
+                "cap",
+                "translation",
+                Kind::Association,
+                Modality::Asserted,
+                "d2",
+            ),
+            row(
+                "translation",
+                "cap",
+                Kind::Association,
+                Modality::Asserted,
+                "d3",
+            ),
+        ];
+        let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
+        let top = top_relations(&g, 1, 1);
+        let assoc = top.iter().find(|t| t.kind == Kind::Association).unwrap();
+        assert_eq!(
+            (assoc.cause.as_str(), assoc.effect.as_str()),
+            ("cap", "translation")
+        );
+        assert_eq!((assoc.claims, assoc.documents), (2, 2));
     }
 }
