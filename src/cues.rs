@@ -709,7 +709,7 @@ mod tests {
                 "{n} x {unit}: {:?}",
                 ids(&anchored)
             );
-            // "EFFECT increase~ with CAUSE" has no inner slot; "no link between" scans.
+            // "no link between" is anchored on "link", not on its first word: it scans.
             let scanned = format!("We saw no link between {slot} and yield.");
             assert_eq!(
                 ids(&scanned).iter().any(|id| id.contains("link")),
