@@ -44,15 +44,14 @@ fn merged_shards_equal_a_scan_claim_for_claim_and_count_for_count() {
         .chunks(4)
         .enumerate()
     {
-        let mut cmd = hearsay();
-        cmd.args(["-q", "extract", "--sentences"]);
-        for p in chunk {
-            cmd.arg(corpus.join(p.file_name().unwrap()));
-        }
-        let o = cmd.output().unwrap();
-        assert!(o.status.success());
+        let mut args = vec![std::ffi::OsString::from("--sentences")];
+        args.extend(
+            chunk
+                .iter()
+                .map(|p| corpus.join(p.file_name().unwrap()).into()),
+        );
         let shard = tmp.path().join(format!("shard-{i}.jsonl"));
-        std::fs::write(&shard, &o.stdout).unwrap();
+        std::fs::write(&shard, extract_output(&args, None)).unwrap();
         shards.push(shard);
     }
     let merged = tmp.path().join("merged");
@@ -122,6 +121,18 @@ fn merge_names_the_shard_and_line_of_a_bad_record() {
     assert!(err.contains("bad.jsonl:2:"), "{err}");
 }
 
+/// The standard output of `hearsay -q extract ARGS...`, fed `stdin` if given; it must succeed.
+fn extract_output<S: AsRef<std::ffi::OsStr>>(args: &[S], stdin: Option<&str>) -> Vec<u8> {
+    let mut cmd = hearsay();
+    cmd.args(["-q", "extract"]).args(args);
+    if let Some(s) = stdin {
+        cmd.write_stdin(s.to_string());
+    }
+    let o = cmd.output().unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    o.stdout
+}
+
 /// Drop the `begin_file` records, as shards of older hearsay versions lack them.
 fn without_begin_records(shard: &[u8]) -> Vec<u8> {
     let text = String::from_utf8(shard.to_vec()).unwrap();
@@ -149,16 +160,7 @@ fn a_path_split_across_shards_merges_in_order_with_older_shards_too() {
     let (part1, part2) = (records[..3].concat(), records[3..].concat());
     let file = tmp.path().join("other.txt");
     std::fs::copy(&names[30], &file).unwrap();
-    let extract = |stdin: Option<&str>, path: &str| {
-        let mut cmd = hearsay();
-        cmd.args(["-q", "extract", "--sentences", path]);
-        if let Some(s) = stdin {
-            cmd.write_stdin(s.to_string());
-        }
-        let o = cmd.output().unwrap();
-        assert!(o.status.success());
-        o.stdout
-    };
+    let extract = |stdin: Option<&str>, path: &str| extract_output(&["--sentences", path], stdin);
     let shards = [
         extract(Some(&part1), "-"),
         extract(None, file.to_str().unwrap()),
@@ -231,14 +233,8 @@ fn merge_names_a_file_whose_shard_stops_part_way() {
     std::fs::copy(&names[40], &cut_file).unwrap();
     std::fs::copy(&names[41], &plain_file).unwrap();
     let extract = |extra: &[&str], file: &Path| {
-        let o = hearsay()
-            .args(["-q", "extract"])
-            .args(extra)
-            .arg(file)
-            .output()
-            .unwrap();
-        assert!(o.status.success());
-        String::from_utf8(o.stdout).unwrap()
+        let args = [extra, &[file.to_str().unwrap()]].concat();
+        String::from_utf8(extract_output(&args, None)).unwrap()
     };
     let full = extract(&["--sentences"], &cut_file);
     let lines: Vec<&str> = full.lines().collect();
