@@ -6,6 +6,11 @@ mod cmd;
 use clap::Parser;
 use std::process::ExitCode;
 
+/// The extractor makes many small, short-lived allocations (tokens, spans, claim strings);
+/// jemalloc serves them faster than the system allocator, with the same output.
+#[global_allocator]
+static GLOBAL: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
+
 fn main() -> ExitCode {
     let cli = cmd::Cli::parse();
     match cmd::run(cli) {
