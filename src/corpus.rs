@@ -408,28 +408,89 @@ impl BufRead for ErrorSlot<'_, '_> {
     }
 }
 
-/// Read one input into documents, pushed to `emit` as they are read. Files are streamed;
-/// standard input is read whole (capped) first. The reader runs under `catch_unwind`: a panic
-/// costs its file, not the run.
+/// Read one input into documents, pushed to `emit` as they are read. Files and standard input
+/// are streamed. The reader runs under `catch_unwind`: a panic costs its file, not the run.
 pub fn read_input(
     input: &Input,
     opts: &ReadOptions,
     warnings: &mut Warnings,
     emit: &mut dyn FnMut(Document),
 ) -> Result<(), ReadError> {
-    if input.is_stdin() {
+    read_source(input, opts, warnings, emit, false).map(|_| ())
+}
+
+/// [`read_input`] that also hashes the input's bytes as they go by (read to the end), for an
+/// input that can be read only once: standard input.
+pub fn read_input_hashed(
+    input: &Input,
+    opts: &ReadOptions,
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+) -> Result<blake3::Hash, ReadError> {
+    read_source(input, opts, warnings, emit, true).map(|h| h.unwrap_or_else(|| blake3::hash(b"")))
+}
+
+fn read_source(
+    input: &Input,
+    opts: &ReadOptions,
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+    hash: bool,
+) -> Result<Option<blake3::Hash>, ReadError> {
+    let stdin;
+    let mut src: Box<dyn BufRead> = if input.is_stdin() {
         // Streamed like a file: a JSON Lines dump piped in is never held whole.
-        let stdin = std::io::stdin();
-        let mut src = stdin.lock();
-        return guarded(input, opts, || {
+        stdin = std::io::stdin();
+        Box::new(stdin.lock())
+    } else {
+        let f = std::fs::File::open(&input.path)?;
+        Box::new(std::io::BufReader::with_capacity(1 << 16, f))
+    };
+    if !hash {
+        guarded(input, opts, || {
             read_from(&input.label, &input.path, &mut src, opts, warnings, emit)
-        });
+        })?;
+        return Ok(None);
     }
-    let f = std::fs::File::open(&input.path)?;
-    let mut src = std::io::BufReader::with_capacity(1 << 16, f);
+    let mut src = Hashing {
+        inner: src,
+        hasher: blake3::Hasher::new(),
+    };
     guarded(input, opts, || {
         read_from(&input.label, &input.path, &mut src, opts, warnings, emit)
-    })
+    })?;
+    // Whatever the reader left unread is part of the content too.
+    std::io::copy(&mut src, &mut std::io::sink())?;
+    Ok(Some(src.hasher.finalize()))
+}
+
+/// A reader that hashes every byte taken from it.
+struct Hashing<R> {
+    inner: R,
+    hasher: blake3::Hasher,
+}
+
+impl<R: BufRead> Read for Hashing<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        self.hasher.update(&buf[..n]);
+        Ok(n)
+    }
+}
+
+impl<R: BufRead> BufRead for Hashing<R> {
+    fn fill_buf(&mut self) -> std::io::Result<&[u8]> {
+        self.inner.fill_buf()
+    }
+
+    fn consume(&mut self, n: usize) {
+        // The bytes consumed are the front of the buffer the last `fill_buf` returned, which a
+        // second call returns again without reading.
+        if let Ok(b) = self.inner.fill_buf() {
+            self.hasher.update(&b[..n.min(b.len())]);
+        }
+        self.inner.consume(n)
+    }
 }
 
 /// Text of a streamed input handed over at a time (by [`read_batched`]), and how many batches are
@@ -465,7 +526,18 @@ pub fn read_batched<E>(
     opts: &ReadOptions,
     each: impl FnMut(Vec<Document>) -> Result<(), E>,
 ) -> Result<(Warnings, Result<(), ReadError>), E> {
-    read_batched_with(input, opts, BATCH_BYTES, BATCHES_AHEAD, each)
+    read_batched_with(input, opts, BATCH_BYTES, BATCHES_AHEAD, false, each)
+        .map(|(w, r)| (w, r.map(|_| ())))
+}
+
+/// [`read_batched`] that also hashes the input's bytes (see [`read_input_hashed`]).
+pub fn read_batched_hashed<E>(
+    input: &Input,
+    opts: &ReadOptions,
+    each: impl FnMut(Vec<Document>) -> Result<(), E>,
+) -> Result<(Warnings, Result<blake3::Hash, ReadError>), E> {
+    read_batched_with(input, opts, BATCH_BYTES, BATCHES_AHEAD, true, each)
+        .map(|(w, r)| (w, r.map(|h| h.unwrap_or_else(|| blake3::hash(b"")))))
 }
 
 /// [`read_batched`] with the batch size and read-ahead given.
@@ -474,8 +546,9 @@ fn read_batched_with<E>(
     opts: &ReadOptions,
     batch_bytes: usize,
     ahead: usize,
+    hash: bool,
     mut each: impl FnMut(Vec<Document>) -> Result<(), E>,
-) -> Result<(Warnings, Result<(), ReadError>), E> {
+) -> Result<(Warnings, Result<Option<blake3::Hash>, ReadError>), E> {
     let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<Document>>(ahead.max(1));
     let (input_c, opts_c) = (input.clone(), opts.clone());
     // Not a scoped thread: if `each` fails, the caller returns at once instead of waiting for
@@ -485,17 +558,23 @@ fn read_batched_with<E>(
         let mut batch = Vec::new();
         let mut bytes = 0;
         let mut open = true;
-        let r = read_input(&input_c, &opts_c, &mut warnings, &mut |d| {
-            if !open {
-                return;
-            }
-            bytes += d.text.len();
-            batch.push(d);
-            if bytes >= batch_bytes {
-                bytes = 0;
-                open = tx.send(std::mem::take(&mut batch)).is_ok();
-            }
-        });
+        let r = read_source(
+            &input_c,
+            &opts_c,
+            &mut warnings,
+            &mut |d| {
+                if !open {
+                    return;
+                }
+                bytes += d.text.len();
+                batch.push(d);
+                if bytes >= batch_bytes {
+                    bytes = 0;
+                    open = tx.send(std::mem::take(&mut batch)).is_ok();
+                }
+            },
+            hash,
+        );
         if open && !batch.is_empty() {
             let _ = tx.send(batch);
         }
@@ -510,20 +589,6 @@ fn read_batched_with<E>(
             Err(ReadError::Malformed("the reader failed".into())),
         )
     }))
-}
-
-/// Read documents from bytes already in memory (standard input, tests).
-pub fn read_bytes_into(
-    input: &Input,
-    bytes: &[u8],
-    opts: &ReadOptions,
-    warnings: &mut Warnings,
-    emit: &mut dyn FnMut(Document),
-) -> Result<(), ReadError> {
-    let mut src = bytes;
-    guarded(input, opts, || {
-        read_from(&input.label, &input.path, &mut src, opts, warnings, emit)
-    })
 }
 
 thread_local! {
@@ -649,27 +714,6 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
 /// The largest file hearsay reads whole.
 pub const MAX_FILE_BYTES: u64 = 1 << 30;
 
-/// Read an input's bytes (from disk or standard input).
-pub fn read_bytes(input: &Input) -> Result<Vec<u8>, ReadError> {
-    let mut buf = Vec::new();
-    if input.is_stdin() {
-        std::io::stdin()
-            .lock()
-            .take(MAX_FILE_BYTES + 1)
-            .read_to_end(&mut buf)?;
-    } else {
-        let f = std::fs::File::open(&input.path)?;
-        f.take(MAX_FILE_BYTES + 1).read_to_end(&mut buf)?;
-    }
-    if buf.len() as u64 > MAX_FILE_BYTES {
-        return Err(ReadError::TooLarge(format!(
-            "over {} bytes",
-            MAX_FILE_BYTES
-        )));
-    }
-    Ok(buf)
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -741,13 +785,15 @@ mod tests {
         assert_eq!(whole.len(), 1000);
         let mut sizes = Vec::new();
         let mut batched = Vec::new();
-        let (w2, r) = read_batched_with(&input, &opts, 200, 2, |b| {
+        let (w2, r) = read_batched_with(&input, &opts, 200, 2, true, |b| {
             sizes.push(b.len());
             batched.extend(b);
             Ok::<_, ()>(())
         })
         .unwrap();
-        r.unwrap();
+        // The hash taken on the way is the hash of the file's bytes.
+        let bytes = std::fs::read(&input.path).unwrap();
+        assert_eq!(r.unwrap(), Some(blake3::hash(&bytes)));
         assert_eq!(batched, whole);
         assert_eq!(w2, w1, "the broken record is warned about once");
         assert_eq!(w2.len(), 1);
@@ -763,7 +809,7 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let input = records(dir.path(), 1000);
         let mut seen = 0;
-        let r = read_batched_with(&input, &ReadOptions::default(), 200, 1, |_| {
+        let r = read_batched_with(&input, &ReadOptions::default(), 200, 1, false, |_| {
             seen += 1;
             if seen == 3 {
                 Err("stdout closed")

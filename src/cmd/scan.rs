@@ -36,6 +36,10 @@ pub struct ScanArgs {
     /// Memory for the search index writer, in MB.
     #[arg(long, default_value_t = 100, value_name = "MB")]
     pub index_memory: usize,
+    /// Memory for the results of one large input (a JSON Lines dump, standard input) before
+    /// they wait on disk in the store's folder until the input is read to its end, in MB.
+    #[arg(long, default_value_t = 64, value_name = "MB")]
+    pub file_memory: usize,
 }
 
 /// What one file came to.
@@ -74,9 +78,10 @@ fn mtime_ns(m: &std::fs::Metadata) -> u128 {
 struct ToRead {
     size: u64,
     mtime: u128,
-    hash: String,
-    /// Standard input, read once to hash it.
-    stdin_bytes: Option<Vec<u8>>,
+    /// The content hash; `None` for standard input, which is hashed as it is read (it can be
+    /// read only once), and compared with `known` then.
+    hash: Option<String>,
+    known: Option<FileEntry>,
 }
 
 /// What the cheap checks found for one file.
@@ -85,8 +90,11 @@ enum Checked {
     Read(ToRead),
 }
 
-/// Files whose reading may wait for others, so that they are read in parallel.
+/// Files whose reading may wait for others, so that they are read in parallel: at most this
+/// many, and at most `READ_BATCH_BYTES` of them on disk (their results are held until the
+/// batch is read). Inputs read as streams are read one at a time, each in parallel batches.
 const READ_BATCH: usize = 64;
+const READ_BATCH_BYTES: u64 = 64 << 20;
 
 /// Where the outcome of each file goes: the store, the summary, the warnings.
 struct Log<'a> {
@@ -123,6 +131,13 @@ impl Log<'_> {
     }
 }
 
+/// Where reading puts the results of a large input while it is read.
+#[derive(Clone, Copy)]
+struct Hold<'a> {
+    dir: &'a Path,
+    bytes: usize,
+}
+
 /// Read the pending files in parallel, in their order, building the extractor first if this
 /// is the first batch. If it cannot be built, nothing of this scan is committed: the store
 /// stays as it was.
@@ -131,6 +146,7 @@ fn read_batch(
     set: &PatternSet,
     ex: &mut Option<Extractor>,
     opts: &corpus::ReadOptions,
+    hold: Hold<'_>,
     pending: &mut Vec<(&Input, ToRead)>,
 ) -> Result<Vec<Outcome>> {
     if pending.is_empty() {
@@ -143,7 +159,7 @@ fn read_batch(
     };
     Ok(std::mem::take(pending)
         .into_par_iter()
-        .map(|(i, r)| read(built, opts, i, r))
+        .map(|(i, r)| read(built, opts, hold, i, r))
         .collect())
 }
 
@@ -155,39 +171,31 @@ fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
             reason,
         }))
     };
-    let (size, mtime) = if input.is_stdin() {
-        (0, 0)
-    } else {
-        match std::fs::metadata(&input.path) {
-            Ok(m) => (m.len(), mtime_ns(&m)),
-            Err(e) => return fail(format!("cannot read: {e}")),
-        }
+    if input.is_stdin() {
+        return Checked::Read(ToRead {
+            size: 0,
+            mtime: 0,
+            hash: None,
+            known: known.cloned(),
+        });
+    }
+    let (size, mtime) = match std::fs::metadata(&input.path) {
+        Ok(m) => (m.len(), mtime_ns(&m)),
+        Err(e) => return fail(format!("cannot read: {e}")),
     };
     if let Some(k) = known {
-        if !input.is_stdin() && k.size == size && k.mtime_ns == mtime && mtime != 0 {
+        if k.size == size && k.mtime_ns == mtime && mtime != 0 {
             return Checked::Done(Outcome::Unchanged(k.clone()));
         }
     }
     // Files are hashed by streaming them, and read again only when the content changed, so
-    // no file is held whole for the hash. Standard input can be read once only.
-    let stdin_bytes = if input.is_stdin() {
-        match corpus::read_bytes(input) {
-            Ok(b) => Some(b),
-            Err(e) => return fail(e.to_string()),
-        }
-    } else {
-        None
+    // no file is held whole for the hash.
+    let hash = match std::fs::File::open(&input.path)
+        .and_then(|f| blake3::Hasher::new().update_reader(f).map(|h| h.finalize()))
+    {
+        Ok(h) => h.to_hex().to_string(),
+        Err(e) => return fail(format!("cannot read: {e}")),
     };
-    let hash = match &stdin_bytes {
-        Some(b) => blake3::hash(b),
-        None => match std::fs::File::open(&input.path)
-            .and_then(|f| blake3::Hasher::new().update_reader(f).map(|h| h.finalize()))
-        {
-            Ok(h) => h,
-            Err(e) => return fail(format!("cannot read: {e}")),
-        },
-    };
-    let hash = hash.to_hex().to_string();
     if let Some(k) = known {
         if k.hash == hash {
             return Checked::Done(Outcome::Unchanged(FileEntry {
@@ -200,80 +208,106 @@ fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
     Checked::Read(ToRead {
         size,
         mtime,
-        hash,
-        stdin_bytes,
+        hash: Some(hash),
+        known: None,
     })
 }
 
 /// Read a new or changed file through the pipeline.
-fn read(ex: &Extractor, opts: &corpus::ReadOptions, input: &Input, r: ToRead) -> Outcome {
+fn read(
+    ex: &Extractor,
+    opts: &corpus::ReadOptions,
+    hold: Hold<'_>,
+    input: &Input,
+    r: ToRead,
+) -> Outcome {
     let mut warnings = Vec::new();
     let mut result = FileResult::default();
     let (mut documents, mut text_bytes) = (0u64, 0u64);
     // Each document is taken through the pipeline as soon as it is read, so a JSON Lines dump
     // costs the memory of one record plus its results.
     let take = |d: &corpus::Document, result: &mut FileResult| {
-        result.claims.extend(pipeline::document_claims(ex, d));
+        result.add_claims(pipeline::document_claims(ex, d));
         let id = doc_id(&d.path, d.record.as_deref());
         // Index text only (not stored): whitespace need not be collapsed.
         for s in pipeline::document_sentences(d) {
-            result.sentences.push((
+            result.add_sentence(
                 id.clone(),
                 s.line as u64,
                 s.start as u64,
                 s.text.to_string(),
-            ));
+            );
         }
     };
     let mut count = |d: &corpus::Document| {
         documents += 1;
         text_bytes += d.text.len() as u64;
     };
-    let done = match &r.stdin_bytes {
-        Some(b) => corpus::read_bytes_into(input, b, opts, &mut warnings, &mut |d| {
-            count(&d);
-            take(&d, &mut result);
-        }),
-        // A stream (a JSON Lines dump, a large file): batches of its documents in parallel,
-        // their results joined in order.
-        None if corpus::streams(input, opts) => {
-            let (w, r) = corpus::read_batched(input, opts, |batch| {
-                batch.iter().for_each(&mut count);
-                let parts: Vec<FileResult> = batch
-                    .par_iter()
-                    .map(|d| {
-                        let mut part = FileResult::default();
-                        take(d, &mut part);
-                        part
-                    })
-                    .collect();
-                for p in parts {
-                    result.claims.extend(p.claims);
-                    result.sentences.extend(p.sentences);
-                }
-                Ok::<(), std::convert::Infallible>(())
+    let mut hash = r.hash;
+    let done = if corpus::streams(input, opts) {
+        // A stream (standard input, a JSON Lines dump, a large file): batches of its documents
+        // in parallel, their results joined in order, and moved to disk past `hold.bytes`.
+        let each = |batch: Vec<corpus::Document>| {
+            batch.iter().for_each(&mut count);
+            let parts: Vec<FileResult> = batch
+                .par_iter()
+                .map(|d| {
+                    let mut part = FileResult::default();
+                    take(d, &mut part);
+                    part
+                })
+                .collect();
+            for p in parts {
+                result.append(p);
+            }
+            if result.held_bytes() > hold.bytes {
+                result.spill(hold.dir)?;
+            }
+            Ok::<(), hearsay::error::StoreError>(())
+        };
+        let read = if hash.is_none() {
+            corpus::read_batched_hashed(input, opts, each).map(|(w, r)| {
+                (
+                    w,
+                    r.map(|h| {
+                        hash = Some(h.to_hex().to_string());
+                    }),
+                )
             })
-            .unwrap_or_else(|never| match never {});
-            warnings = w;
-            r
+        } else {
+            corpus::read_batched(input, opts, each)
+        };
+        match read {
+            Ok((w, r)) => {
+                warnings = w;
+                r.map_err(|e| e.to_string())
+            }
+            Err(e) => Err(format!("cannot hold its results: {e}")),
         }
-        None => corpus::read_input(input, opts, &mut warnings, &mut |d| {
+    } else {
+        corpus::read_input(input, opts, &mut warnings, &mut |d| {
             count(&d);
             take(&d, &mut result);
-        }),
+        })
+        .map_err(|e| e.to_string())
     };
-    if let Err(e) = done {
+    if let Err(reason) = done {
         return Outcome::Failed(Skipped {
             path: input.label.clone(),
-            reason: e.to_string(),
+            reason,
         });
+    }
+    let hash = hash.unwrap_or_default();
+    if let Some(k) = r.known.filter(|k| k.hash == hash) {
+        // Standard input with the content the store has: what was read is dropped.
+        return Outcome::Unchanged(k);
     }
     result.entry = Some(FileEntry {
         size: if input.is_stdin() { text_bytes } else { r.size },
         mtime_ns: r.mtime,
-        hash: r.hash,
+        hash,
         documents,
-        sentences: result.sentences.len() as u64,
+        sentences: result.counts().1,
         warnings,
         ..FileEntry::new(&input.label)
     });
@@ -316,6 +350,11 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     // Files to read wait here across chunks, so that a re-scan that changed one file in a
     // hundred still reads them in parallel; at most `READ_BATCH` wait.
     let mut pending: Vec<(&Input, ToRead)> = Vec::new();
+    let mut pending_bytes = 0u64;
+    let hold = Hold {
+        dir: &g.store,
+        bytes: a.file_memory.max(1) * 1_000_000,
+    };
     // The extractor (cues compiled, tagger loaded) is built when the first file needs reading:
     // it is most of the cost of a re-scan that finds nothing changed.
     let mut ex: Option<Extractor> = None;
@@ -349,16 +388,31 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         for (i, c) in chunk.iter().zip(checked) {
             match c {
                 Checked::Done(o) => log.record(o, &mut writer)?,
-                Checked::Read(r) => pending.push((i, r)),
-            }
-        }
-        if pending.len() >= READ_BATCH {
-            for o in read_batch(g, &set, &mut ex, &opts, &mut pending)? {
-                log.record(o, &mut writer)?;
+                Checked::Read(r) if corpus::streams(i, &opts) => {
+                    // Alone: its batches are read in parallel, and only one stream's results
+                    // are held at a time.
+                    let mut one = vec![(i, r)];
+                    pending_bytes = 0;
+                    for p in [&mut pending, &mut one] {
+                        for o in read_batch(g, &set, &mut ex, &opts, hold, p)? {
+                            log.record(o, &mut writer)?;
+                        }
+                    }
+                }
+                Checked::Read(r) => {
+                    pending_bytes += r.size;
+                    pending.push((i, r));
+                    if pending.len() >= READ_BATCH || pending_bytes >= READ_BATCH_BYTES {
+                        pending_bytes = 0;
+                        for o in read_batch(g, &set, &mut ex, &opts, hold, &mut pending)? {
+                            log.record(o, &mut writer)?;
+                        }
+                    }
+                }
             }
         }
     }
-    for o in read_batch(g, &set, &mut ex, &opts, &mut pending)? {
+    for o in read_batch(g, &set, &mut ex, &opts, hold, &mut pending)? {
         log.record(o, &mut writer)?;
     }
     progress.finish_and_clear();

@@ -1,6 +1,7 @@
 //! The store: incremental re-scans, deletions, and surviving a scan killed mid-way.
 
 use crate::common::*;
+use serde_json::json;
 use std::process::Stdio;
 use std::time::Duration;
 
@@ -249,4 +250,164 @@ fn a_changed_dump_drops_the_sentences_of_records_it_no_longer_has() {
         after,
         "sentences of the dropped record are still counted"
     );
+}
+
+/// What a store answers: its claims in order, the whole `top` table, and the co-mention counts
+/// of its eight strongest pairs (from the sentence index). Standard input's path `-` is written
+/// as `as_path`, so a store of piped text compares with one of the file.
+fn store_answers(store: &std::path::Path, as_path: &str) -> Vec<String> {
+    let mut v: Vec<String> = json_lines(&["claims"], store)
+        .iter()
+        .map(|c| c.to_string())
+        .collect();
+    let top = json_lines(&["top", "-n", "0"], store);
+    v.extend(top.iter().map(|t| t.to_string()));
+    for t in top.iter().take(8) {
+        let (c, e) = (t["cause"].as_str().unwrap(), t["effect"].as_str().unwrap());
+        let p = &json_lines(&["pair", c, e], store)[0];
+        v.push(format!("{c} / {e}: {} co-mentions", p["co_mentions"]));
+    }
+    let (path, id) = (
+        format!("\"path\":{}", json!(as_path)),
+        format!("\"{as_path}#"),
+    );
+    v.iter()
+        .map(|s| s.replace("\"path\":\"-\"", &path).replace("\"-#", &id))
+        .collect()
+}
+
+/// The first place two stores' answers differ (the whole lists are too long to print).
+fn first_difference(a: &[String], b: &[String]) -> String {
+    match a.iter().zip(b).position(|(x, y)| x != y) {
+        Some(i) => format!("answer {i}:\n{}\n{}", a[i], b[i]),
+        None => format!("{} answers against {}", a.len(), b.len()),
+    }
+}
+
+#[test]
+fn a_large_input_whose_results_wait_on_disk_gives_the_same_store() {
+    let Some(articles) = shared_data("elife-articles/articles") else {
+        return;
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let dump = tmp.path().join("dump.jsonl");
+    // About 1.5 MB of text: with --file-memory 1 its results go to disk more than once.
+    let records = elife_records(&articles, &(0..36).collect::<Vec<_>>());
+    assert!(records.len() > 1_400_000, "{}", records.len());
+    std::fs::write(&dump, &records).unwrap();
+    let dump_s = dump.to_str().unwrap();
+    let held = tmp.path().join("held");
+    json_lines(&["scan", dump_s], &held);
+    let answers = store_answers(&held, dump_s);
+    assert!(answers.len() > 500, "{}", answers.len());
+    let co: Vec<&String> = answers
+        .iter()
+        .filter(|a| a.ends_with("co-mentions"))
+        .collect();
+    assert!(
+        co.iter()
+            .filter(|a| !a.ends_with(": 0 co-mentions"))
+            .count()
+            >= 6,
+        "the index is read: {co:?}"
+    );
+    let spilled = tmp.path().join("spilled");
+    json_lines(&["scan", "--file-memory", "1", dump_s], &spilled);
+    let spilled = store_answers(&spilled, dump_s);
+    assert!(
+        spilled == answers,
+        "{}",
+        first_difference(&spilled, &answers)
+    );
+    // Standard input is streamed too (it was read whole, and refused over 1 GiB), hashed on
+    // the way: the same content again is found unchanged.
+    let piped = tmp.path().join("piped");
+    let scan_stdin = || -> serde_json::Value {
+        let out = hearsay()
+            .arg("--store")
+            .arg(&piped)
+            .args(["--format", "json", "scan", "--file-memory", "1", "-"])
+            .write_stdin(records.clone())
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        serde_json::from_slice(&out.stdout).unwrap()
+    };
+    let first = scan_stdin();
+    assert_eq!(first["files_read"], 1, "{first}");
+    let from_stdin = store_answers(&piped, dump_s);
+    assert!(
+        from_stdin == answers,
+        "{}",
+        first_difference(&from_stdin, &answers)
+    );
+    let again = scan_stdin();
+    assert_eq!(
+        (
+            again["files_read"].as_u64(),
+            again["files_unchanged"].as_u64()
+        ),
+        (Some(0), Some(1)),
+        "{again}"
+    );
+    assert_eq!(again["claims"], first["claims"]);
+}
+
+#[test]
+fn a_stream_that_breaks_part_way_keeps_what_the_store_had() {
+    let Some(articles) = shared_data("elife-articles/articles") else {
+        return;
+    };
+    use std::io::Write;
+    let gzip = |records: &str| {
+        let mut z = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::fast());
+        z.write_all(records.as_bytes()).unwrap();
+        z.finish().unwrap()
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    let dump = corpus.join("dump.jsonl.gz");
+    std::fs::write(&dump, gzip(&elife_records(&articles, &[5, 6, 7]))).unwrap();
+    let store = tmp.path().join("store");
+    let dump_s = dump.to_str().unwrap();
+    json_lines(&["scan", dump_s], &store);
+    let before = store_answers(&store, dump_s);
+    assert!(before.len() > 50, "{}", before.len());
+    // A longer dump, cut off after more than a megabyte of its text has been read: what was
+    // read of it went to disk (--file-memory 1) before the read failed.
+    let long = gzip(&elife_records(&articles, &(0..36).collect::<Vec<_>>()));
+    std::fs::write(&dump, &long[..long.len() * 9 / 10]).unwrap();
+    let out = hearsay()
+        .arg("--store")
+        .arg(&store)
+        .args(["--format", "json", "scan", "--file-memory", "1", dump_s])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let summary: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(summary["files_failed"], 1, "{summary}");
+    assert!(
+        String::from_utf8_lossy(&out.stderr).contains("truncated compressed data"),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let after = store_answers(&store, dump_s);
+    assert!(after == before, "{}", first_difference(&after, &before));
+    let left: Vec<_> = std::fs::read_dir(&store)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| {
+            !n.starts_with("seg-") && !["index", "lock", "manifest.json"].contains(&n.as_str())
+        })
+        .collect();
+    assert!(left.is_empty(), "left in the store: {left:?}");
 }
