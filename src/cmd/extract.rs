@@ -1,6 +1,7 @@
 //! `hearsay extract PATH...|-`: claims as JSON Lines on stdout, no store. The map step for
 //! pipelines and clusters: its output is what `merge` (and any reducer) consumes.
 
+use super::progress::Progress;
 use super::{check_paths, ClaimFilter, Global};
 use anyhow::Result;
 use clap::Args;
@@ -67,6 +68,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     // window, so memory stays bounded. Inputs that stream (standard input, JSON Lines, large
     // files) are read alone, in batches of documents extracted in parallel.
     let chunk = (rayon::current_num_threads() * 16).max(1);
+    let progress = Progress::new(g, "extracting", inputs.len());
     let mut rest = inputs.as_slice();
     while !rest.is_empty() {
         let whole = rest
@@ -77,16 +79,17 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
         if whole == 0 {
             let input = &rest[0];
             rest = &rest[1..];
-            match job.stream(input, &mut out, |w| g.warn(w))? {
+            match job.stream(input, &mut out, &progress, |w| progress.warn(g, w))? {
                 Ok((n, b)) => {
                     claims += n;
                     bytes += b;
                 }
                 Err(e) => {
                     failed += 1;
-                    g.warn(&format!("{}: {e}", input.label));
+                    progress.warn(g, &format!("{}: {e}", input.label));
                 }
             }
+            progress.file_done();
             continue;
         }
         let (group, tail) = rest.split_at(whole);
@@ -94,7 +97,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
         let results: Vec<Extracted> = group.par_iter().map(|i| job.whole(i)).collect();
         for (input, (r, warnings)) in group.iter().zip(results) {
             for w in warnings {
-                g.warn(&w);
+                progress.warn(g, &w);
             }
             match r {
                 Ok((text, n, b)) => {
@@ -104,12 +107,14 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
                 }
                 Err(e) => {
                     failed += 1;
-                    g.warn(&format!("{}: {e}", input.label));
+                    progress.warn(g, &format!("{}: {e}", input.label));
                 }
             }
+            progress.file_done();
         }
     }
     out.flush()?;
+    progress.finish();
     if !g.quiet {
         let secs = started.elapsed().as_secs_f64();
         eprintln!(
@@ -237,6 +242,7 @@ impl Job<'_> {
         &self,
         input: &Input,
         out: &mut impl Write,
+        progress: &Progress,
         warn: impl Fn(&str),
     ) -> Result<Result<(usize, usize), String>> {
         let (mut claims, mut bytes, mut docs, mut sentences) = (0, 0, 0u64, 0u64);
@@ -263,6 +269,7 @@ impl Job<'_> {
                 sentences += o.sentences;
                 failed = failed.take().or(o.failed);
             }
+            progress.stream(&input.label, docs, bytes as u64);
             anyhow::Ok(())
         })?;
         for w in &warnings {

@@ -14,6 +14,7 @@ mod merge;
 mod pair;
 mod paths;
 mod patterns;
+mod progress;
 mod questions;
 mod report;
 mod scan;

@@ -1,5 +1,6 @@
 //! `hearsay scan PATH...`: read files into the claim store, re-reading only what changed.
 
+use super::progress::Progress;
 use super::{check_paths, escape, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::Args;
@@ -9,11 +10,9 @@ use hearsay::graph::doc_id;
 use hearsay::patterns::PatternSet;
 use hearsay::pipeline;
 use hearsay::store::{FileEntry, FileResult, StoreWriter};
-use indicatif::{ProgressBar, ProgressStyle};
 use rayon::prelude::*;
 use serde::Serialize;
 use std::collections::BTreeSet;
-use std::io::IsTerminal;
 use std::path::Path;
 use std::process::ExitCode;
 use std::time::{Instant, UNIX_EPOCH};
@@ -99,7 +98,7 @@ const READ_BATCH_BYTES: u64 = 64 << 20;
 /// Where the outcome of each file goes: the store, the summary, the warnings.
 struct Log<'a> {
     g: &'a Global,
-    progress: &'a ProgressBar,
+    progress: &'a Progress,
     summary: &'a mut Summary,
     failed: &'a mut Vec<Skipped>,
 }
@@ -115,27 +114,29 @@ impl Log<'_> {
                 self.summary.files_read += 1;
                 if let Some(e) = &r.entry {
                     for w in &e.warnings {
-                        self.progress.suspend(|| self.g.warn(w));
+                        self.progress.warn(self.g, w);
                     }
                 }
                 writer.put(*r).context("cannot write to the store")?;
             }
             Outcome::Failed(s) => {
                 self.progress
-                    .suspend(|| self.g.warn(&format!("{}: {}", s.path, s.reason)));
+                    .warn(self.g, &format!("{}: {}", s.path, s.reason));
                 self.failed.push(s);
             }
         }
-        self.progress.inc(1);
+        self.progress.file_done();
         Ok(())
     }
 }
 
-/// Where reading puts the results of a large input while it is read.
+/// Where reading puts the results of a large input while it is read, and where it says how far
+/// into the input it is.
 #[derive(Clone, Copy)]
 struct Hold<'a> {
     dir: &'a Path,
     bytes: usize,
+    progress: &'a Progress,
 }
 
 /// Read the pending files in parallel, in their order, building the extractor first if this
@@ -239,16 +240,15 @@ fn read(
             );
         }
     };
-    let mut count = |d: &corpus::Document| {
-        documents += 1;
-        text_bytes += d.text.len() as u64;
-    };
     let mut hash = r.hash;
     let done = if corpus::streams(input, opts) {
         // A stream (standard input, a JSON Lines dump, a large file): batches of its documents
         // in parallel, their results joined in order, and moved to disk past `hold.bytes`.
         let each = |batch: Vec<corpus::Document>| {
-            batch.iter().for_each(&mut count);
+            for d in &batch {
+                documents += 1;
+                text_bytes += d.text.len() as u64;
+            }
             let parts: Vec<FileResult> = batch
                 .par_iter()
                 .map(|d| {
@@ -260,6 +260,7 @@ fn read(
             for p in parts {
                 result.append(p);
             }
+            hold.progress.stream(&input.label, documents, text_bytes);
             if result.held_bytes() > hold.bytes {
                 result.spill(hold.dir)?;
             }
@@ -286,7 +287,8 @@ fn read(
         }
     } else {
         corpus::read_input(input, opts, &mut warnings, &mut |d| {
-            count(&d);
+            documents += 1;
+            text_bytes += d.text.len() as u64;
             take(&d, &mut result);
         })
         .map_err(|e| e.to_string())
@@ -333,19 +335,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         files_seen: inputs.len(),
         ..Summary::default()
     };
-    let progress = if !g.quiet && std::io::stderr().is_terminal() {
-        let pb = ProgressBar::new(inputs.len() as u64);
-        pb.set_style(
-            ProgressStyle::with_template(
-                "{spinner} scanning [{bar:30}] {pos}/{len} files {msg} ({eta})",
-            )
-            .unwrap_or_else(|_| ProgressStyle::default_bar())
-            .progress_chars("=> "),
-        );
-        pb
-    } else {
-        ProgressBar::hidden()
-    };
+    let progress = Progress::new(g, "scanning", inputs.len());
     let mut failed = Vec::new();
     // Files to read wait here across chunks, so that a re-scan that changed one file in a
     // hundred still reads them in parallel; at most `READ_BATCH` wait.
@@ -354,6 +344,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     let hold = Hold {
         dir: &g.store,
         bytes: a.file_memory.max(1) * 1_000_000,
+        progress: &progress,
     };
     // The extractor (cues compiled, tagger loaded) is built when the first file needs reading:
     // it is most of the cost of a re-scan that finds nothing changed.
@@ -415,7 +406,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     for o in read_batch(g, &set, &mut ex, &opts, hold, &mut pending)? {
         log.record(o, &mut writer)?;
     }
-    progress.finish_and_clear();
+    progress.finish();
     // Drop what is gone: files that no longer exist, and files under a scanned folder that the
     // walk no longer yields (deleted, or now ignored).
     let seen: BTreeSet<&str> = inputs.iter().map(|i| i.label.as_str()).collect();
