@@ -484,6 +484,9 @@ impl<R: BufRead> BufRead for Hashing<R> {
     }
 
     fn consume(&mut self, n: usize) {
+        if n == 0 {
+            return;
+        }
         // The bytes consumed are the front of the buffer the last `fill_buf` returned, which a
         // second call returns again without reading.
         if let Ok(b) = self.inner.fill_buf() {
