@@ -419,17 +419,6 @@ pub fn read_input(
     read_source(input, opts, warnings, emit, false).map(|_| ())
 }
 
-/// [`read_input`] that also hashes the input's bytes as they go by (read to the end), for an
-/// input that can be read only once: standard input.
-pub fn read_input_hashed(
-    input: &Input,
-    opts: &ReadOptions,
-    warnings: &mut Warnings,
-    emit: &mut dyn FnMut(Document),
-) -> Result<blake3::Hash, ReadError> {
-    read_source(input, opts, warnings, emit, true).map(|h| h.unwrap_or_else(|| blake3::hash(b"")))
-}
-
 fn read_source(
     input: &Input,
     opts: &ReadOptions,
@@ -533,7 +522,8 @@ pub fn read_batched<E>(
         .map(|(w, r)| (w, r.map(|_| ())))
 }
 
-/// [`read_batched`] that also hashes the input's bytes (see [`read_input_hashed`]).
+/// [`read_batched`] that also hashes the input's bytes as they go by, read to the end: for an
+/// input that can be read only once (standard input).
 pub fn read_batched_hashed<E>(
     input: &Input,
     opts: &ReadOptions,

@@ -645,7 +645,6 @@ pub struct FileResult {
 struct Spilled {
     out: BufWriter<File>,
     dir: PathBuf,
-    claims: u64,
     sentences: u64,
 }
 
@@ -682,16 +681,9 @@ impl FileResult {
         self.held
     }
 
-    /// Claims and sentences of the file so far, spilled ones included.
-    pub fn counts(&self) -> (u64, u64) {
-        let (c, s) = self
-            .spilled
-            .as_ref()
-            .map_or((0, 0), |sp| (sp.claims, sp.sentences));
-        (
-            c + self.claims.len() as u64,
-            s + self.sentences.len() as u64,
-        )
+    /// Sentences of the file so far, spilled ones included.
+    pub fn sentence_count(&self) -> u64 {
+        self.spilled.as_ref().map_or(0, |sp| sp.sentences) + self.sentences.len() as u64
     }
 
     /// Move everything held in memory to the spill file in `dir` (created on first use, and
@@ -704,7 +696,6 @@ impl FileResult {
                 self.spilled.insert(Spilled {
                     out: BufWriter::with_capacity(1 << 16, f),
                     dir: dir.to_path_buf(),
-                    claims: 0,
                     sentences: 0,
                 })
             }
@@ -714,7 +705,6 @@ impl FileResult {
             buf.clear();
             serde_json::to_writer(&mut buf, &c).map_err(|e| corrupt_spill(&sp.dir, e))?;
             write_spilled(sp, b'c', &buf)?;
-            sp.claims += 1;
         }
         for (id, line, start, text) in self.sentences.drain(..) {
             buf.clear();

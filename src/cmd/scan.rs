@@ -81,6 +81,8 @@ struct ToRead {
     /// read only once), and compared with `known` then.
     hash: Option<String>,
     known: Option<FileEntry>,
+    /// Read as a stream ([`corpus::streams`]): alone, in parallel batches of documents.
+    stream: bool,
 }
 
 /// What the cheap checks found for one file.
@@ -165,7 +167,7 @@ fn read_batch(
 }
 
 /// Size, time and content hash against what the store knows: unchanged files stop here.
-fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
+fn check(input: &Input, known: Option<&FileEntry>, opts: &corpus::ReadOptions) -> Checked {
     let fail = |reason: String| {
         Checked::Done(Outcome::Failed(Skipped {
             path: input.label.clone(),
@@ -178,6 +180,7 @@ fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
             mtime: 0,
             hash: None,
             known: known.cloned(),
+            stream: true,
         });
     }
     let (size, mtime) = match std::fs::metadata(&input.path) {
@@ -211,6 +214,7 @@ fn check(input: &Input, known: Option<&FileEntry>) -> Checked {
         mtime,
         hash: Some(hash),
         known: None,
+        stream: corpus::streams(input, opts),
     })
 }
 
@@ -241,7 +245,7 @@ fn read(
         }
     };
     let mut hash = r.hash;
-    let done = if corpus::streams(input, opts) {
+    let done = if r.stream {
         // A stream (standard input, a JSON Lines dump, a large file): batches of its documents
         // in parallel, their results joined in order, and moved to disk past `hold.bytes`.
         let each = |batch: Vec<corpus::Document>| {
@@ -309,7 +313,7 @@ fn read(
         mtime_ns: r.mtime,
         hash,
         documents,
-        sentences: result.counts().1,
+        sentences: result.sentence_count(),
         warnings,
         ..FileEntry::new(&input.label)
     });
@@ -374,12 +378,12 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
         let checked: Vec<Checked> = chunk
             .par_iter()
             .zip(known.par_iter())
-            .map(|(i, k)| check(i, k.as_ref()))
+            .map(|(i, k)| check(i, k.as_ref(), &opts))
             .collect();
         for (i, c) in chunk.iter().zip(checked) {
             match c {
                 Checked::Done(o) => log.record(o, &mut writer)?,
-                Checked::Read(r) if corpus::streams(i, &opts) => {
+                Checked::Read(r) if r.stream => {
                     // Alone: its batches are read in parallel, and only one stream's results
                     // are held at a time.
                     let mut one = vec![(i, r)];
