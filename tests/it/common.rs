@@ -17,6 +17,17 @@ pub fn hearsay() -> Command {
     c
 }
 
+/// Run a hearsay command to its end; the test fails, showing its stderr, unless it succeeded.
+pub fn succeeded(cmd: &mut Command) -> std::process::Output {
+    let out = cmd.output().expect("runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out
+}
+
 /// The shared datasets folder (`../shared/data` beside the repository, or `$HEARSAY_SHARED_DATA`).
 /// A test that needs it fails when it is missing, unless `HEARSAY_SKIP_EXTERNAL=1` is set, in
 /// which case it returns `None` and the test says it was skipped.
@@ -192,22 +203,17 @@ pub fn word_string(text: &str) -> String {
 
 /// `hearsay --format json eval --gold-format FORMAT --gold GOLD`: the first JSON line (the scores).
 pub fn eval_json(format: &str, gold: &Path) -> serde_json::Value {
-    let out = hearsay()
-        .args([
-            "--format",
-            "json",
-            "eval",
-            "--gold-format",
-            format,
-            "--gold",
-        ])
-        .arg(gold)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
+    let out = succeeded(
+        hearsay()
+            .args([
+                "--format",
+                "json",
+                "eval",
+                "--gold-format",
+                format,
+                "--gold",
+            ])
+            .arg(gold),
     );
     let first = out.stdout.split(|&b| b == b'\n').next().unwrap();
     serde_json::from_slice(first).unwrap()

@@ -128,9 +128,7 @@ fn extract_output<S: AsRef<std::ffi::OsStr>>(args: &[S], stdin: Option<&str>) ->
     if let Some(s) = stdin {
         cmd.write_stdin(s.to_string());
     }
-    let o = cmd.output().unwrap();
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
-    o.stdout
+    succeeded(&mut cmd).stdout
 }
 
 /// Drop the `begin_file` records, as shards of older hearsay versions lack them.

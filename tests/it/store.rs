@@ -323,17 +323,12 @@ fn a_large_input_whose_results_wait_on_disk_gives_the_same_store() {
     // the way: the same content again is found unchanged.
     let piped = tmp.path().join("piped");
     let scan_stdin = || -> serde_json::Value {
-        let out = hearsay()
-            .arg("--store")
-            .arg(&piped)
-            .args(["--format", "json", "scan", "--file-memory", "1", "-"])
-            .write_stdin(records.clone())
-            .output()
-            .unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
+        let out = succeeded(
+            hearsay()
+                .arg("--store")
+                .arg(&piped)
+                .args(["--format", "json", "scan", "--file-memory", "1", "-"])
+                .write_stdin(records.clone()),
         );
         serde_json::from_slice(&out.stdout).unwrap()
     };
@@ -382,17 +377,14 @@ fn a_stream_that_breaks_part_way_keeps_what_the_store_had() {
     // read of it went to disk (--file-memory 1) before the read failed.
     let long = gzip(&elife_records(&articles, &(0..36).collect::<Vec<_>>()));
     std::fs::write(&dump, &long[..long.len() * 9 / 10]).unwrap();
-    let out = hearsay()
-        .arg("--store")
-        .arg(&store)
-        .args(["--format", "json", "scan", "--file-memory", "1", dump_s])
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    let out = succeeded(hearsay().arg("--store").arg(&store).args([
+        "--format",
+        "json",
+        "scan",
+        "--file-memory",
+        "1",
+        dump_s,
+    ]));
     let summary: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(summary["files_failed"], 1, "{summary}");
     assert!(
