@@ -4,39 +4,34 @@
 //! A claim is a statement found in text. It is not evidence that the causation is real, and
 //! nothing hearsay reports is advice.
 //!
-//! The pipeline reads top to bottom, one module per stage:
-//! [`corpus`] (files → documents) → [`sentences`] → [`cues`] (cue matches) → [`claims`] →
-//! [`normalize`] (variable keys) → [`store`] → [`graph`] → the reports in [`report`].
-//! [`pipeline`] chains the per-document stages; [`patterns`] loads the data files they use.
+//! The pipeline reads top to bottom, one folder per stage:
+//! [`corpus`] (files → documents) → [`sentences`] → [`extract`] (cue matches → claims, with
+//! [`variables`] keys) → [`store`] → [`graph`] → [`query`] → [`report`]. Beside it,
+//! [`evaluate`] scores extraction and graphs against labelled data and reference diagrams, and
+//! [`compare`] sets a model's answers beside what the corpus states. [`claim`] holds the claim
+//! record every stage passes on, [`patterns`] the data files the stages use, [`error`] the
+//! library's error types. DEVELOPERS.md has the map and the rules of the layering.
 
-pub mod analysis;
-pub mod claims;
-pub mod comention;
-pub mod compare;
-pub mod confidence;
-pub mod corpus;
-pub mod cues;
+// Shared types and data, used by every stage.
+pub mod claim;
 pub mod error;
-pub mod eval;
-pub mod export;
-pub mod gold;
-pub mod graph;
-pub mod html;
-pub mod model;
-pub mod normalize;
 pub mod patterns;
-pub mod pipeline;
-pub mod questions;
-pub mod readers;
-pub mod report;
-pub mod score;
+
+// The pipeline, in order.
+pub mod corpus;
 pub mod sentences;
-pub mod spaneval;
-pub mod stats;
+pub mod variables;
+pub mod extract;
 pub mod store;
-pub mod tagger;
+pub mod graph;
+pub mod query;
+pub mod report;
+
+// Beside the pipeline.
+pub mod compare;
+pub mod evaluate;
+
 #[cfg(test)]
 mod testdata;
-pub mod weight;
 
-pub use model::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};
+pub use claim::{Claim, Kind, Modality, Polarity, SCHEMA_VERSION};

@@ -3,7 +3,7 @@
 #![no_main]
 
 use hearsay::corpus::{ReadOptions, Reader};
-use hearsay::readers::html::HtmlReader;
+use hearsay::corpus::readers::html::HtmlReader;
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {

@@ -3,7 +3,7 @@
 #![no_main]
 
 use hearsay::corpus::{ReadOptions, Reader};
-use hearsay::readers::jsonl::JsonlReader;
+use hearsay::corpus::readers::jsonl::JsonlReader;
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {

@@ -3,7 +3,7 @@
 #![no_main]
 
 use hearsay::corpus::{ReadOptions, Reader};
-use hearsay::readers::markdown::MarkdownReader;
+use hearsay::corpus::readers::markdown::MarkdownReader;
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {

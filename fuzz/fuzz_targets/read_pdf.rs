@@ -8,7 +8,7 @@
 #![no_main]
 
 use hearsay::corpus::{ReadOptions, Reader};
-use hearsay::readers::pdf::PdfReader;
+use hearsay::corpus::readers::pdf::PdfReader;
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {

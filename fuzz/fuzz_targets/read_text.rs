@@ -3,7 +3,7 @@
 #![no_main]
 
 use hearsay::corpus::{ReadOptions, Reader};
-use hearsay::readers::text::TextReader;
+use hearsay::corpus::readers::text::TextReader;
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {

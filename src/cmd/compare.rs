@@ -3,13 +3,13 @@
 use super::{escape, write_rows, Format, Global, Loaded};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::comention::MentionIndex;
+use hearsay::query::comention::MentionIndex;
 use hearsay::compare::{
     self as cmp, AnswerContext, CalibrationBin, Corpus, PairView, Profile, Summary, WordingRow,
 };
 use hearsay::graph::Filter;
-use hearsay::questions as q;
-use hearsay::report;
+use hearsay::compare::questions as q;
+use hearsay::query;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -131,7 +131,7 @@ pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
             anyhow::bail!("{}: no answer to question {id}", a.answers.display());
         };
         let look =
-            |name: &str| report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, name);
+            |name: &str| query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, name);
         let rep = super::pair::report_with_evidence(
             &loaded,
             look(&p.question.x),

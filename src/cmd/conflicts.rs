@@ -4,7 +4,7 @@ use super::graph::{evidence, print_evidence, EvidenceOut};
 use super::{escape, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::analysis::{self, Conflict};
+use hearsay::graph::analysis::{self, Conflict};
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;

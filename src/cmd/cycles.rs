@@ -4,7 +4,7 @@ use super::graph::{hops_out, print_evidence, HopOut, WeightArgs};
 use super::{escape, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::analysis;
+use hearsay::graph::analysis;
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;

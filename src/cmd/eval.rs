@@ -3,7 +3,7 @@
 use super::{escape, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::{eval, gold, spaneval};
+use hearsay::evaluate::{self as eval, gold, spans as spaneval};
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -283,7 +283,7 @@ fn is_error(s: &&eval::Scored) -> bool {
 fn run_semeval(
     g: &Global,
     a: &EvalArgs,
-    ex: &hearsay::claims::Extractor,
+    ex: &hearsay::extract::claims::Extractor,
     items: &[eval::GoldItem],
 ) -> Result<ExitCode> {
     let (scores, scored) = eval::score_pairs(ex, items);

@@ -3,8 +3,8 @@
 use super::{escape, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::confidence::{self, Contribution};
-use hearsay::pipeline;
+use hearsay::extract::confidence::{self, Contribution};
+use hearsay::extract::pipeline;
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -71,7 +71,7 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
     if a.tags {
         for s in hearsay::sentences::split(&a.text) {
             let sentence = &a.text[s.start..s.end];
-            let mut toks = hearsay::claims::tokenize(sentence);
+            let mut toks = hearsay::extract::claims::tokenize(sentence);
             ex.tag_tokens(sentence, &mut toks);
             let tagged: Vec<String> = toks
                 .iter()

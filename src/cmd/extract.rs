@@ -5,10 +5,10 @@ use super::progress::Progress;
 use super::{check_paths, ClaimFilter, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::claims::collapse;
+use hearsay::extract::claims::collapse;
 use hearsay::corpus::{self, Input};
 use hearsay::graph::doc_id;
-use hearsay::pipeline;
+use hearsay::extract::pipeline;
 use hearsay::store::{FileRecord, FileStart, SentenceRecord};
 use rayon::prelude::*;
 use std::io::Write;
@@ -138,7 +138,7 @@ type Extracted = (Result<(String, usize, usize), String>, Vec<String>);
 
 /// What every input is extracted with.
 struct Job<'a> {
-    ex: &'a hearsay::claims::Extractor,
+    ex: &'a hearsay::extract::claims::Extractor,
     opts: &'a corpus::ReadOptions,
     sentences: bool,
     filter: &'a hearsay::graph::Filter,

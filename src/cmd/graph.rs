@@ -4,8 +4,8 @@
 use super::{ClaimFilter, FormatArg, Global, Loaded, Table};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::export::{self, Export, Selection};
-use hearsay::weight::{Unit, WeightSpec};
+use hearsay::graph::export::{self, Export, Selection};
+use hearsay::graph::weight::{Unit, WeightSpec};
 use std::collections::BTreeSet;
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -314,7 +314,7 @@ pub fn evidence(loaded: &Loaded, rows: &[usize], n: usize) -> Vec<EvidenceOut> {
         .map(|&r| {
             let row = &loaded.graph.rows[r];
             let (location, sentence) =
-                hearsay::report::evidence_text(&loaded.graph, &loaded.store, r);
+                hearsay::query::evidence_text(&loaded.graph, &loaded.store, r);
             EvidenceOut {
                 location,
                 polarity: row.polarity,
@@ -329,14 +329,14 @@ pub fn evidence(loaded: &Loaded, rows: &[usize], n: usize) -> Vec<EvidenceOut> {
 #[derive(serde::Serialize)]
 pub struct HopOut<'a> {
     #[serde(flatten)]
-    pub hop: &'a hearsay::analysis::Hop,
+    pub hop: &'a hearsay::graph::analysis::Hop,
     pub evidence: Vec<EvidenceOut>,
 }
 
 /// The hops of a chain or cycle, each with its first `n` evidence sentences.
 pub fn hops_out<'a>(
     loaded: &Loaded,
-    hops: &'a [hearsay::analysis::Hop],
+    hops: &'a [hearsay::graph::analysis::Hop],
     n: usize,
 ) -> Vec<HopOut<'a>> {
     hops.iter()
@@ -364,7 +364,7 @@ pub fn print_evidence(out: &mut impl Write, indent: &str, ev: &[EvidenceOut]) ->
 
 /// Find a variable the user named, or fail with suggestions.
 pub fn find_var(loaded: &Loaded, name: &str) -> Result<petgraph::graph::NodeIndex> {
-    let (m, n) = hearsay::report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, name);
+    let (m, n) = hearsay::query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, name);
     n.ok_or_else(|| {
         anyhow::anyhow!(
             "no variable \"{}\" in the claims (key \"{}\"){}",

@@ -4,7 +4,7 @@ use super::graph::{read_vars, WeightArgs};
 use super::{ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::analysis::{self, Cell};
+use hearsay::graph::analysis::{self, Cell};
 use std::io::Write;
 use std::path::PathBuf;
 use std::process::ExitCode;

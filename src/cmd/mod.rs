@@ -25,9 +25,9 @@ mod train_tagger;
 
 use anyhow::{Context, Result};
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use hearsay::claims::Extractor;
+use hearsay::extract::claims::Extractor;
 use hearsay::graph::{ClaimGraph, Filter};
-use hearsay::normalize::{Aliases, Normalizer};
+use hearsay::variables::{Aliases, Normalizer};
 use hearsay::patterns::{self as pat, PatternSet};
 use hearsay::store::Store;
 use hearsay::{Kind, Modality, Polarity};
@@ -263,9 +263,9 @@ impl Global {
     pub fn extractor_for(&self, set: &PatternSet) -> Result<Extractor> {
         // A pattern folder may carry its own confidence model (read with the set).
         if let Some((f, text)) = &set.confidence {
-            let m = hearsay::confidence::Model::parse(&f.display().to_string(), text)?;
+            let m = hearsay::extract::confidence::Model::parse(&f.display().to_string(), text)?;
             // Already installed by an earlier call in this process: the same file.
-            let _ = hearsay::confidence::install(m);
+            let _ = hearsay::extract::confidence::install(m);
         }
         Extractor::new(set)
             .map_err(|e| anyhow::anyhow!(e))

@@ -3,10 +3,10 @@
 use super::{escape, ClaimFilter, Format, Global, Loaded};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::comention;
+use hearsay::query::comention;
 use hearsay::graph::ClaimGraph;
-use hearsay::normalize::{Aliases, Normalizer};
-use hearsay::report::{self, DirectionSummary, PairReport};
+use hearsay::variables::{Aliases, Normalizer};
+use hearsay::query::{self, DirectionSummary, PairReport};
 use hearsay::store::{RowBytes, Store};
 use hearsay::Modality;
 use petgraph::graph::NodeIndex;
@@ -116,9 +116,9 @@ fn answer(g: &Global, a: &PairArgs, s: &mut Session, print: bool) -> Result<Exit
         })
         .context("cannot read the store's claims")?;
     let mut graph = ClaimGraph::build(rows, aliases, &filter);
-    let look = |graph: &ClaimGraph, q: &str| report::lookup(graph, &s.normalizer, aliases, q);
+    let look = |graph: &ClaimGraph, q: &str| query::lookup(graph, &s.normalizer, aliases, q);
     let (mut x, mut y) = (look(&graph, &a.x), look(&graph, &a.y));
-    let unknown = |v: &(report::VarMatch, Option<NodeIndex>)| v.1.is_none() && !v.0.key.is_empty();
+    let unknown = |v: &(query::VarMatch, Option<NodeIndex>)| v.1.is_none() && !v.0.key.is_empty();
     if a.whole_graph || unknown(&x) || unknown(&y) {
         let rows = s.store.rows().context("cannot read the store's claims")?;
         graph = ClaimGraph::build(rows, aliases, &filter);
@@ -128,8 +128,8 @@ fn answer(g: &Global, a: &PairArgs, s: &mut Session, print: bool) -> Result<Exit
         comention::pair_co_mentions(&mut s.store, &graph, (&x.0.key, x.1), (&y.0.key, y.1))
             .context("cannot search the sentence index")?;
     let store = &s.store;
-    let rep = report::pair_report(&graph, x, y, co_mentions, a.evidence, |r| {
-        report::evidence_text(&graph, store, r)
+    let rep = query::pair_report(&graph, x, y, co_mentions, a.evidence, |r| {
+        query::evidence_text(&graph, store, r)
     });
     if !print {
         return Ok(ExitCode::SUCCESS);
@@ -149,18 +149,18 @@ fn answer(g: &Global, a: &PairArgs, s: &mut Session, print: bool) -> Result<Exit
 /// The pair report of two looked-up variables, with evidence text fetched from the store.
 pub(super) fn report_with_evidence(
     loaded: &Loaded,
-    x: (report::VarMatch, Option<NodeIndex>),
-    y: (report::VarMatch, Option<NodeIndex>),
+    x: (query::VarMatch, Option<NodeIndex>),
+    y: (query::VarMatch, Option<NodeIndex>),
     co_mentions: usize,
     evidence: usize,
 ) -> PairReport {
     let (store, graph) = (&loaded.store, &loaded.graph);
-    report::pair_report(graph, x, y, co_mentions, evidence, |r| {
-        report::evidence_text(graph, store, r)
+    query::pair_report(graph, x, y, co_mentions, evidence, |r| {
+        query::evidence_text(graph, store, r)
     })
 }
 
-fn name(v: &report::VarMatch) -> String {
+fn name(v: &query::VarMatch) -> String {
     v.label.clone().unwrap_or_else(|| v.query.clone())
 }
 

@@ -4,7 +4,7 @@ use super::graph::{find_var, hops_out, print_evidence, HopOut, WeightArgs};
 use super::{escape, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::analysis::{self, Chain};
+use hearsay::graph::analysis::{self, Chain};
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;

@@ -3,9 +3,9 @@
 use super::{write_rows, Global};
 use anyhow::Result;
 use clap::{Args, Subcommand};
-use hearsay::claims::Extractor;
+use hearsay::extract::claims::Extractor;
 use hearsay::patterns::CueSpec;
-use hearsay::pipeline;
+use hearsay::extract::pipeline;
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;

@@ -4,8 +4,8 @@
 use super::{ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::html::{self, Options, Sources};
-use hearsay::report;
+use hearsay::report::{self, Options, Sources};
+use hearsay::query;
 use std::collections::HashMap;
 use std::io::Write;
 use std::path::PathBuf;
@@ -73,8 +73,8 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
         .collect();
     let pair = a.pair.as_deref().and_then(|p| match p {
         [x, y] => Some((
-            report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, x),
-            report::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, y),
+            query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, x),
+            query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, y),
         )),
         _ => None,
     });
@@ -107,7 +107,7 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
         }
         None => None,
     };
-    let mut data = html::collect(
+    let mut data = report::collect(
         &loaded.graph,
         Sources {
             store: &mut loaded.store,
@@ -118,7 +118,7 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
     )
     .context("cannot gather the report's data from the store")?;
     data.comparison = comparison;
-    let page = html::render(&data);
+    let page = report::render(&data);
     match &a.output {
         Some(p) => {
             std::fs::write(p, page).with_context(|| format!("cannot write {}", p.display()))?

@@ -4,7 +4,7 @@ use super::graph::WeightArgs;
 use super::{ClaimFilter, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::score::{self, Reference, Scores};
+use hearsay::evaluate::reference::{self, Reference, Scores};
 use std::io::Write;
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -88,9 +88,9 @@ pub fn run(g: &Global, a: &ScoreArgs) -> Result<ExitCode> {
     let reference = Reference::load(&a.truth, &loaded.normalizer, &loaded.aliases)
         .context("cannot read the reference diagram")?;
     let spec = a.weight.spec();
-    let weights = score::candidate_weights(&loaded.graph, &spec, &reference);
-    let at = score::score_at(&weights, &reference, a.threshold);
-    let curve = score::curve(&weights, &reference);
+    let weights = reference::candidate_weights(&loaded.graph, &spec, &reference);
+    let at = reference::score_at(&weights, &reference, a.threshold);
+    let curve = reference::curve(&weights, &reference);
     if let Some(p) = &a.curve {
         let mut buf = Vec::new();
         write_curve(&mut buf, &curve)?;

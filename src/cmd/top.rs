@@ -3,7 +3,7 @@
 use super::{write_rows, ClaimFilter, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::report::{self, TopRelation};
+use hearsay::query::{self, TopRelation};
 use std::process::ExitCode;
 
 #[derive(Args, Debug)]
@@ -41,7 +41,7 @@ const HEADERS: &[&str] = &[
 
 pub fn run(g: &Global, a: &TopArgs) -> Result<ExitCode> {
     let loaded = g.graph(&a.filter.to_filter())?;
-    let mut rows = report::top_relations(&loaded.graph, a.min_docs, a.min_claims);
+    let mut rows = query::top_relations(&loaded.graph, a.min_docs, a.min_claims);
     if a.limit > 0 {
         rows.truncate(a.limit);
     }

@@ -5,9 +5,9 @@ use super::eval::{load_gold, print_reliability, Gold, GoldFormat};
 use super::Global;
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::confidence::{self, Example, TrainOptions};
-use hearsay::eval::{self, Judged, Reliability};
-use hearsay::spaneval;
+use hearsay::extract::confidence::{self, Example, TrainOptions};
+use hearsay::evaluate::{self, Judged, Reliability};
+use hearsay::evaluate::spans;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -69,8 +69,8 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
     for (format, path) in &a.gold {
         let name = format_name(*format);
         let found = match load_gold(*format, path)? {
-            Gold::Pairs(items) => eval::score_pairs_judged(&ex, &items).2,
-            Gold::Docs(docs) => spaneval::score_spans_judged(&ex, &docs).2,
+            Gold::Pairs(items) => evaluate::score_pairs_judged(&ex, &items).2,
+            Gold::Docs(docs) => spans::score_spans_judged(&ex, &docs).2,
         };
         let file = path.file_name().map_or_else(
             || path.display().to_string(),

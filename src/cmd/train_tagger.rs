@@ -3,7 +3,7 @@
 use super::Global;
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::tagger::{self, TrainOptions};
+use hearsay::extract::tagger::{self, TrainOptions};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 

@@ -1,8 +1,8 @@
-//! Cohen's kappa, ROC AUC and Spearman's rho of `hearsay::stats` against the reference
+//! Cohen's kappa, ROC AUC and Spearman's rho of `hearsay::compare::stats` against the reference
 //! implementations in scikit-learn (`sklearn.metrics.cohen_kappa_score`, `roc_auc_score`) and
 //! scipy (`scipy.stats.spearmanr`), on fixed inputs with ties, run at test time.
 
-use hearsay::stats;
+use hearsay::compare::stats;
 use std::process::Command;
 
 const SCRIPT: &str = r#"

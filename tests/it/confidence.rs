@@ -2,9 +2,9 @@
 //! the `--min-confidence` filter and stores written with the older claim schema.
 
 use crate::common::*;
-use hearsay::claims::Extractor;
-use hearsay::confidence;
-use hearsay::eval::{self, Reliability};
+use hearsay::extract::claims::Extractor;
+use hearsay::extract::confidence;
+use hearsay::evaluate::{self as eval, Reliability};
 use hearsay::patterns::PatternSet;
 
 fn scanned_demo() -> tempfile::TempDir {
@@ -41,10 +41,10 @@ fn confidence_is_calibrated_on_held_out_sentences() {
     let items = eval::parse_semeval(&std::fs::read_to_string(sem).unwrap()).unwrap();
     let mut held = held_out("semeval2010", eval::score_pairs_judged(&ex, &items).2);
     let p = cnc.display().to_string();
-    let docs = hearsay::gold::parse_cnc(&p, &std::fs::read_to_string(&cnc).unwrap()).unwrap();
+    let docs = hearsay::evaluate::gold::parse_cnc(&p, &std::fs::read_to_string(&cnc).unwrap()).unwrap();
     held.extend(held_out(
         "cnc",
-        hearsay::spaneval::score_spans_judged(&ex, &docs).2,
+        hearsay::evaluate::spans::score_spans_judged(&ex, &docs).2,
     ));
     let r = Reliability::from_judged(&held);
     let base = r.correct as f64 / r.claims.max(1) as f64;

@@ -3,7 +3,7 @@
 //! `graphviz`). The demo corpus and the hostile labels below are invented data.
 
 use crate::common::{demo_store_in, hearsay};
-use hearsay::export::{self, Export, ExportEdge, ExportNode};
+use hearsay::graph::export::{self, Export, ExportEdge, ExportNode};
 use std::path::Path;
 use std::process::Command;
 

@@ -21,8 +21,8 @@
 use crate::corpus::Skipped;
 use crate::error::StoreError;
 use crate::graph::{ClaimRef, ClaimRow};
-use crate::model::Claim;
-use crate::normalize::StemCache;
+use crate::claim::Claim;
+use crate::variables::StemCache;
 use crate::patterns::{Lexicon, PatternSet};
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, BTreeSet, HashMap};
@@ -199,7 +199,7 @@ fn register_tokenizer(index: &Index, unindexed: &[String]) {
 }
 
 /// The index's analyzer: words split at anything not alphanumeric, lower-cased, the words no key
-/// contains (`unindexed`, see [`crate::normalize::dropped_words`]) left out, and the rest stemmed
+/// contains (`unindexed`, see [`crate::variables::dropped_words`]) left out, and the rest stemmed
 /// exactly as variable keys are (so a key's words are the index's terms). Leaving out "the",
 /// "of" and the like saved about a third of the postings work on eLife text.
 fn analyzer(unindexed: &[String]) -> TextAnalyzer {
@@ -210,7 +210,7 @@ fn analyzer(unindexed: &[String]) -> TextAnalyzer {
         .build()
 }
 
-/// Stems index tokens with [`crate::normalize::stem`], the stemmer of variable keys. Each
+/// Stems index tokens with [`crate::variables::stem`], the stemmer of variable keys. Each
 /// tokenizer (one per indexing thread) remembers the stems of the words it has seen: stemming
 /// was the largest single cost of indexing.
 #[derive(Clone, Copy)]
@@ -364,11 +364,11 @@ impl Store {
         }
         // Claim records and rows of another schema cannot be read (rows are postcard, which has
         // no field names): the store must be rebuilt.
-        if manifest.claim_schema != crate::model::SCHEMA_VERSION {
+        if manifest.claim_schema != crate::claim::SCHEMA_VERSION {
             return Err(StoreError::ClaimSchema {
                 path: dir.to_path_buf(),
                 found: manifest.claim_schema,
-                expected: crate::model::SCHEMA_VERSION,
+                expected: crate::claim::SCHEMA_VERSION,
             });
         }
         Ok(Store {
@@ -591,9 +591,9 @@ struct RowView<'a> {
     effect: &'a [u8],
     cause_text: &'a [u8],
     effect_text: &'a [u8],
-    kind: crate::model::Kind,
-    polarity: crate::model::Polarity,
-    modality: crate::model::Modality,
+    kind: crate::claim::Kind,
+    polarity: crate::claim::Polarity,
+    modality: crate::claim::Modality,
     cue: &'a [u8],
     doc: &'a [u8],
     line: u32,
@@ -762,7 +762,7 @@ impl StoreWriter {
         heap_bytes: usize,
         lexicon: &Lexicon,
     ) -> Result<StoreWriter, StoreError> {
-        let unindexed: Vec<String> = crate::normalize::dropped_words(lexicon).collect();
+        let unindexed: Vec<String> = crate::variables::dropped_words(lexicon).collect();
         fs::create_dir_all(dir).map_err(|e| StoreError::io(dir, e))?;
         let lock_path = dir.join("lock");
         let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
@@ -1014,7 +1014,7 @@ impl StoreWriter {
         prepared.commit()?;
         let manifest = Manifest {
             store_version: STORE_VERSION,
-            claim_schema: crate::model::SCHEMA_VERSION,
+            claim_schema: crate::claim::SCHEMA_VERSION,
             generation,
             hearsay_version: env!("CARGO_PKG_VERSION").to_string(),
             patterns: patterns.origin.clone(),
@@ -1272,7 +1272,7 @@ pub fn key_terms(key: &str) -> Vec<String> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::model::{Kind, Modality, Polarity};
+    use crate::claim::{Kind, Modality, Polarity};
 
     fn terms_of(a: &mut TextAnalyzer, text: &str) -> Vec<String> {
         let mut ts = a.token_stream(text);
@@ -1286,7 +1286,7 @@ mod tests {
     /// The analyzer a scan with the built-in patterns writes with.
     fn builtin_analyzer() -> TextAnalyzer {
         let lexicon = crate::patterns::PatternSet::builtin().unwrap().lexicon;
-        let unindexed: Vec<String> = crate::normalize::dropped_words(&lexicon).collect();
+        let unindexed: Vec<String> = crate::variables::dropped_words(&lexicon).collect();
         analyzer(&unindexed)
     }
 
@@ -1301,7 +1301,7 @@ mod tests {
         if articles.is_empty() {
             return;
         }
-        let norm = crate::normalize::Normalizer::new(
+        let norm = crate::variables::Normalizer::new(
             &crate::patterns::PatternSet::builtin().unwrap().lexicon,
         );
         let mut a = builtin_analyzer();
@@ -1375,9 +1375,9 @@ mod tests {
             ["rise", "temperatur", "doe"]
         );
         let lexicon = crate::patterns::PatternSet::builtin().unwrap().lexicon;
-        let norm = crate::normalize::Normalizer::new(&lexicon);
+        let norm = crate::variables::Normalizer::new(&lexicon);
         let mut n = 0;
-        for w in crate::normalize::dropped_words(&lexicon) {
+        for w in crate::variables::dropped_words(&lexicon) {
             n += 1;
             assert!(index_terms(&w).is_empty(), "{w:?} is indexed");
             assert!(norm.terms(&w).is_empty(), "{w:?} is a key word");

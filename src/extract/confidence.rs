@@ -10,15 +10,15 @@
 //!
 //! Features are computed from the claim and the raw text of its sentence only, so the model is
 //! trained (`hearsay train-confidence`, see [`train`]) on exactly what the pipeline sees. The
-//! sentence is tagged once with the built-in tagger ([`crate::tagger::Tagger::load_builtin`]) and
+//! sentence is tagged once with the built-in tagger ([`crate::extract::tagger::Tagger::load_builtin`]) and
 //! only when it gave a claim, which keeps the cost to a small share of extraction.
 //!
 //! The model in force is the built-in one unless [`install`] was called first (the command line
 //! does so when `--patterns DIR` holds a `confidence.toml`).
 
-use crate::claims::{tokenize, Extractor, Token};
-use crate::model::Claim;
-use crate::tagger::{Tag, Tagger};
+use crate::extract::claims::{tokenize, Extractor, Token};
+use crate::claim::Claim;
+use crate::extract::tagger::{Tag, Tagger};
 use rustc_hash::FxHashMap;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
@@ -28,9 +28,6 @@ use std::sync::OnceLock;
 /// The header every model file carries.
 pub const FORMAT: &str = "hearsay-confidence 1";
 
-/// The model shipped in the binary.
-/// The shipped model's text.
-pub const BUILTIN: &str = include_str!("../patterns/confidence.toml");
 
 /// A trained model: a bias and one weight per feature name. The names are what the file shows;
 /// at load time each is hashed ([`feature_hash`]) so that scoring a claim looks weights up
@@ -126,7 +123,7 @@ impl Model {
     pub fn builtin() -> &'static Model {
         static M: OnceLock<Model> = OnceLock::new();
         M.get_or_init(|| {
-            Model::parse("patterns/confidence.toml", BUILTIN)
+            Model::parse("patterns/confidence.toml", crate::patterns::BUILTIN_CONFIDENCE)
                 .expect("the built-in confidence model is valid (checked by a unit test)")
         })
     }
@@ -651,7 +648,7 @@ fn solve_spd(a: &mut [f64], b: &[f64], n: usize) -> Vec<f64> {
 }
 
 /// The key the held-out split hashes: the dataset's name and the claim's unit (document and
-/// sentence offset, [`crate::eval::Judged::unit`]).
+/// sentence offset, [`crate::evaluate::Judged::unit`]).
 pub fn unit_key(dataset: &str, unit: &str) -> String {
     format!("{dataset}:{unit}")
 }
@@ -692,7 +689,7 @@ mod tests {
     fn hashed_scoring_equals_scoring_by_name() {
         let ex = Extractor::new(&crate::patterns::PatternSet::builtin().unwrap()).unwrap();
         let text = "Heavy rain probably causes severe flooding in the valley, officials said.";
-        let (claims, _) = crate::pipeline::sentence_attempts(&ex, text);
+        let (claims, _) = crate::extract::pipeline::sentence_attempts(&ex, text);
         assert!(!claims.is_empty());
         let m = Model::builtin();
         let s = TaggedSentence::new(text, 0);

@@ -563,7 +563,7 @@ impl Tagger {
     pub fn load_builtin() -> &'static Tagger {
         static T: OnceLock<Tagger> = OnceLock::new();
         T.get_or_init(|| {
-            Tagger::from_model(include_str!("../patterns/tagger.model"))
+            Tagger::from_model(include_str!("../../patterns/tagger.model"))
                 .expect("the built-in tagger model is valid (checked by a unit test)")
         })
     }

@@ -7,15 +7,15 @@
 //! spelling of a name that normalise to the same key.
 
 use crate::error::{InputError, PatternError};
-use crate::model::Polarity;
-use crate::normalize::Normalizer;
+use crate::claim::Polarity;
+use crate::variables::Normalizer;
 use crate::patterns::line_of;
 use serde::{Deserialize, Serialize};
 use std::fmt;
 use std::path::Path;
 
 /// The built-in wordings.
-pub const BUILTIN_QUESTIONS: &str = include_str!("../patterns/questions.toml");
+pub const BUILTIN_QUESTIONS: &str = include_str!("../../patterns/questions.toml");
 const BUILTIN_PATH: &str = "patterns/questions.toml";
 
 /// A family of wordings: what the question asks, independent of its phrasing.

@@ -1,8 +1,8 @@
-//! Scoring extraction against span-annotated gold data ([`crate::gold`]).
+//! Scoring extraction against span-annotated gold data ([`crate::evaluate::gold`]).
 //!
 //! The rule: a predicted claim *matches* a gold claim of the same document when the token-overlap
 //! F1 of its cause span with the gold cause is at least [`MIN_OVERLAP_F1`], and the same holds
-//! for the effects. Tokens are the words of [`crate::claims::tokenize`] (punctuation left out),
+//! for the effects. Tokens are the words of [`crate::extract::claims::tokenize`] (punctuation left out),
 //! compared by position. Each gold claim is matched to at most one prediction and each
 //! prediction to at most one gold claim; pairs are taken best first (by the smaller of the two
 //! F1 scores), so a greedy assignment is stable and cheap. Unmatched predictions are false
@@ -11,12 +11,12 @@
 //! Sentence-level data (gold with `causal` labels and no spans) is scored per text instead: a
 //! text is predicted causal when at least one causal claim is found in it.
 
-use crate::claims::{tokenize, Extractor};
+use crate::extract::claims::{tokenize, Extractor};
 use crate::corpus::Document;
-use crate::eval::{GoldSpan, Judged, Reliability};
-use crate::gold::{GoldClaim, GoldDoc};
-use crate::model::{Claim, Kind};
-use crate::pipeline;
+use crate::evaluate::{GoldSpan, Judged, Reliability};
+use crate::evaluate::gold::{GoldClaim, GoldDoc};
+use crate::claim::{Claim, Kind};
+use crate::extract::pipeline;
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -124,7 +124,7 @@ pub struct SpanError {
     pub nearby: Vec<PairText>,
 }
 
-use crate::eval::ratio;
+use crate::evaluate::ratio;
 
 /// Word-token ranges of a text, by start offset.
 struct Words(Vec<(usize, usize)>);
@@ -174,8 +174,8 @@ fn sentence_at(text: &str, sentences: &[crate::sentences::SentenceSpan], at: usi
     sentences
         .iter()
         .find(|s| s.start <= at && at < s.end)
-        .map(|s| crate::claims::collapse(&text[s.start..s.end]))
-        .unwrap_or_else(|| crate::claims::collapse(text))
+        .map(|s| crate::extract::claims::collapse(&text[s.start..s.end]))
+        .unwrap_or_else(|| crate::extract::claims::collapse(text))
 }
 
 fn gold_text(text: &str, g: &GoldClaim) -> PairText {
@@ -246,7 +246,7 @@ pub fn score_spans_judged(
                     } else {
                         "false_negative"
                     },
-                    sentence: crate::claims::collapse(&d.text),
+                    sentence: crate::extract::claims::collapse(&d.text),
                     pair: pairs.first().cloned().unwrap_or(PairText {
                         cause: String::new(),
                         effect: String::new(),
@@ -440,7 +440,7 @@ fn bump(m: &mut BTreeMap<String, Prf>, key: &str, f: impl FnOnce(&mut Prf)) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::gold::{parse_because, parse_cnc, parse_jsonl, Sign};
+    use crate::evaluate::gold::{parse_because, parse_cnc, parse_jsonl, Sign};
     use crate::patterns::PatternSet;
 
     fn ex() -> Extractor {

@@ -6,8 +6,12 @@
 //! and never become causal edges. The graph is built from compact [`ClaimRow`]s, so it can be
 //! rebuilt from a store in milliseconds; full claim records are fetched only as evidence.
 
-use crate::model::{Claim, Kind, Modality, Polarity};
-use crate::normalize::Aliases;
+pub mod analysis;
+pub mod export;
+pub mod weight;
+
+use crate::claim::{Claim, Kind, Modality, Polarity};
+use crate::variables::Aliases;
 use petgraph::graph::{DiGraph, NodeIndex};
 use petgraph::visit::EdgeRef;
 use serde::{Deserialize, Serialize};
@@ -38,7 +42,7 @@ pub struct ClaimRow {
     /// Byte offset of the sentence in its document.
     pub sentence: u64,
     pub at: ClaimRef,
-    /// The claim's confidence (see `crate::confidence`).
+    /// The claim's confidence (see `crate::extract::confidence`).
     pub confidence: f32,
 }
 
@@ -86,7 +90,7 @@ impl Filter {
     }
 
     /// The same test on a claim as extracted (`extract --min-confidence` and the like).
-    pub fn accepts_claim(&self, c: &crate::model::Claim) -> bool {
+    pub fn accepts_claim(&self, c: &crate::claim::Claim) -> bool {
         self.accepts_parts(c.kind, c.polarity, c.modality, c.confidence as f32)
     }
 

@@ -2,9 +2,11 @@
 //! most. Pure functions over a [`ClaimGraph`]; fetching evidence text and co-mention counts from a
 //! store is passed in, so the reports are testable without one.
 
+pub mod comention;
+
 use crate::graph::{ClaimGraph, Relation};
-use crate::model::{Kind, Modality, Polarity};
-use crate::normalize::{Aliases, Normalizer};
+use crate::claim::{Kind, Modality, Polarity};
+use crate::variables::{Aliases, Normalizer};
 use petgraph::graph::NodeIndex;
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -329,8 +331,8 @@ mod tests {
     use super::*;
     use crate::graph::tests::row;
     use crate::graph::Filter;
-    use crate::model::{Kind, Modality};
-    use crate::normalize::Aliases;
+    use crate::claim::{Kind, Modality};
+    use crate::variables::Aliases;
 
     #[test]
     fn an_association_is_shown_as_its_first_claim_states_it() {

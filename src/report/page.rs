@@ -5,7 +5,7 @@
 //! this crate; the script sorts tables and opens evidence panels, and needs no data of its own.
 
 use super::{graph_svg, plots, EvidenceLine, Report};
-use crate::report::{DirectionSummary, PairReport};
+use crate::query::{DirectionSummary, PairReport};
 use maud::{html, Markup, PreEscaped, DOCTYPE};
 
 const STYLE: &str = include_str!("report.css");
@@ -263,7 +263,7 @@ fn direction_row(name: String, d: &DirectionSummary) -> Markup {
 }
 
 fn pair_section(p: &PairReport) -> Markup {
-    let name = |v: &crate::report::VarMatch| v.label.clone().unwrap_or_else(|| v.query.clone());
+    let name = |v: &crate::query::VarMatch| v.label.clone().unwrap_or_else(|| v.query.clone());
     let (x, y) = (name(&p.x), name(&p.y));
     html! {
         section #pair {
@@ -310,7 +310,7 @@ fn pair_section(p: &PairReport) -> Markup {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::html::Summary;
+    use crate::report::Summary;
 
     #[test]
     fn corpus_text_is_escaped() {

@@ -7,8 +7,8 @@
 //! Every result counts statements in text; none is evidence that a causation is real.
 
 use crate::graph::{ClaimGraph, Relation};
-use crate::model::{Modality, Polarity};
-use crate::weight::WeightSpec;
+use crate::claim::{Modality, Polarity};
+use crate::graph::weight::WeightSpec;
 use petgraph::graph::NodeIndex;
 use petgraph::visit::EdgeRef;
 use serde::Serialize;
@@ -482,8 +482,8 @@ pub fn matrix(g: &ClaimGraph, spec: &WeightSpec, keys: &[String], cell: Cell) ->
 mod tests {
     use super::*;
     use crate::graph::{ClaimRef, ClaimRow, Filter};
-    use crate::model::Kind;
-    use crate::normalize::Aliases;
+    use crate::claim::Kind;
+    use crate::variables::Aliases;
 
     // Invented rows (behaviour guards).
     fn row(c: &str, e: &str, p: Polarity, m: Modality, doc: &str) -> ClaimRow {

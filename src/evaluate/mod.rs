@@ -9,9 +9,13 @@
 //! Formats: `semeval2010` (SemEval-2010 Task 8: one numbered, quoted sentence with `<e1>`/`<e2>`
 //! tags, then the relation label, then a comment line).
 
-use crate::claims::{tokenize, Extractor};
-use crate::model::{Claim, Kind};
-use crate::pipeline;
+pub mod gold;
+pub mod reference;
+pub mod spans;
+
+use crate::extract::claims::{tokenize, Extractor};
+use crate::claim::{Claim, Kind};
+use crate::extract::pipeline;
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -282,7 +286,7 @@ impl Reliability {
 }
 
 fn overlaps(c: &Claim, g: GoldSpan) -> bool {
-    let side = |s: &crate::model::Slot| s.start < g.end && g.start < s.end;
+    let side = |s: &crate::claim::Slot| s.start < g.end && g.start < s.end;
     side(&c.cause) || side(&c.effect)
 }
 
@@ -293,8 +297,8 @@ fn overlaps(c: &Claim, g: GoldSpan) -> bool {
 /// marked pair: in "A and B cause C" the annotation marks one of A and B), nor when the claim
 /// touches no gold nominal.
 fn judge_causal_item(text: &str, c: &Claim, cause: GoldSpan, effect: GoldSpan) -> Option<bool> {
-    let touches = |s: &crate::model::Slot, g: GoldSpan| s.start < g.end && g.start < s.end;
-    let reads = |s: &crate::model::Slot, g: GoldSpan| covers(text, s.start, s.end, g);
+    let touches = |s: &crate::claim::Slot, g: GoldSpan| s.start < g.end && g.start < s.end;
+    let reads = |s: &crate::claim::Slot, g: GoldSpan| covers(text, s.start, s.end, g);
     if touches(&c.cause, effect) || touches(&c.effect, cause) || c.kind != Kind::Causal {
         return (overlaps(c, cause) || overlaps(c, effect)).then_some(false);
     }

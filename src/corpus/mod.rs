@@ -7,12 +7,14 @@
 //! callback rather than returned one per file. Per-file failures are values, never panics or
 //! aborts: the caller records them and goes on with the next file.
 
+pub mod readers;
+
 use crate::error::ReadError;
-use crate::readers::html::HtmlReader;
-use crate::readers::jsonl::JsonlReader;
-use crate::readers::markdown::MarkdownReader;
-use crate::readers::pdf::PdfReader;
-use crate::readers::text::TextReader;
+use crate::corpus::readers::html::HtmlReader;
+use crate::corpus::readers::jsonl::JsonlReader;
+use crate::corpus::readers::markdown::MarkdownReader;
+use crate::corpus::readers::pdf::PdfReader;
+use crate::corpus::readers::text::TextReader;
 use std::io::{BufRead, Read};
 use std::path::{Path, PathBuf};
 
@@ -154,8 +156,8 @@ pub fn emit_decoded(
     emit: &mut dyn FnMut(Document),
     extract: impl FnOnce(String) -> Result<String, ReadError>,
 ) -> Result<(), ReadError> {
-    let src = crate::readers::text::decode_text(label, bytes, warnings)?;
-    emit(crate::readers::text::text_document(
+    let src = crate::corpus::readers::text::decode_text(label, bytes, warnings)?;
+    emit(crate::corpus::readers::text::text_document(
         label,
         None,
         extract(src)?,

@@ -17,7 +17,7 @@
 //! the rule in words, and every export and analysis prints it.
 
 use crate::graph::{ClaimGraph, ClaimRow, Relation};
-use crate::model::{Modality, Polarity};
+use crate::claim::{Modality, Polarity};
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -127,8 +127,8 @@ impl WeightSpec {
 mod tests {
     use super::*;
     use crate::graph::{ClaimRef, Filter};
-    use crate::model::Kind;
-    use crate::normalize::Aliases;
+    use crate::claim::Kind;
+    use crate::variables::Aliases;
 
     fn row(m: Modality, p: Polarity, doc: &str, sentence: u64) -> ClaimRow {
         ClaimRow {

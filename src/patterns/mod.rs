@@ -9,7 +9,7 @@
 //! `--patterns DIR` loads a user's folder with the same layout instead.
 
 use crate::error::PatternError;
-use crate::model::{Kind, Modality, Polarity};
+use crate::claim::{Kind, Modality, Polarity};
 use serde::Deserialize;
 use std::collections::{BTreeMap, HashMap, HashSet};
 use std::path::{Path, PathBuf};
@@ -19,32 +19,34 @@ use std::path::{Path, PathBuf};
 pub const BUILTIN_CUE_FILES: &[(&str, &str)] = &[
     (
         "cues/causal-verbs.toml",
-        include_str!("../patterns/cues/causal-verbs.toml"),
+        include_str!("../../patterns/cues/causal-verbs.toml"),
     ),
     (
         "cues/directional.toml",
-        include_str!("../patterns/cues/directional.toml"),
+        include_str!("../../patterns/cues/directional.toml"),
     ),
     (
         "cues/connectives.toml",
-        include_str!("../patterns/cues/connectives.toml"),
+        include_str!("../../patterns/cues/connectives.toml"),
     ),
     (
         "cues/nominal-passive.toml",
-        include_str!("../patterns/cues/nominal-passive.toml"),
+        include_str!("../../patterns/cues/nominal-passive.toml"),
     ),
     (
         "cues/association.toml",
-        include_str!("../patterns/cues/association.toml"),
+        include_str!("../../patterns/cues/association.toml"),
     ),
     (
         "cues/no-effect.toml",
-        include_str!("../patterns/cues/no-effect.toml"),
+        include_str!("../../patterns/cues/no-effect.toml"),
     ),
 ];
-const BUILTIN_LEXICON: &str = include_str!("../patterns/lexicon.toml");
-const BUILTIN_IRREGULAR: &str = include_str!("../patterns/irregular-verbs.tsv");
-const BUILTIN_ALIASES: &str = include_str!("../patterns/aliases.tsv");
+const BUILTIN_LEXICON: &str = include_str!("../../patterns/lexicon.toml");
+const BUILTIN_IRREGULAR: &str = include_str!("../../patterns/irregular-verbs.tsv");
+const BUILTIN_ALIASES: &str = include_str!("../../patterns/aliases.tsv");
+/// The shipped confidence model's text (`patterns/confidence.toml`); parsed by the extractor.
+pub const BUILTIN_CONFIDENCE: &str = include_str!("../../patterns/confidence.toml");
 
 /// Which slot a pattern token stands for.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -208,7 +210,7 @@ impl PatternSet {
             Path::new("patterns/lexicon.toml"),
             fp.add("lexicon", BUILTIN_LEXICON),
         )?;
-        fp.add("confidence", crate::confidence::BUILTIN);
+        fp.add("confidence", BUILTIN_CONFIDENCE);
         Ok(PatternSet {
             cues,
             lexicon,
@@ -276,7 +278,7 @@ impl PatternSet {
             fp.add("confidence", &text);
             Some((conf_path, text))
         } else {
-            fp.add("confidence", crate::confidence::BUILTIN);
+            fp.add("confidence", BUILTIN_CONFIDENCE);
             None
         };
         let al_path = dir.join("aliases.tsv");
@@ -895,7 +897,7 @@ mod tests {
 
     #[test]
     fn a_fixed_term_without_a_hyphenated_word_names_its_line() {
-        let lexicon = include_str!("../patterns/lexicon.toml");
+        let lexicon = include_str!("../../patterns/lexicon.toml");
         let bad = lexicon.replacen("fixed = [", "fixed = [\"protein kinase\", ", 1);
         let err = parse_lexicon(Path::new("lexicon.toml"), &bad)
             .unwrap_err()

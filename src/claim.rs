@@ -149,7 +149,7 @@ pub struct Claim {
     #[serde(default, skip_serializing_if = "std::ops::Not::not")]
     pub cross_sentence: bool,
     /// How likely the spans agree with a human reading, in [0, 1] (schema 2; see
-    /// `crate::confidence`). It rates the extraction, not whether the causation is real.
+    /// `crate::extract::confidence`). It rates the extraction, not whether the causation is real.
     pub confidence: f64,
 }
 

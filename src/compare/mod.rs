@@ -9,13 +9,15 @@
 //! Agreement with the corpus means the answer follows what the text states. It is not
 //! correctness: the corpus's statements are not evidence that the causation is real.
 
-use crate::comention::{claim_sentences, MentionIndex};
+pub mod questions;
+pub mod stats;
+
+use crate::query::comention::{claim_sentences, MentionIndex};
 use crate::error::InputError;
 use crate::graph::{ClaimGraph, Relation};
-use crate::model::{Modality, Polarity};
-use crate::normalize::{Aliases, Normalizer};
-use crate::questions::{question_id, Family, Question, Wording};
-use crate::stats;
+use crate::claim::{Modality, Polarity};
+use crate::variables::{Aliases, Normalizer};
+use crate::compare::questions::{question_id, Family, Question, Wording};
 use petgraph::graph::NodeIndex;
 use serde::Serialize;
 use std::collections::{BTreeMap, BTreeSet, HashMap};

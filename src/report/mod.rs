@@ -8,7 +8,7 @@
 //! escaped text nodes or attribute values; the inlined script is a constant and reads nothing
 //! but the page's own elements.
 //!
-//! Co-mentions are counted with [`crate::comention`], as `pair` and `compare` count them. The
+//! Co-mentions are counted with [`crate::query::comention`], as `pair` and `compare` count them. The
 //! page's conflicts are `analysis::conflicts`, as `hearsay conflicts` lists them.
 
 mod graph_svg;
@@ -18,10 +18,10 @@ mod plots;
 
 use crate::corpus::Skipped;
 use crate::error::StoreError;
-use crate::export::{self, Selection};
+use crate::graph::export::{self, Selection};
 use crate::graph::{ClaimGraph, Relation};
-use crate::model::{Kind, Modality, Polarity};
-use crate::report::{self, PairReport, TopRelation, VarMatch};
+use crate::claim::{Kind, Modality, Polarity};
+use crate::query::{self, PairReport, TopRelation, VarMatch};
 use crate::store::{key_terms, Store};
 use petgraph::graph::NodeIndex;
 use std::collections::{BTreeMap, BTreeSet, HashMap};
@@ -187,7 +187,7 @@ pub struct Report {
     pub families: Vec<(String, usize)>,
     pub top: Vec<TopRelation>,
     /// `analysis::conflicts`, as `hearsay conflicts` lists them.
-    pub conflicts: Vec<crate::analysis::Conflict>,
+    pub conflicts: Vec<crate::graph::analysis::Conflict>,
     pub co_mentions: Vec<CoMention>,
     pub pair: Option<PairReport>,
     /// With `--compare`: the per-model, per-family summaries of `hearsay compare`.
@@ -209,26 +209,26 @@ pub struct Sources<'a> {
 /// Gather the report's data.
 pub fn collect(g: &ClaimGraph, src: Sources<'_>, opts: &Options) -> Result<Report, StoreError> {
     let store = src.store;
-    let conflicts = crate::analysis::conflicts(g, 1);
+    let conflicts = crate::graph::analysis::conflicts(g, 1);
     // A conflict marks the edges it is about: both of them when the two directions are stated.
     let disputed: BTreeSet<(&str, &str)> = conflicts
         .iter()
         .flat_map(|c| {
             let (x, y) = (c.x.as_str(), c.y.as_str());
-            let both = c.kind == crate::analysis::ConflictKind::BothDirections;
+            let both = c.kind == crate::graph::analysis::ConflictKind::BothDirections;
             std::iter::once((x, y)).chain(both.then_some((y, x)))
         })
         .collect();
     let (nodes, edges) = picture(g, store, opts, &disputed);
-    let mut top = report::top_relations(g, 1, 1);
+    let mut top = query::top_relations(g, 1, 1);
     top.truncate(opts.rows);
     let mut co_mentions = co_mention_pairs(g, store, opts.co_mention_vars)?;
     co_mentions.truncate(opts.rows);
     let pair = match src.pair {
         Some((x, y)) => {
-            let n = crate::comention::pair_co_mentions(store, g, (&x.0.key, x.1), (&y.0.key, y.1))?;
-            Some(report::pair_report(g, x, y, n, opts.evidence, |r| {
-                report::evidence_text(g, store, r)
+            let n = crate::query::comention::pair_co_mentions(store, g, (&x.0.key, x.1), (&y.0.key, y.1))?;
+            Some(query::pair_report(g, x, y, n, opts.evidence, |r| {
+                query::evidence_text(g, store, r)
             }))
         }
         None => None,
@@ -276,10 +276,10 @@ fn summary(g: &ClaimGraph, store: &Store) -> Summary {
 }
 
 fn evidence(g: &ClaimGraph, store: &Store, rel: &Relation, n: usize) -> Vec<EvidenceLine> {
-    report::strongest_rows(g, rel, n)
+    query::strongest_rows(g, rel, n)
         .into_iter()
         .map(|r| {
-            let (location, sentence) = report::evidence_text(g, store, r);
+            let (location, sentence) = query::evidence_text(g, store, r);
             let row = &g.rows[r];
             EvidenceLine {
                 location,
@@ -454,7 +454,7 @@ pub fn co_mention_pairs(
             {
                 continue;
             }
-            let sentences = crate::comention::unclaimed(
+            let sentences = crate::query::comention::unclaimed(
                 g,
                 Some(a),
                 Some(b),
@@ -484,7 +484,7 @@ pub fn co_mention_pairs(
 mod tests {
     use super::*;
     use crate::graph::{ClaimRef, ClaimRow, Filter};
-    use crate::normalize::Aliases;
+    use crate::variables::Aliases;
 
     fn row(c: &str, e: &str, p: Polarity, m: Modality, doc: &str) -> ClaimRow {
         ClaimRow {

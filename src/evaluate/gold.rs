@@ -3,9 +3,9 @@
 //!
 //! Every format is read into the same shape, a [`GoldDoc`]: a text and the claims it states at
 //! byte offsets into that text. A document may be one sentence (CNC, JSON Lines) or a whole
-//! transcript (BECAUSE); scoring ([`crate::spaneval`]) runs the ordinary pipeline over the text
+//! transcript (BECAUSE); scoring ([`crate::evaluate::spans`]) runs the ordinary pipeline over the text
 //! either way, so the sentence splitter is part of what is measured. SemEval-2010, whose gold
-//! marks short nominals rather than spans, keeps its own reader and rule in [`crate::eval`].
+//! marks short nominals rather than spans, keeps its own reader and rule in [`crate::evaluate`].
 //!
 //! ## The JSON Lines gold format
 //!
@@ -24,8 +24,8 @@
 //! is a false positive.
 
 use crate::error::GoldError;
-use crate::eval::GoldSpan;
-use crate::model::{Kind, Modality, Polarity};
+use crate::evaluate::GoldSpan;
+use crate::claim::{Kind, Modality, Polarity};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
@@ -175,7 +175,7 @@ pub fn parse_because(id: &str, text: &str, ann: &str) -> Result<GoldDoc, GoldErr
 /// The text reader's rule (see `corpus`): long lines, seldom blank, hold one paragraph each.
 fn lines_are_paragraphs(text: &str) -> bool {
     use crate::corpus::Reader;
-    use crate::readers::text::TextReader;
+    use crate::corpus::readers::text::TextReader;
     let mut found = false;
     let mut warnings = Vec::new();
     let opts = crate::corpus::ReadOptions::default();

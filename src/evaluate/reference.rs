@@ -20,8 +20,8 @@
 
 use crate::error::InputError;
 use crate::graph::ClaimGraph;
-use crate::normalize::{Aliases, Normalizer};
-use crate::weight::WeightSpec;
+use crate::variables::{Aliases, Normalizer};
+use crate::graph::weight::WeightSpec;
 use serde::Serialize;
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::Path;

@@ -7,8 +7,8 @@
 //! labels, plus [`dot_quote`] for the other string attributes; CSV with the csv crate.
 
 use crate::graph::{ClaimGraph, Relation};
-use crate::model::{Modality, Polarity};
-use crate::weight::WeightSpec;
+use crate::claim::{Modality, Polarity};
+use crate::graph::weight::WeightSpec;
 use petgraph::graph::NodeIndex;
 use quick_xml::events::{BytesDecl, BytesText, Event};
 use quick_xml::Writer;
@@ -49,7 +49,7 @@ pub struct ExportEdge {
     /// (increase − decrease − prevent) / signed claims, over non-negated claims, in [-1, 1];
     /// 0 when none is signed.
     pub net_sign: f64,
-    /// See [`crate::weight`]; the rule is in [`Export::weight_rule`].
+    /// See [`crate::graph::weight`]; the rule is in [`Export::weight_rule`].
     pub weight: f64,
     /// The weight of the reverse edge (effect → cause), 0 when there is none.
     pub reverse_weight: f64,

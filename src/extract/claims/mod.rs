@@ -8,11 +8,11 @@
 //! opened by "if" makes a claim conditional; a final "?" makes it a question. The stage is pure: it
 //! sees one sentence (and the one before it) and does no I/O.
 
-use crate::cues::{CueMatch, CueSet, SlotPlace};
-use crate::model::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
-use crate::normalize::Normalizer;
+use crate::extract::cues::{CueMatch, CueSet, SlotPlace};
+use crate::claim::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
+use crate::variables::Normalizer;
 use crate::patterns::{Lexicon, PatternSet, PatternToken, Role};
-use crate::tagger::{Tag, Tagger};
+use crate::extract::tagger::{Tag, Tagger};
 use compact_str::CompactString;
 use regex::Regex;
 use rustc_hash::FxHashSet as HashSet;
@@ -921,7 +921,7 @@ impl Extractor {
         sent: SentenceRef<'_>,
         prev: Option<SentenceRef<'_>>,
         origin: &Origin<'_>,
-        candidates: &[crate::cues::Candidate],
+        candidates: &[crate::extract::cues::Candidate],
         out: &mut Vec<Claim>,
         mut trace: Option<&mut Vec<Attempt>>,
     ) {
@@ -1561,7 +1561,7 @@ impl Extractor {
         }
         Ok(Claim {
             schema: SCHEMA_VERSION,
-            confidence: 0.0, // set by the pipeline (crate::confidence)
+            confidence: 0.0, // set by the pipeline (crate::extract::confidence)
             cause: Slot {
                 text: cause.text.clone(),
                 key: ckey,
@@ -2114,7 +2114,7 @@ mod tests {
             if in_name && !in_statement {
                 named += 1;
                 for c in &glued {
-                    let inside = |span: &crate::model::Slot| {
+                    let inside = |span: &crate::claim::Slot| {
                         names.find_iter(text).any(|m| {
                             span.start - sent.offset >= m.start()
                                 && span.end - sent.offset <= m.end()
