@@ -3,22 +3,6 @@
 
 use std::path::PathBuf;
 
-/// Errors from loading and validating pattern files.
-#[derive(Debug, thiserror::Error)]
-pub enum PatternError {
-    #[error("{path}:{line}: {message}")]
-    Invalid {
-        path: PathBuf,
-        line: usize,
-        message: String,
-    },
-    #[error("cannot read {path}: {source}")]
-    Io {
-        path: PathBuf,
-        source: std::io::Error,
-    },
-}
-
 /// Errors from reading one input file. They are per file: the run records them and goes on.
 #[derive(Debug, thiserror::Error)]
 pub enum ReadError {
@@ -84,34 +68,9 @@ impl StoreError {
     }
 }
 
-/// Errors from reading labelled (gold) data for `eval`.
-#[derive(Debug, thiserror::Error)]
-pub enum GoldError {
-    #[error("{path}:{line}: {message}")]
-    Invalid {
-        path: String,
-        line: usize,
-        message: String,
-    },
-    #[error("cannot read {path}: {source}")]
-    Io {
-        path: String,
-        source: std::io::Error,
-    },
-}
-
-impl GoldError {
-    pub(crate) fn invalid(path: &str, line: usize, message: impl Into<String>) -> Self {
-        GoldError::Invalid {
-            path: path.to_string(),
-            line,
-            message: message.into(),
-        }
-    }
-}
-
-/// Errors from user-supplied data files other than patterns: variable and pair lists, answer
-/// files. Every message names the file and the line (or record) at fault.
+/// Errors from a data file the user gives or the tool ships: pattern files, labelled (gold) data,
+/// variable and pair lists, answer files, reference diagrams. Every message names the file and the
+/// line (or record) at fault.
 #[derive(Debug, thiserror::Error)]
 pub enum InputError {
     #[error("{path}:{line}: {message}")]
@@ -128,9 +87,13 @@ pub enum InputError {
 }
 
 impl InputError {
-    pub(crate) fn invalid(path: &std::path::Path, line: usize, message: impl Into<String>) -> Self {
+    pub(crate) fn invalid(
+        path: impl AsRef<std::path::Path>,
+        line: usize,
+        message: impl Into<String>,
+    ) -> Self {
         InputError::Invalid {
-            path: path.to_path_buf(),
+            path: path.as_ref().to_path_buf(),
             line,
             message: message.into(),
         }

@@ -19,13 +19,13 @@ pub mod patterns;
 
 // The pipeline, in order.
 pub mod corpus;
-pub mod sentences;
-pub mod variables;
 pub mod extract;
-pub mod store;
 pub mod graph;
 pub mod query;
 pub mod report;
+pub mod sentences;
+pub mod store;
+pub mod variables;
 
 // Beside the pipeline.
 pub mod compare;

@@ -101,8 +101,8 @@ for c in $corpora; do
   run "$o/graph-o-table.out" $s --format table graph -o "$o/graph-file.txt"
 
   top_json="$o/top.json"
-  names_from_top "$top_json" 8 >"$work/$c.vars"
-  mapfile -t v <"$work/$c.vars"
+  names_from_top "$top_json" 8 >"$c.vars"
+  mapfile -t v <"$c.vars"
   if [ "${#v[@]}" -ge 4 ]; then
     for f in table json csv; do
       run "$o/pair-01.$f" $s --format $f pair "${v[0]}" "${v[1]}" --evidence 5
@@ -114,11 +114,11 @@ for c in $corpora; do
       run "$o/paths.$f" $s --format $f paths "${v[0]}" "${v[3]}" --max-hops 4
     done
     run "$o/graph-around.dot" $s --format dot graph --around "${v[0]}" --hops 2
-    run "$o/matrix.csv" $s matrix --vars "$work/$c.vars"
-    run "$o/matrix-documents.csv" $s matrix --vars "$work/$c.vars" --cell documents
-    run "$o/matrix-mentions.csv" $s matrix --vars "$work/$c.vars" --cell mentions -o "$o/matrix-file.csv"
+    run "$o/matrix.csv" $s matrix --vars "$c.vars"
+    run "$o/matrix-documents.csv" $s matrix --vars "$c.vars" --cell documents
+    run "$o/matrix-mentions.csv" $s matrix --vars "$c.vars" --cell mentions -o "$o/matrix-file.csv"
     # A reference diagram and model answers made from the same names (deterministic).
-    python3 - "$work/$c.vars" "$work/$c.truth.csv" <<'EOF'
+    python3 - "$c.vars" "$c.truth.csv" <<'EOF'
 import sys
 names = [l.strip() for l in open(sys.argv[1]) if l.strip()]
 with open(sys.argv[2], "w") as f:
@@ -127,11 +127,11 @@ with open(sys.argv[2], "w") as f:
         f.write(f"{a},{b}\n")
 EOF
     for f in table json csv; do
-      run "$o/score.$f" $s --format $f score --truth "$work/$c.truth.csv" --curve "$o/score-curve.$f.csv"
-      run "$o/questions.$f" $s --format $f questions --vars "$work/$c.vars"
+      run "$o/score.$f" $s --format $f score --truth "$c.truth.csv" --curve "$o/score-curve.$f.csv"
+      run "$o/questions.$f" $s --format $f questions --vars "$c.vars"
     done
-    run "$work/$c.questions.csv" $s --format csv questions --vars "$work/$c.vars"
-    python3 - "$work/$c.questions.csv" "$work/$c.answers.csv" <<'EOF'
+    run "$c.questions.csv" $s --format csv questions --vars "$c.vars"
+    python3 - "$c.questions.csv" "$c.answers.csv" <<'EOF'
 import csv, sys, hashlib
 rows = list(csv.DictReader(open(sys.argv[1])))
 with open(sys.argv[2], "w", newline="") as f:
@@ -144,10 +144,10 @@ with open(sys.argv[2], "w", newline="") as f:
 EOF
     for f in table json csv; do
       for view in summary questions calibration wording pairs; do
-        run "$o/compare-$view.$f" $s --format $f compare "$work/$c.answers.csv" --vars "$work/$c.vars" --view $view
+        run "$o/compare-$view.$f" $s --format $f compare "$c.answers.csv" --vars "$c.vars" --view $view
       done
     done
-    run "$o/report.html" $s report --pair "${v[0]}" "${v[1]}" --compare "$work/$c.answers.csv" --vars "$work/$c.vars"
+    run "$o/report.html" $s report --pair "${v[0]}" "${v[1]}" --compare "$c.answers.csv" --vars "$c.vars"
   fi
   run "$o/report-plain.html" $s report --title "Snapshot"
 done
@@ -163,11 +163,12 @@ done
 run "$o/explain-tags.txt" --format table explain --tags "Warmer water may increase algae growth."
 run "$o/patterns-check.txt" patterns check
 if [ -d "$shared/semeval2010-task8" ]; then
+  ln -s "$shared" "$work/shared"
   for f in table json; do
-    run "$o/eval-semeval.$f" -j2 --format $f eval --gold "$shared/semeval2010-task8/TRAIN_FILE.TXT"
+    run "$o/eval-semeval.$f" -j2 --format $f eval --gold "shared/semeval2010-task8/TRAIN_FILE.TXT"
   done
-  run "$o/eval-because.json" -j2 --format json eval --gold "$shared/because/CongressionalHearings" --gold-format because
-  run "$o/eval-semeval-errors.txt" -j2 --format table eval --errors --gold "$shared/semeval2010-task8/TRAIN_FILE.TXT"
-  run "$o/eval-cnc.json" -j2 --format json eval --gold "$shared/causal-news-corpus/train_subtask2.csv" --gold-format cnc
+  run "$o/eval-because.json" -j2 --format json eval --gold "shared/because/CongressionalHearings" --gold-format because
+  run "$o/eval-semeval-errors.txt" -j2 --format table eval --errors --gold "shared/semeval2010-task8/TRAIN_FILE.TXT"
+  run "$o/eval-cnc.json" -j2 --format json eval --gold "shared/causal-news-corpus/train_subtask2.csv" --gold-format cnc
 fi
 echo "outputs of $bin written to $out"

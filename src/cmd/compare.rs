@@ -3,13 +3,13 @@
 use super::{escape, write_rows, Format, Global, Loaded};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::query::comention::MentionIndex;
+use hearsay::compare::questions as q;
 use hearsay::compare::{
     self as cmp, AnswerContext, CalibrationBin, Corpus, PairView, Profile, Summary, WordingRow,
 };
 use hearsay::graph::Filter;
-use hearsay::compare::questions as q;
 use hearsay::query;
+use hearsay::query::comention::MentionIndex;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;

@@ -3,11 +3,11 @@
 use super::{escape, ClaimFilter, Format, Global, Loaded};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::query::comention;
 use hearsay::graph::ClaimGraph;
-use hearsay::variables::{Aliases, Normalizer};
+use hearsay::query::comention;
 use hearsay::query::{self, DirectionSummary, PairReport};
 use hearsay::store::{RowBytes, Store};
+use hearsay::variables::{Aliases, Normalizer};
 use hearsay::Modality;
 use petgraph::graph::NodeIndex;
 use std::io::Write;

@@ -3,8 +3,8 @@
 use super::{write_rows, Global};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::variables::Normalizer;
 use hearsay::compare::questions::{self as q, Named, Question};
+use hearsay::variables::Normalizer;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 

@@ -4,8 +4,8 @@
 use super::{ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::report::{self, Options, Sources};
 use hearsay::query;
+use hearsay::report::{self, Options, Sources};
 use std::collections::HashMap;
 use std::io::Write;
 use std::path::PathBuf;

@@ -5,9 +5,9 @@ use super::eval::{load_gold, print_reliability, Gold, GoldFormat};
 use super::Global;
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::extract::confidence::{self, Example, TrainOptions};
-use hearsay::evaluate::{self, Judged, Reliability};
 use hearsay::evaluate::spans;
+use hearsay::evaluate::{self, Judged, Reliability};
+use hearsay::extract::confidence::{self, Example, TrainOptions};
 use std::path::PathBuf;
 use std::process::ExitCode;
 

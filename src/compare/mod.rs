@@ -12,12 +12,12 @@
 pub mod questions;
 pub mod stats;
 
-use crate::query::comention::{claim_sentences, MentionIndex};
+use crate::claim::{Modality, Polarity};
+use crate::compare::questions::{question_id, Family, Question, Wording};
 use crate::error::InputError;
 use crate::graph::{ClaimGraph, Relation};
-use crate::claim::{Modality, Polarity};
+use crate::query::comention::{claim_sentences, MentionIndex};
 use crate::variables::{Aliases, Normalizer};
-use crate::compare::questions::{question_id, Family, Question, Wording};
 use petgraph::graph::NodeIndex;
 use serde::Serialize;
 use std::collections::{BTreeMap, BTreeSet, HashMap};

@@ -6,10 +6,10 @@
 //! the id survives re-ordering the variable list, re-running the command and changes in the
 //! spelling of a name that normalise to the same key.
 
-use crate::error::{InputError, PatternError};
 use crate::claim::Polarity;
-use crate::variables::Normalizer;
+use crate::error::InputError;
 use crate::patterns::line_of;
+use crate::variables::Normalizer;
 use serde::{Deserialize, Serialize};
 use std::fmt;
 use std::path::Path;
@@ -105,8 +105,8 @@ struct RawWording {
     text: String,
 }
 
-fn invalid(path: &Path, line: usize, message: impl Into<String>) -> PatternError {
-    PatternError::Invalid {
+fn invalid(path: &Path, line: usize, message: impl Into<String>) -> InputError {
+    InputError::Invalid {
         path: path.to_path_buf(),
         line,
         message: message.into(),
@@ -114,7 +114,7 @@ fn invalid(path: &Path, line: usize, message: impl Into<String>) -> PatternError
 }
 
 /// Parse and validate a wording file. Every error is `file:line: reason`.
-pub fn parse_wordings(path: &Path, text: &str) -> Result<Vec<Wording>, PatternError> {
+pub fn parse_wordings(path: &Path, text: &str) -> Result<Vec<Wording>, InputError> {
     let raw: RawFile = toml::from_str(text).map_err(|e| {
         let line = e.span().map(|s| line_of(text, s.start)).unwrap_or(0);
         invalid(path, line, e.message().to_string())
@@ -176,11 +176,11 @@ pub fn parse_wordings(path: &Path, text: &str) -> Result<Vec<Wording>, PatternEr
 }
 
 /// The built-in wordings, or those of `file`.
-pub fn load_wordings(file: Option<&Path>) -> Result<Vec<Wording>, PatternError> {
+pub fn load_wordings(file: Option<&Path>) -> Result<Vec<Wording>, InputError> {
     match file {
         None => parse_wordings(Path::new(BUILTIN_PATH), BUILTIN_QUESTIONS),
         Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|source| PatternError::Io {
+            let text = std::fs::read_to_string(p).map_err(|source| InputError::Io {
                 path: p.to_path_buf(),
                 source,
             })?;

@@ -9,12 +9,12 @@
 
 pub mod readers;
 
-use crate::error::ReadError;
 use crate::corpus::readers::html::HtmlReader;
 use crate::corpus::readers::jsonl::JsonlReader;
 use crate::corpus::readers::markdown::MarkdownReader;
 use crate::corpus::readers::pdf::PdfReader;
 use crate::corpus::readers::text::TextReader;
+use crate::error::ReadError;
 use std::io::{BufRead, Read};
 use std::path::{Path, PathBuf};
 

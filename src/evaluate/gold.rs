@@ -23,9 +23,9 @@
 //! claims. An empty `claims` list marks a sentence that states no claim: any claim found there
 //! is a false positive.
 
-use crate::error::GoldError;
-use crate::evaluate::GoldSpan;
 use crate::claim::{Kind, Modality, Polarity};
+use crate::error::InputError;
+use crate::evaluate::GoldSpan;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
@@ -92,7 +92,7 @@ fn char_to_byte(text: &str) -> Vec<usize> {
 /// Parse one BECAUSE document: its `.txt` and `.ann` (brat standoff). Events of type
 /// Consequence, Motivation and Purpose with both a Cause and an Effect argument become claims;
 /// `Degree` gives the sign (Facilitate when absent, as `annotation.conf` declares).
-pub fn parse_because(id: &str, text: &str, ann: &str) -> Result<GoldDoc, GoldError> {
+pub fn parse_because(id: &str, text: &str, ann: &str) -> Result<GoldDoc, InputError> {
     let offsets = char_to_byte(text);
     let mut spans: BTreeMap<&str, GoldSpan> = BTreeMap::new();
     let mut events: Vec<(&str, &str, BTreeMap<&str, &str>)> = Vec::new();
@@ -106,7 +106,7 @@ pub fn parse_because(id: &str, text: &str, ann: &str) -> Result<GoldDoc, GoldErr
         if key.starts_with('T') {
             let meta = fields
                 .get(1)
-                .ok_or_else(|| GoldError::invalid(&path, n + 1, "text-bound line without type"))?;
+                .ok_or_else(|| InputError::invalid(&path, n + 1, "text-bound line without type"))?;
             // "Type START END" or "Type START END;START END" (discontinuous): take the outer range.
             let mut parts = meta.split(' ');
             let _ty = parts.next();
@@ -114,12 +114,12 @@ pub fn parse_because(id: &str, text: &str, ann: &str) -> Result<GoldDoc, GoldErr
                 .flat_map(|p| p.split(';'))
                 .map(|x| x.parse::<usize>())
                 .collect::<Result<_, _>>()
-                .map_err(|_| GoldError::invalid(&path, n + 1, "bad offsets"))?;
+                .map_err(|_| InputError::invalid(&path, n + 1, "bad offsets"))?;
             let (Some(&s), Some(&e)) = (rest.iter().min(), rest.iter().max()) else {
-                return Err(GoldError::invalid(&path, n + 1, "missing offsets"));
+                return Err(InputError::invalid(&path, n + 1, "missing offsets"));
             };
             let (Some(&bs), Some(&be)) = (offsets.get(s), offsets.get(e)) else {
-                return Err(GoldError::invalid(&path, n + 1, "offset past end of text"));
+                return Err(InputError::invalid(&path, n + 1, "offset past end of text"));
             };
             spans.insert(key, GoldSpan { start: bs, end: be });
         } else if key.starts_with('E') {
@@ -174,8 +174,8 @@ pub fn parse_because(id: &str, text: &str, ann: &str) -> Result<GoldDoc, GoldErr
 
 /// The text reader's rule (see `corpus`): long lines, seldom blank, hold one paragraph each.
 fn lines_are_paragraphs(text: &str) -> bool {
-    use crate::corpus::Reader;
     use crate::corpus::readers::text::TextReader;
+    use crate::corpus::Reader;
     let mut found = false;
     let mut warnings = Vec::new();
     let opts = crate::corpus::ReadOptions::default();
@@ -194,12 +194,12 @@ fn lines_are_paragraphs(text: &str) -> bool {
 /// Parse a Causal News Corpus CSV. Subtask 2 files (with a `text_w_pairs` column) give one row
 /// per cause–effect pair, `<ARG0>` the cause and `<ARG1>` the effect; rows of one sentence are
 /// grouped into one document. Subtask 1 files (`index,text,label`) give sentence labels only.
-pub fn parse_cnc(path: &str, csv_text: &str) -> Result<Vec<GoldDoc>, GoldError> {
+pub fn parse_cnc(path: &str, csv_text: &str) -> Result<Vec<GoldDoc>, InputError> {
     let mut rd =
         csv::ReaderBuilder::new().from_reader(csv_text.trim_start_matches('\u{feff}').as_bytes());
     let headers = rd
         .headers()
-        .map_err(|e| GoldError::invalid(path, 1, e.to_string()))?
+        .map_err(|e| InputError::invalid(path, 1, e.to_string()))?
         .clone();
     let col = |name: &str| headers.iter().position(|h| h == name);
     let mut docs: Vec<GoldDoc> = Vec::new();
@@ -207,7 +207,7 @@ pub fn parse_cnc(path: &str, csv_text: &str) -> Result<Vec<GoldDoc>, GoldError> 
     if let Some(pairs) = col("text_w_pairs") {
         let (Some(corpus), Some(doc), Some(sent)) = (col("corpus"), col("doc_id"), col("sent_id"))
         else {
-            return Err(GoldError::invalid(
+            return Err(InputError::invalid(
                 path,
                 1,
                 "expected corpus, doc_id and sent_id columns",
@@ -215,11 +215,11 @@ pub fn parse_cnc(path: &str, csv_text: &str) -> Result<Vec<GoldDoc>, GoldError> 
         };
         for (n, rec) in rd.records().enumerate() {
             let line = n + 2;
-            let rec = rec.map_err(|e| GoldError::invalid(path, line, e.to_string()))?;
+            let rec = rec.map_err(|e| InputError::invalid(path, line, e.to_string()))?;
             let field = |i: usize| rec.get(i).unwrap_or("");
             let id = format!("{}_{}_{}", field(corpus), field(doc), field(sent));
             let (text, cause, effect) = strip_cnc_tags(field(pairs))
-                .ok_or_else(|| GoldError::invalid(path, line, "missing <ARG0>/<ARG1> tags"))?;
+                .ok_or_else(|| InputError::invalid(path, line, "missing <ARG0>/<ARG1> tags"))?;
             let claim = GoldClaim {
                 cause,
                 effect,
@@ -246,11 +246,11 @@ pub fn parse_cnc(path: &str, csv_text: &str) -> Result<Vec<GoldDoc>, GoldError> 
     } else if let (Some(idx), Some(text), Some(label)) = (col("index"), col("text"), col("label")) {
         for (n, rec) in rd.records().enumerate() {
             let line = n + 2;
-            let rec = rec.map_err(|e| GoldError::invalid(path, line, e.to_string()))?;
+            let rec = rec.map_err(|e| InputError::invalid(path, line, e.to_string()))?;
             let causal = match rec.get(label) {
                 Some("1") => true,
                 Some("0") => false,
-                _ => return Err(GoldError::invalid(path, line, "label must be 0 or 1")),
+                _ => return Err(InputError::invalid(path, line, "label must be 0 or 1")),
             };
             docs.push(GoldDoc {
                 id: rec.get(idx).unwrap_or("").to_string(),
@@ -261,7 +261,7 @@ pub fn parse_cnc(path: &str, csv_text: &str) -> Result<Vec<GoldDoc>, GoldError> 
             });
         }
     } else {
-        return Err(GoldError::invalid(
+        return Err(InputError::invalid(
             path,
             1,
             "expected a subtask 2 header (text_w_pairs) or a subtask 1 header (index,text,label)",
@@ -331,18 +331,18 @@ struct JsonClaim {
 }
 
 /// Parse hearsay's JSON Lines gold format (see the module documentation).
-pub fn parse_jsonl(path: &str, text: &str) -> Result<Vec<GoldDoc>, GoldError> {
+pub fn parse_jsonl(path: &str, text: &str) -> Result<Vec<GoldDoc>, InputError> {
     let mut docs = Vec::new();
     for (n, line) in text.lines().enumerate() {
         let l = line.trim();
         if l.is_empty() || l.starts_with('#') {
             continue;
         }
-        let bad = |m: String| GoldError::invalid(path, n + 1, m);
+        let bad = |m: String| InputError::invalid(path, n + 1, m);
         let item: JsonItem = serde_json::from_str(l).map_err(|e| bad(e.to_string()))?;
         let mut claims = Vec::new();
         for c in item.claims {
-            let find = |what: &str, at: Option<usize>| -> Result<GoldSpan, GoldError> {
+            let find = |what: &str, at: Option<usize>| -> Result<GoldSpan, InputError> {
                 let from = at.unwrap_or(0);
                 let start = item
                     .sentence

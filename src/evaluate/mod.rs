@@ -13,8 +13,8 @@ pub mod gold;
 pub mod reference;
 pub mod spans;
 
-use crate::extract::claims::{tokenize, Extractor};
 use crate::claim::{Claim, Kind};
+use crate::extract::claims::{tokenize, Extractor};
 use crate::extract::pipeline;
 use serde::Serialize;
 use std::collections::BTreeMap;

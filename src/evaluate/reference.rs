@@ -19,9 +19,9 @@
 //! The curve repeats this at every distinct positive weight of a scored edge.
 
 use crate::error::InputError;
+use crate::graph::weight::WeightSpec;
 use crate::graph::ClaimGraph;
 use crate::variables::{Aliases, Normalizer};
-use crate::graph::weight::WeightSpec;
 use serde::Serialize;
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::Path;

@@ -11,11 +11,11 @@
 //! Sentence-level data (gold with `causal` labels and no spans) is scored per text instead: a
 //! text is predicted causal when at least one causal claim is found in it.
 
-use crate::extract::claims::{tokenize, Extractor};
-use crate::corpus::Document;
-use crate::evaluate::{GoldSpan, Judged, Reliability};
-use crate::evaluate::gold::{GoldClaim, GoldDoc};
 use crate::claim::{Claim, Kind};
+use crate::corpus::Document;
+use crate::evaluate::gold::{GoldClaim, GoldDoc};
+use crate::evaluate::{GoldSpan, Judged, Reliability};
+use crate::extract::claims::{tokenize, Extractor};
 use crate::extract::pipeline;
 use serde::Serialize;
 use std::collections::BTreeMap;

@@ -16,8 +16,8 @@
 //! The model in force is the built-in one unless [`install`] was called first (the command line
 //! does so when `--patterns DIR` holds a `confidence.toml`).
 
-use crate::extract::claims::{tokenize, Extractor, Token};
 use crate::claim::Claim;
+use crate::extract::claims::{tokenize, Extractor, Token};
 use crate::extract::tagger::{Tag, Tagger};
 use rustc_hash::FxHashMap;
 use serde::{Deserialize, Serialize};
@@ -27,7 +27,6 @@ use std::sync::OnceLock;
 
 /// The header every model file carries.
 pub const FORMAT: &str = "hearsay-confidence 1";
-
 
 /// A trained model: a bias and one weight per feature name. The names are what the file shows;
 /// at load time each is hashed ([`feature_hash`]) so that scoring a claim looks weights up
@@ -123,8 +122,11 @@ impl Model {
     pub fn builtin() -> &'static Model {
         static M: OnceLock<Model> = OnceLock::new();
         M.get_or_init(|| {
-            Model::parse("patterns/confidence.toml", crate::patterns::BUILTIN_CONFIDENCE)
-                .expect("the built-in confidence model is valid (checked by a unit test)")
+            Model::parse(
+                "patterns/confidence.toml",
+                crate::patterns::BUILTIN_CONFIDENCE,
+            )
+            .expect("the built-in confidence model is valid (checked by a unit test)")
         })
     }
 

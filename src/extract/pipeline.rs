@@ -6,9 +6,9 @@
 //! hits are split into sentences and matched. A document without a cue word costs one
 //! Aho-Corasick pass. Sentence indexing (for `scan`) splits the whole document separately.
 
-use crate::extract::claims::{Attempt, Extractor, Origin, SentenceRef};
-use crate::corpus::Document;
 use crate::claim::Claim;
+use crate::corpus::Document;
+use crate::extract::claims::{Attempt, Extractor, Origin, SentenceRef};
 use crate::sentences::{self, SentenceSpan};
 
 /// The largest block around a hit that is split into sentences, on each side of it. Paragraphs
@@ -110,7 +110,12 @@ fn run_capped(
             };
             let before = out.len();
             ex.extract(sent, prev, &origin, &candidates, out, trace.as_deref_mut());
-            crate::extract::confidence::score_sentence(ex, &mut out[before..], sent.text, sent.offset);
+            crate::extract::confidence::score_sentence(
+                ex,
+                &mut out[before..],
+                sent.text,
+                sent.offset,
+            );
             k = k2;
         }
         h = h_end.max(h + 1);

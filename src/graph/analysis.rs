@@ -6,9 +6,9 @@
 //! (`ClaimGraph::rows`) as evidence; fetching the sentences from a store is the caller's job.
 //! Every result counts statements in text; none is evidence that a causation is real.
 
-use crate::graph::{ClaimGraph, Relation};
 use crate::claim::{Modality, Polarity};
 use crate::graph::weight::WeightSpec;
+use crate::graph::{ClaimGraph, Relation};
 use petgraph::graph::NodeIndex;
 use petgraph::visit::EdgeRef;
 use serde::Serialize;
@@ -481,32 +481,9 @@ pub fn matrix(g: &ClaimGraph, spec: &WeightSpec, keys: &[String], cell: Cell) ->
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::graph::{ClaimRef, ClaimRow, Filter};
-    use crate::claim::Kind;
+    use crate::graph::Filter;
+    use crate::store::test_row as row;
     use crate::variables::Aliases;
-
-    // Invented rows (behaviour guards).
-    fn row(c: &str, e: &str, p: Polarity, m: Modality, doc: &str) -> ClaimRow {
-        ClaimRow {
-            cause: c.into(),
-            effect: e.into(),
-            cause_text: c.into(),
-            effect_text: e.into(),
-            kind: Kind::Causal,
-            polarity: p,
-            modality: m,
-            cue: "x".into(),
-            doc: doc.into(),
-            confidence: 1.0,
-            line: 1,
-            sentence: 0,
-            at: ClaimRef {
-                segment: 0,
-                offset: 0,
-                len: 0,
-            },
-        }
-    }
 
     fn graph() -> ClaimGraph {
         use Modality::*;

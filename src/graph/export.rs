@@ -6,9 +6,9 @@
 //! escapes every attribute value and text node; DOT with petgraph's `dot` module, which escapes
 //! labels, plus [`dot_quote`] for the other string attributes; CSV with the csv crate.
 
-use crate::graph::{ClaimGraph, Relation};
 use crate::claim::{Modality, Polarity};
 use crate::graph::weight::WeightSpec;
+use crate::graph::{ClaimGraph, Relation};
 use petgraph::graph::NodeIndex;
 use quick_xml::events::{BytesDecl, BytesText, Event};
 use quick_xml::Writer;

@@ -10,69 +10,13 @@ pub mod analysis;
 pub mod export;
 pub mod weight;
 
-use crate::claim::{Claim, Kind, Modality, Polarity};
+use crate::claim::{Kind, Modality, Polarity};
+use crate::store::ClaimRow;
 use crate::variables::Aliases;
 use petgraph::graph::{DiGraph, NodeIndex};
 use petgraph::visit::EdgeRef;
-use serde::{Deserialize, Serialize};
+use serde::Serialize;
 use std::collections::{BTreeMap, BTreeSet, HashMap};
-
-/// Where a full claim record lives in the store.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-pub struct ClaimRef {
-    pub segment: u32,
-    pub offset: u64,
-    pub len: u32,
-}
-
-/// The compact form of a claim that the graph is built from.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct ClaimRow {
-    pub cause: String,
-    pub effect: String,
-    pub cause_text: String,
-    pub effect_text: String,
-    pub kind: Kind,
-    pub polarity: Polarity,
-    pub modality: Modality,
-    pub cue: String,
-    /// The document: its path, plus `#record` for many-documents-per-file formats.
-    pub doc: String,
-    pub line: u32,
-    /// Byte offset of the sentence in its document.
-    pub sentence: u64,
-    pub at: ClaimRef,
-    /// The claim's confidence (see `crate::extract::confidence`).
-    pub confidence: f32,
-}
-
-impl ClaimRow {
-    pub fn from_claim(c: &Claim, at: ClaimRef) -> ClaimRow {
-        ClaimRow {
-            cause: c.cause.key.clone(),
-            effect: c.effect.key.clone(),
-            cause_text: c.cause.text.clone(),
-            effect_text: c.effect.text.clone(),
-            kind: c.kind,
-            polarity: c.polarity,
-            modality: c.modality,
-            cue: c.cue.clone(),
-            doc: doc_id(&c.source.path, c.source.record.as_deref()),
-            line: c.source.line as u32,
-            sentence: c.source.start as u64,
-            at,
-            confidence: c.confidence as f32,
-        }
-    }
-}
-
-/// The document identity used for "distinct documents".
-pub fn doc_id(path: &str, record: Option<&str>) -> String {
-    match record {
-        Some(r) => format!("{path}#{r}"),
-        None => path.to_string(),
-    }
-}
 
 /// Which claims to aggregate.
 #[derive(Debug, Clone, Default)]
@@ -345,23 +289,10 @@ pub(crate) mod tests {
 
     pub(crate) fn row(c: &str, e: &str, kind: Kind, m: Modality, doc: &str) -> ClaimRow {
         ClaimRow {
-            cause: c.into(),
-            effect: e.into(),
-            cause_text: c.into(),
-            effect_text: e.into(),
             kind,
-            polarity: Polarity::Increase,
-            modality: m,
             cue: "x".into(),
-            doc: doc.into(),
-            line: 1,
-            sentence: 0,
-            at: ClaimRef {
-                segment: 0,
-                offset: 0,
-                len: 0,
-            },
             confidence: 0.5,
+            ..crate::store::test_row(c, e, Polarity::Increase, m, doc)
         }
     }
 

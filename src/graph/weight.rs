@@ -16,8 +16,9 @@
 //! one denial adds 0. Every value is configurable ([`WeightSpec`]); [`WeightSpec::describe`] gives
 //! the rule in words, and every export and analysis prints it.
 
-use crate::graph::{ClaimGraph, ClaimRow, Relation};
 use crate::claim::{Modality, Polarity};
+use crate::graph::{ClaimGraph, Relation};
+use crate::store::ClaimRow;
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -126,31 +127,18 @@ impl WeightSpec {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::graph::{ClaimRef, Filter};
-    use crate::claim::Kind;
-    use crate::variables::Aliases;
+    use crate::graph::Filter;
+    use crate::store::test_row;
 
     fn row(m: Modality, p: Polarity, doc: &str, sentence: u64) -> ClaimRow {
         ClaimRow {
-            cause: "a".into(),
-            effect: "b".into(),
-            cause_text: "a".into(),
-            effect_text: "b".into(),
-            kind: Kind::Causal,
-            polarity: p,
-            modality: m,
-            cue: "x".into(),
-            doc: doc.into(),
-            confidence: 1.0,
-            line: 1,
             sentence,
-            at: ClaimRef {
-                segment: 0,
-                offset: 0,
-                len: 0,
-            },
+            cue: "x".into(),
+            ..test_row("a", "b", p, m, doc)
         }
     }
+
+    use crate::variables::Aliases;
 
     #[test]
     fn documents_hedges_and_denials() {

@@ -8,8 +8,8 @@
 //! The shipped files are compiled into the binary, so `hearsay` works from any directory;
 //! `--patterns DIR` loads a user's folder with the same layout instead.
 
-use crate::error::PatternError;
 use crate::claim::{Kind, Modality, Polarity};
+use crate::error::InputError;
 use serde::Deserialize;
 use std::collections::{BTreeMap, HashMap, HashSet};
 use std::path::{Path, PathBuf};
@@ -191,7 +191,7 @@ impl Fingerprint {
 
 impl PatternSet {
     /// The patterns shipped with hearsay.
-    pub fn builtin() -> Result<PatternSet, PatternError> {
+    pub fn builtin() -> Result<PatternSet, InputError> {
         let mut fp = Fingerprint::new();
         let irregular = parse_irregular(
             Path::new("patterns/irregular-verbs.tsv"),
@@ -223,9 +223,9 @@ impl PatternSet {
 
     /// A user's pattern folder with the same layout as `patterns/`. `lexicon.toml` and
     /// `irregular-verbs.tsv` fall back to the built-in ones when the folder has none.
-    pub fn load_dir(dir: &Path) -> Result<PatternSet, PatternError> {
+    pub fn load_dir(dir: &Path) -> Result<PatternSet, InputError> {
         let read = |p: PathBuf| {
-            std::fs::read_to_string(&p).map_err(|source| PatternError::Io { path: p, source })
+            std::fs::read_to_string(&p).map_err(|source| InputError::Io { path: p, source })
         };
         let mut fp = Fingerprint::new();
         let irr_path = dir.join("irregular-verbs.tsv");
@@ -239,7 +239,7 @@ impl PatternSet {
         };
         let cue_dir = dir.join("cues");
         let mut files: Vec<PathBuf> = std::fs::read_dir(&cue_dir)
-            .map_err(|source| PatternError::Io {
+            .map_err(|source| InputError::Io {
                 path: cue_dir.clone(),
                 source,
             })?
@@ -248,7 +248,7 @@ impl PatternSet {
             .collect();
         files.sort();
         if files.is_empty() {
-            return Err(PatternError::Invalid {
+            return Err(InputError::Invalid {
                 path: cue_dir,
                 line: 0,
                 message: "no .toml cue files".into(),
@@ -298,7 +298,7 @@ impl PatternSet {
     }
 
     /// The built-in set, or the folder when one is given.
-    pub fn load(dir: Option<&Path>) -> Result<PatternSet, PatternError> {
+    pub fn load(dir: Option<&Path>) -> Result<PatternSet, InputError> {
         match dir {
             Some(d) => Self::load_dir(d),
             None => Self::builtin(),
@@ -306,8 +306,8 @@ impl PatternSet {
     }
 }
 
-fn invalid(path: &Path, line: usize, message: impl Into<String>) -> PatternError {
-    PatternError::Invalid {
+fn invalid(path: &Path, line: usize, message: impl Into<String>) -> InputError {
+    InputError::Invalid {
         path: path.to_path_buf(),
         line,
         message: message.into(),
@@ -367,7 +367,7 @@ pub fn parse_cue_file(
     path: &Path,
     text: &str,
     irregular: &Irregular,
-) -> Result<Vec<CueSpec>, PatternError> {
+) -> Result<Vec<CueSpec>, InputError> {
     let raw: RawFile = toml::from_str(text).map_err(|e| {
         let line = e.span().map(|s| line_of(text, s.start)).unwrap_or(0);
         invalid(path, line, e.message().to_string())
@@ -454,7 +454,7 @@ pub fn parse_cue_file(
     Ok(out)
 }
 
-fn check_unique(cues: &[CueSpec]) -> Result<(), PatternError> {
+fn check_unique(cues: &[CueSpec]) -> Result<(), InputError> {
     let mut seen: HashMap<&str, &CueSpec> = HashMap::new();
     for c in cues {
         if let Some(first) = seen.insert(&c.id, c) {
@@ -572,7 +572,7 @@ fn word_forms(word: &str, irregular: &Irregular) -> Result<Vec<String>, String> 
 pub type Irregular = HashMap<String, (Vec<String>, Vec<String>)>;
 
 /// Parse `irregular-verbs.tsv`: `base<TAB>past<TAB>participle`, with `/` between variants.
-pub fn parse_irregular(path: &Path, text: &str) -> Result<Irregular, PatternError> {
+pub fn parse_irregular(path: &Path, text: &str) -> Result<Irregular, InputError> {
     let mut map = Irregular::new();
     for (i, line) in text.lines().enumerate() {
         let line = line.trim();
@@ -731,7 +731,7 @@ struct RawKeys {
 }
 
 /// Parse `lexicon.toml`.
-pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, PatternError> {
+pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, InputError> {
     let raw: RawLexicon = toml::from_str(text).map_err(|e| {
         let line = e.span().map(|s| line_of(text, s.start)).unwrap_or(0);
         invalid(path, line, e.message().to_string())
@@ -814,7 +814,7 @@ fn plural(n: &str) -> String {
 }
 
 /// Parse an alias file: `surface form<TAB>variable name` per line, `#` comments.
-pub fn parse_aliases(path: &Path, text: &str) -> Result<Vec<(String, String)>, PatternError> {
+pub fn parse_aliases(path: &Path, text: &str) -> Result<Vec<(String, String)>, InputError> {
     let mut out = Vec::new();
     for (i, line) in text.lines().enumerate() {
         let t = line.trim();
@@ -839,8 +839,8 @@ pub fn parse_aliases(path: &Path, text: &str) -> Result<Vec<(String, String)>, P
 }
 
 /// Load an alias file from disk.
-pub fn load_aliases(path: &Path) -> Result<Vec<(String, String)>, PatternError> {
-    let text = std::fs::read_to_string(path).map_err(|source| PatternError::Io {
+pub fn load_aliases(path: &Path) -> Result<Vec<(String, String)>, InputError> {
+    let text = std::fs::read_to_string(path).map_err(|source| InputError::Io {
         path: path.to_path_buf(),
         source,
     })?;

@@ -4,8 +4,8 @@
 
 pub mod comention;
 
-use crate::graph::{ClaimGraph, Relation};
 use crate::claim::{Kind, Modality, Polarity};
+use crate::graph::{ClaimGraph, Relation};
 use crate::variables::{Aliases, Normalizer};
 use petgraph::graph::NodeIndex;
 use serde::Serialize;
@@ -329,9 +329,9 @@ pub fn evidence_text(g: &ClaimGraph, store: &crate::store::Store, r: usize) -> (
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::claim::{Kind, Modality};
     use crate::graph::tests::row;
     use crate::graph::Filter;
-    use crate::claim::{Kind, Modality};
     use crate::variables::Aliases;
 
     #[test]

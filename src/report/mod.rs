@@ -16,11 +16,11 @@ pub mod layout;
 mod page;
 mod plots;
 
+use crate::claim::{Kind, Modality, Polarity};
 use crate::corpus::Skipped;
 use crate::error::StoreError;
 use crate::graph::export::{self, Selection};
 use crate::graph::{ClaimGraph, Relation};
-use crate::claim::{Kind, Modality, Polarity};
 use crate::query::{self, PairReport, TopRelation, VarMatch};
 use crate::store::{key_terms, Store};
 use petgraph::graph::NodeIndex;
@@ -226,7 +226,12 @@ pub fn collect(g: &ClaimGraph, src: Sources<'_>, opts: &Options) -> Result<Repor
     co_mentions.truncate(opts.rows);
     let pair = match src.pair {
         Some((x, y)) => {
-            let n = crate::query::comention::pair_co_mentions(store, g, (&x.0.key, x.1), (&y.0.key, y.1))?;
+            let n = crate::query::comention::pair_co_mentions(
+                store,
+                g,
+                (&x.0.key, x.1),
+                (&y.0.key, y.1),
+            )?;
             Some(query::pair_report(g, x, y, n, opts.evidence, |r| {
                 query::evidence_text(g, store, r)
             }))
@@ -483,30 +488,9 @@ pub fn co_mention_pairs(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::graph::{ClaimRef, ClaimRow, Filter};
+    use crate::graph::Filter;
+    use crate::store::test_row as row;
     use crate::variables::Aliases;
-
-    fn row(c: &str, e: &str, p: Polarity, m: Modality, doc: &str) -> ClaimRow {
-        ClaimRow {
-            cause: c.into(),
-            effect: e.into(),
-            cause_text: c.into(),
-            effect_text: e.into(),
-            kind: Kind::Causal,
-            polarity: p,
-            modality: m,
-            cue: "raise".into(),
-            doc: doc.into(),
-            line: 1,
-            confidence: 1.0,
-            sentence: 0,
-            at: ClaimRef {
-                segment: 0,
-                offset: 0,
-                len: 0,
-            },
-        }
-    }
 
     #[test]
     fn sign_and_hedging_of_an_edge() {

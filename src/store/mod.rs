@@ -18,12 +18,17 @@
 //! and with it the previous complete store, in force. The search index commits before the manifest;
 //! if a scan dies between the two, the next scan re-indexes the files the manifest does not know.
 
+mod rows;
+
+#[cfg(test)]
+pub(crate) use rows::test_row;
+pub use rows::{doc_id, ClaimRef, ClaimRow};
+
+use crate::claim::Claim;
 use crate::corpus::Skipped;
 use crate::error::StoreError;
-use crate::graph::{ClaimRef, ClaimRow};
-use crate::claim::Claim;
-use crate::variables::StemCache;
 use crate::patterns::{Lexicon, PatternSet};
+use crate::variables::StemCache;
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fs::{self, File};
@@ -1168,7 +1173,7 @@ impl Merge {
         match rec {
             ShardLine::Claim(c) => {
                 let p = self.paths.entry(c.source.path.clone()).or_default();
-                let id = crate::graph::doc_id(&c.source.path, c.source.record.as_deref());
+                let id = doc_id(&c.source.path, c.source.record.as_deref());
                 if p.last_doc != id || p.claim_docs == 0 {
                     p.claim_docs += 1;
                     p.last_doc = id;
@@ -1387,7 +1392,6 @@ mod tests {
 
     fn row(i: u64, cause: &str) -> ClaimRow {
         ClaimRow {
-            cause: cause.into(),
             effect: "effect ünïcode".into(),
             cause_text: format!("The {cause}"),
             effect_text: "effects".into(),
@@ -1396,10 +1400,7 @@ mod tests {
             } else {
                 Kind::Association
             },
-            polarity: Polarity::Decrease,
-            modality: Modality::Hedged,
             cue: "leads to".into(),
-            doc: format!("d{i}.txt#r"),
             line: i as u32 + 1,
             sentence: i * 1000,
             at: ClaimRef {
@@ -1408,6 +1409,13 @@ mod tests {
                 len: 70,
             },
             confidence: 0.25 + i as f32,
+            ..test_row(
+                cause,
+                "",
+                Polarity::Decrease,
+                Modality::Hedged,
+                &format!("d{i}.txt#r"),
+            )
         }
     }
 

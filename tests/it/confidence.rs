@@ -2,9 +2,9 @@
 //! the `--min-confidence` filter and stores written with the older claim schema.
 
 use crate::common::*;
+use hearsay::evaluate::{self as eval, Reliability};
 use hearsay::extract::claims::Extractor;
 use hearsay::extract::confidence;
-use hearsay::evaluate::{self as eval, Reliability};
 use hearsay::patterns::PatternSet;
 
 fn scanned_demo() -> tempfile::TempDir {
@@ -41,7 +41,8 @@ fn confidence_is_calibrated_on_held_out_sentences() {
     let items = eval::parse_semeval(&std::fs::read_to_string(sem).unwrap()).unwrap();
     let mut held = held_out("semeval2010", eval::score_pairs_judged(&ex, &items).2);
     let p = cnc.display().to_string();
-    let docs = hearsay::evaluate::gold::parse_cnc(&p, &std::fs::read_to_string(&cnc).unwrap()).unwrap();
+    let docs =
+        hearsay::evaluate::gold::parse_cnc(&p, &std::fs::read_to_string(&cnc).unwrap()).unwrap();
     held.extend(held_out(
         "cnc",
         hearsay::evaluate::spans::score_spans_judged(&ex, &docs).2,

@@ -9,6 +9,7 @@ mod external;
 mod graph;
 mod graph_analyses;
 mod hostile;
+mod layering;
 mod merge;
 mod pair_fast;
 mod quality;

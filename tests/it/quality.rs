@@ -154,7 +154,8 @@ fn tagger_accuracy_on_ewt_test() {
         return;
     };
     let gold = hearsay::extract::tagger::read_conllu(&std::fs::read_to_string(test).unwrap());
-    let acc = hearsay::extract::tagger::accuracy(hearsay::extract::tagger::Tagger::load_builtin(), &gold);
+    let acc =
+        hearsay::extract::tagger::accuracy(hearsay::extract::tagger::Tagger::load_builtin(), &gold);
     let tokens: usize = gold.iter().map(Vec::len).sum();
     eprintln!("tagger on EWT test: accuracy {acc:.4} over {tokens} tokens");
     assert!(tokens > 20_000);

@@ -4,12 +4,12 @@
 //! Each reader is called directly, outside the `catch_unwind` guard of `corpus`, so a panic
 //! fails the property instead of being contained.
 
-use hearsay::extract::claims::Extractor;
-use hearsay::corpus::{Document, ReadOptions, Reader};
 use hearsay::corpus::readers::{
     html::HtmlReader, jsonl::JsonlReader, markdown::MarkdownReader, pdf::PdfReader,
     text::TextReader,
 };
+use hearsay::corpus::{Document, ReadOptions, Reader};
+use hearsay::extract::claims::Extractor;
 use proptest::prelude::*;
 use std::sync::OnceLock;
 

@@ -8,11 +8,11 @@
 //! opened by "if" makes a claim conditional; a final "?" makes it a question. The stage is pure: it
 //! sees one sentence (and the one before it) and does no I/O.
 
-use crate::extract::cues::{CueMatch, CueSet, SlotPlace};
 use crate::claim::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
-use crate::variables::Normalizer;
-use crate::patterns::{Lexicon, PatternSet, PatternToken, Role};
+use crate::extract::cues::{CueMatch, CueSet, SlotPlace};
 use crate::extract::tagger::{Tag, Tagger};
+use crate::patterns::{Lexicon, PatternSet, PatternToken, Role};
+use crate::variables::Normalizer;
 use compact_str::CompactString;
 use regex::Regex;
 use rustc_hash::FxHashSet as HashSet;
