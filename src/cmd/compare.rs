@@ -1,17 +1,18 @@
 //! `hearsay compare ANSWERS`: a model's answers to the question set beside the corpus's support.
 
-use super::{escape, write_rows, Format, Global, Loaded};
+use super::args::pair_list;
+use super::{escape, write_rows, Format, Global};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
 use hearsay::compare::questions as q;
 use hearsay::compare::{
-    self as cmp, AnswerContext, CalibrationBin, Corpus, PairView, Profile, Summary, WordingRow,
+    self as cmp, AnswerSet, AnswerSource, CalibrationBin, Corpus, PairView, Profile, Summary,
+    WordingRow,
 };
 use hearsay::graph::Filter;
-use hearsay::query;
-use hearsay::query::comention::MentionIndex;
+use hearsay::query::Loaded;
 use std::io::Write;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 #[derive(Args, Debug)]
@@ -65,64 +66,23 @@ pub enum View {
     Pairs,
 }
 
-/// The answers file and the question set it refers to (shared with `report --compare`).
-pub struct AnswerSource<'a> {
-    pub answers: &'a Path,
-    pub vars: Option<&'a Path>,
-    pub pairs: Option<&'a Path>,
-    pub questions: Option<&'a Path>,
-}
-
-/// Read the answers and index the mentions of every variable they ask about.
-pub fn load_answers(
-    loaded: &mut Loaded,
-    src: &AnswerSource<'_>,
-) -> Result<(Vec<cmp::Answer>, Vec<cmp::Asked>, MentionIndex)> {
-    let wordings = q::load_wordings(src.questions).context("cannot load the wordings")?;
-    let questions = if src.vars.is_some() || src.pairs.is_some() {
-        let pairs = super::questions::read_pairs(&loaded.normalizer, src.vars, src.pairs)?;
-        q::questions(&pairs, &wordings, true)
-    } else {
-        Vec::new()
-    };
-    let text = std::fs::read_to_string(src.answers)
-        .with_context(|| format!("cannot read {}", src.answers.display()))?;
-    let cx = AnswerContext {
-        normalizer: &loaded.normalizer,
-        wordings: &wordings,
-        questions: &questions,
-    };
-    let answers = cmp::read_answers(src.answers, &text, &cx)?;
-    let asked = cmp::asked(&answers);
-    let keys: Vec<String> = asked
-        .iter()
-        .flat_map(|q| [&q.x_key, &q.y_key])
-        .map(|k| loaded.aliases.resolve(k).to_string())
-        .collect();
-    let mentions = MentionIndex::build(&mut loaded.store, keys.iter().map(String::as_str))
-        .context("cannot search the sentence index")?;
-    Ok((answers, asked, mentions))
-}
-
 pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
     let mut loaded = g.graph(&Filter::default())?;
-    let (answers, asked, mentions) = load_answers(
-        &mut loaded,
+    let wordings = q::load_wordings(a.questions.as_deref()).context("cannot load the wordings")?;
+    let set = AnswerSet::read(
+        &loaded.normalizer,
         &AnswerSource {
             answers: &a.answers,
-            vars: a.vars.as_deref(),
-            pairs: a.pairs.as_deref(),
-            questions: a.questions.as_deref(),
+            list: pair_list(a.vars.as_deref(), a.pairs.as_deref()),
+            wordings: &wordings,
         },
     )?;
-    let corpus = Corpus {
-        graph: &loaded.graph,
-        aliases: &loaded.aliases,
-        mentions: &mentions,
-        sentences: loaded.store.manifest.totals().1,
-    };
+    let mentions = set
+        .mentions(&mut loaded)
+        .context("cannot search the sentence index")?;
+    let corpus = Corpus::of(&loaded, &mentions);
     let threshold = usize::try_from(a.threshold).unwrap_or(usize::MAX);
-    let profiles = cmp::profiles(&corpus, &asked, threshold);
+    let profiles = cmp::profiles(&corpus, &set.asked, threshold);
     let mut out = std::io::stdout().lock();
     let format = g.format();
     let full = format == Format::Csv;
@@ -130,39 +90,7 @@ pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
         let Some(p) = profiles.iter().find(|p| p.question.id == *id) else {
             anyhow::bail!("{}: no answer to question {id}", a.answers.display());
         };
-        let look =
-            |name: &str| query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, name);
-        let rep = super::pair::report_with_evidence(
-            &loaded,
-            look(&p.question.x),
-            look(&p.question.y),
-            p.co_mentions,
-            a.evidence,
-        );
-        match format {
-            Format::Json => {
-                serde_json::to_writer(&mut out, &serde_json::json!({"profile": p, "pair": rep}))?;
-                out.write_all(b"\n")?;
-            }
-            Format::Csv => write_rows(&mut out, format, &[p], |p| profile_row(full, p), PROFILE)?,
-            Format::Table => {
-                writeln!(
-                    out,
-                    "question {}: {}",
-                    p.question.id,
-                    escape(&question_text(p))
-                )?;
-                writeln!(
-                    out,
-                    "support {} ({}), threshold {threshold}: corpus answer {}\n",
-                    p.support,
-                    support_source(p),
-                    p.corpus_answer
-                )?;
-                super::pair::print_table(&mut out, &rep)?;
-            }
-        }
-        return Ok(ExitCode::SUCCESS);
+        return explain(&mut out, format, &loaded, p, threshold, a.evidence);
     }
     match a.view {
         View::Questions => write_rows(
@@ -173,11 +101,11 @@ pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
             PROFILE,
         )?,
         View::Pairs => {
-            let views = cmp::pair_views(&corpus, &asked);
+            let views = cmp::pair_views(&corpus, &set.asked);
             write_rows(&mut out, format, &views, |r| pair_row(full, r), PAIRS)?;
         }
         view => {
-            let c = cmp::summarise(&answers, &profiles);
+            let c = cmp::summarise(&set.answers, &profiles);
             match view {
                 View::Calibration => write_rows(
                     &mut out,
@@ -202,6 +130,47 @@ pub fn run(g: &Global, a: &CompareArgs) -> Result<ExitCode> {
             out,
             "\n(agreement with statements found in text, not with evidence that the causation is real)"
         )?;
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+/// `--explain ID`: one question's support profile beside the pair report of its variables.
+fn explain(
+    out: &mut impl Write,
+    format: Format,
+    loaded: &Loaded,
+    p: &Profile,
+    threshold: usize,
+    evidence: usize,
+) -> Result<ExitCode> {
+    let rep = loaded.pair_report(
+        loaded.lookup(&p.question.x),
+        loaded.lookup(&p.question.y),
+        p.co_mentions,
+        evidence,
+    );
+    match format {
+        Format::Json => {
+            serde_json::to_writer(&mut *out, &serde_json::json!({"profile": p, "pair": rep}))?;
+            out.write_all(b"\n")?;
+        }
+        Format::Csv => write_rows(out, format, &[p], |p| profile_row(true, p), PROFILE)?,
+        Format::Table => {
+            writeln!(
+                out,
+                "question {}: {}",
+                p.question.id,
+                escape(&question_text(p))
+            )?;
+            writeln!(
+                out,
+                "support {} ({}), threshold {threshold}: corpus answer {}\n",
+                p.support,
+                support_source(p),
+                p.corpus_answer
+            )?;
+            super::pair::print_table(out, &rep)?;
+        }
     }
     Ok(ExitCode::SUCCESS)
 }

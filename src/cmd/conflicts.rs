@@ -1,10 +1,11 @@
 //! `hearsay conflicts`: pairs the corpus states inconsistently, with the evidence on each side.
 
-use super::graph::{evidence, print_evidence, EvidenceOut};
-use super::{escape, ClaimFilter, Format, Global};
+use super::output::print_evidence;
+use super::{escape, write_rows, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::graph::analysis::{self, Conflict};
+use hearsay::graph::{self, Conflict};
+use hearsay::query::EvidenceLine;
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -38,12 +39,12 @@ pub struct ConflictsArgs {
 struct ConflictOut<'a> {
     #[serde(flatten)]
     conflict: &'a Conflict,
-    evidence: [Vec<EvidenceOut>; 2],
+    evidence: [Vec<EvidenceLine>; 2],
 }
 
 pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
-    let loaded = super::graph::load(g, &a.filter, a.dedupe)?;
-    let mut cs = analysis::conflicts(&loaded.graph, a.min_claims);
+    let loaded = g.load(&a.filter.to_filter(), a.dedupe)?;
+    let mut cs = graph::conflicts(&loaded.graph, a.min_claims);
     if a.limit > 0 {
         cs.truncate(a.limit);
     }
@@ -52,19 +53,15 @@ pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
         .map(|c| ConflictOut {
             conflict: c,
             evidence: [
-                evidence(&loaded, &c.sides[0].rows, a.evidence),
-                evidence(&loaded, &c.sides[1].rows, a.evidence),
+                loaded.evidence(&c.sides[0].rows, a.evidence),
+                loaded.evidence(&c.sides[1].rows, a.evidence),
             ],
         })
         .collect();
     let mut out = std::io::stdout().lock();
     match g.format() {
-        Format::Json => {
-            for c in &outs {
-                serde_json::to_writer(&mut out, c)?;
-                out.write_all(b"\n")?;
-            }
-        }
+        // JSON Lines has no columns: the cells and headers are for CSV and tables only.
+        Format::Json => write_rows(&mut out, Format::Json, &outs, |_| Vec::new(), &[])?,
         Format::Csv => {
             let mut w = csv::Writer::from_writer(&mut out);
             w.write_record([

@@ -1,10 +1,12 @@
 //! `hearsay cycles`: directed cycles among well-stated edges.
 
-use super::graph::{hops_out, print_evidence, HopOut, WeightArgs};
-use super::{escape, ClaimFilter, Format, Global};
+use super::args::WeightArgs;
+use super::output::print_evidence;
+use super::{escape, write_rows, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::graph::analysis;
+use hearsay::graph::{self, Sign};
+use hearsay::query::HopEvidence;
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -41,30 +43,26 @@ pub struct CyclesArgs {
 #[derive(Serialize)]
 struct CycleOut<'a> {
     support: f64,
-    sign: analysis::Sign,
-    hops: Vec<HopOut<'a>>,
+    sign: Sign,
+    hops: Vec<HopEvidence<'a>>,
 }
 
 pub fn run(g: &Global, a: &CyclesArgs) -> Result<ExitCode> {
     let loaded = a.weight.load(g, &a.filter)?;
     let spec = a.weight.spec();
-    let cycles = analysis::cycles(&loaded.graph, &spec, a.min_weight, a.max_len, a.limit);
+    let cycles = graph::cycles(&loaded.graph, &spec, a.min_weight, a.max_len, a.limit);
     let outs: Vec<CycleOut> = cycles
         .iter()
         .map(|c| CycleOut {
             support: c.support,
             sign: c.sign,
-            hops: hops_out(&loaded, &c.hops, a.evidence),
+            hops: loaded.hops(&c.hops, a.evidence),
         })
         .collect();
     let mut out = std::io::stdout().lock();
     match g.format() {
-        Format::Json => {
-            for c in &outs {
-                serde_json::to_writer(&mut out, c)?;
-                out.write_all(b"\n")?;
-            }
-        }
+        // JSON Lines has no columns: the cells and headers are for CSV and tables only.
+        Format::Json => write_rows(&mut out, Format::Json, &outs, |_| Vec::new(), &[])?,
         Format::Csv => {
             let mut w = csv::Writer::from_writer(&mut out);
             w.write_record(["cycle", "support", "sign", "length", "variables"])?;

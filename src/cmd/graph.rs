@@ -1,11 +1,11 @@
-//! `hearsay graph`: export the claim graph for network tools; the weight and repetition options
-//! the graph analyses share.
+//! `hearsay graph`: export the claim graph for network tools.
 
-use super::{ClaimFilter, FormatArg, Global, Loaded, Table};
+use super::args::{read_vars, WeightArgs};
+use super::output::find_var;
+use super::{ClaimFilter, FormatArg, Global, Table};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
 use hearsay::graph::export::{self, Export, Selection};
-use hearsay::graph::weight::{Unit, WeightSpec};
 use std::collections::BTreeSet;
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -18,117 +18,6 @@ pub enum To {
     Dot,
     Json,
     Csv,
-}
-
-#[derive(ValueEnum, Debug, Clone, Copy, Default)]
-pub enum UnitArg {
-    #[default]
-    Documents,
-    Sentences,
-    Mentions,
-}
-
-/// How edges are weighted and whether repeated sentences count once (shared by the analyses).
-#[derive(Args, Debug, Clone)]
-pub struct WeightArgs {
-    /// What one unit of edge weight is.
-    #[arg(long, value_enum, default_value = "documents", value_name = "UNIT")]
-    pub weight_by: UnitArg,
-    /// Value of a hedged claim ("may raise").
-    #[arg(
-        long,
-        default_value_t = 0.5,
-        value_name = "X",
-        allow_negative_numbers = true
-    )]
-    pub hedged_weight: f64,
-    /// Value of a conditional claim ("if ..., X raises Y").
-    #[arg(
-        long,
-        default_value_t = 0.5,
-        value_name = "X",
-        allow_negative_numbers = true
-    )]
-    pub conditional_weight: f64,
-    /// Value of a question ("does X raise Y?").
-    #[arg(
-        long,
-        default_value_t = 0.0,
-        value_name = "X",
-        allow_negative_numbers = true
-    )]
-    pub question_weight: f64,
-    /// Value of a negated or "no effect" claim (negative: it counts against the edge).
-    #[arg(long, default_value_t = -1.0, value_name = "X", allow_negative_numbers = true)]
-    pub negated_weight: f64,
-    /// Count near-duplicate sentences of the same claim once (word-3-shingle Jaccard >= 0.8).
-    #[arg(long)]
-    pub dedupe: bool,
-}
-
-impl WeightArgs {
-    pub fn spec(&self) -> WeightSpec {
-        WeightSpec {
-            unit: match self.weight_by {
-                UnitArg::Documents => Unit::Documents,
-                UnitArg::Sentences => Unit::Sentences,
-                UnitArg::Mentions => Unit::Mentions,
-            },
-            hedged: self.hedged_weight,
-            conditional: self.conditional_weight,
-            question: self.question_weight,
-            negated: self.negated_weight,
-            ..WeightSpec::default()
-        }
-    }
-
-    /// Build the graph with these options.
-    pub fn load(&self, g: &Global, filter: &ClaimFilter) -> Result<Loaded> {
-        load(g, filter, self.dedupe)
-    }
-}
-
-/// Build the graph, saying on stderr what deduplication removed.
-pub fn load(g: &Global, filter: &ClaimFilter, dedupe: bool) -> Result<Loaded> {
-    let loaded = g.graph_deduped(&filter.to_filter(), dedupe)?;
-    if dedupe && !g.quiet {
-        eprintln!(
-            "hearsay: --dedupe removed {} near-duplicate mentions",
-            loaded.duplicates_removed
-        );
-    }
-    Ok(loaded)
-}
-
-/// Read a variable list (one name per line, `#` comments) into keys, through aliases.
-pub fn read_vars(loaded: &Loaded, path: &Path) -> Result<Vec<(String, String)>> {
-    let text =
-        std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
-    let mut out: Vec<(String, String)> = Vec::new();
-    for (i, l) in text.lines().enumerate() {
-        let l = l.trim();
-        if l.is_empty() || l.starts_with('#') {
-            continue;
-        }
-        let key = loaded
-            .aliases
-            .resolve(&loaded.normalizer.key(l))
-            .to_string();
-        if key.is_empty() {
-            anyhow::bail!(
-                "{}:{}: '{l}' has no content words, so it names no variable",
-                path.display(),
-                i + 1
-            );
-        }
-        if !out.iter().any(|(_, k)| *k == key) {
-            out.push((l.to_string(), key));
-        }
-    }
-    if out.is_empty() {
-        anyhow::bail!("{}: no variables in the file", path.display());
-    }
-    Ok(out)
 }
 
 #[derive(Args, Debug)]
@@ -296,85 +185,4 @@ fn print_table(e: &Export) -> Result<()> {
         )?;
     }
     Ok(())
-}
-
-/// One evidence sentence as the analyses print it.
-#[derive(Debug, Clone, serde::Serialize)]
-pub struct EvidenceOut {
-    pub location: String,
-    pub polarity: hearsay::Polarity,
-    pub modality: hearsay::Modality,
-    pub sentence: String,
-}
-
-/// The first `n` of `rows` (graph row indices) with their sentences from the store.
-pub fn evidence(loaded: &Loaded, rows: &[usize], n: usize) -> Vec<EvidenceOut> {
-    rows.iter()
-        .take(n)
-        .map(|&r| {
-            let row = &loaded.graph.rows[r];
-            let (location, sentence) =
-                hearsay::query::evidence_text(&loaded.graph, &loaded.store, r);
-            EvidenceOut {
-                location,
-                polarity: row.polarity,
-                modality: row.modality,
-                sentence,
-            }
-        })
-        .collect()
-}
-
-/// A hop of a chain or cycle with its evidence sentences.
-#[derive(serde::Serialize)]
-pub struct HopOut<'a> {
-    #[serde(flatten)]
-    pub hop: &'a hearsay::graph::analysis::Hop,
-    pub evidence: Vec<EvidenceOut>,
-}
-
-/// The hops of a chain or cycle, each with its first `n` evidence sentences.
-pub fn hops_out<'a>(
-    loaded: &Loaded,
-    hops: &'a [hearsay::graph::analysis::Hop],
-    n: usize,
-) -> Vec<HopOut<'a>> {
-    hops.iter()
-        .map(|h| HopOut {
-            hop: h,
-            evidence: evidence(loaded, &h.rows, n),
-        })
-        .collect()
-}
-
-/// Print one evidence line for a terminal.
-pub fn print_evidence(out: &mut impl Write, indent: &str, ev: &[EvidenceOut]) -> Result<()> {
-    for e in ev {
-        writeln!(
-            out,
-            "{indent}{}  [{} {}]  {}",
-            super::escape(&e.location),
-            e.polarity,
-            e.modality,
-            super::escape(&e.sentence)
-        )?;
-    }
-    Ok(())
-}
-
-/// Find a variable the user named, or fail with suggestions.
-pub fn find_var(loaded: &Loaded, name: &str) -> Result<petgraph::graph::NodeIndex> {
-    let (m, n) = hearsay::query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, name);
-    n.ok_or_else(|| {
-        anyhow::anyhow!(
-            "no variable \"{}\" in the claims (key \"{}\"){}",
-            super::escape(name),
-            m.key,
-            if m.suggestions.is_empty() {
-                String::new()
-            } else {
-                format!("; did you mean: {}", m.suggestions.join(", "))
-            }
-        )
-    })
 }

@@ -1,10 +1,10 @@
 //! `hearsay matrix --vars FILE`: the edge-weight matrix over a variable list, as CSV.
 
-use super::graph::{read_vars, WeightArgs};
+use super::args::{read_vars, WeightArgs};
 use super::{ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::graph::analysis::{self, Cell};
+use hearsay::graph::{self, Cell};
 use std::io::Write;
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -56,7 +56,7 @@ pub fn run(g: &Global, a: &MatrixArgs) -> Result<ExitCode> {
         CellArg::Mentions => Cell::Mentions,
     };
     let spec = a.weight.spec();
-    let m = analysis::matrix(&loaded.graph, &spec, &keys, cell);
+    let m = graph::matrix(&loaded.graph, &spec, &keys, cell);
     let mut buf = Vec::new();
     {
         let mut w = csv::Writer::from_writer(&mut buf);

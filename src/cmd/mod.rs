@@ -1,6 +1,7 @@
 //! Subcommands, one file each, and the setup they share (`Cli`, output formats, loading the
 //! patterns, the store and the graph).
 
+mod args;
 mod claims;
 mod compare;
 mod conflicts;
@@ -11,6 +12,7 @@ mod extract;
 mod graph;
 mod matrix;
 mod merge;
+mod output;
 mod pair;
 mod paths;
 mod patterns;
@@ -26,14 +28,17 @@ mod train_tagger;
 use anyhow::{Context, Result};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use hearsay::extract::claims::Extractor;
-use hearsay::graph::{ClaimGraph, Filter};
+use hearsay::graph::Filter;
 use hearsay::patterns::{self as pat, PatternSet};
+use hearsay::query::{self, Loaded};
 use hearsay::store::Store;
 use hearsay::variables::{Aliases, Normalizer};
-use hearsay::{Kind, Modality, Polarity};
-use std::io::{IsTerminal, Write};
+use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+
+pub use args::ClaimFilter;
+pub use output::{escape, write_rows, Table};
 
 const ABOUT: &str = "Find what a body of text states about cause and effect.
 
@@ -152,48 +157,6 @@ pub enum FormatArg {
     Dot,
 }
 
-/// Filters on claims, shared by the query commands.
-#[derive(Args, Debug, Clone, Default)]
-pub struct ClaimFilter {
-    /// Only claims of this kind.
-    #[arg(long, value_parser = parse_word::<Kind>)]
-    pub kind: Option<Kind>,
-    /// Only claims with this polarity (increase, decrease, unsigned, prevent, none).
-    #[arg(long, value_parser = parse_word::<Polarity>)]
-    pub polarity: Option<Polarity>,
-    /// Only claims with this modality (asserted, hedged, negated, question, conditional).
-    #[arg(long, value_parser = parse_word::<Modality>)]
-    pub modality: Option<Modality>,
-    /// Only claims whose confidence (0 to 1, see docs/confidence.md) is at least this.
-    #[arg(long, value_name = "P", value_parser = parse_confidence)]
-    pub min_confidence: Option<f32>,
-}
-
-impl ClaimFilter {
-    pub fn to_filter(&self) -> Filter {
-        Filter {
-            kind: self.kind,
-            polarity: self.polarity,
-            modality: self.modality,
-            min_confidence: self.min_confidence,
-        }
-    }
-}
-
-/// A confidence threshold: a number from 0 to 1.
-pub fn parse_confidence(s: &str) -> Result<f32, String> {
-    match s.trim().parse::<f32>() {
-        Ok(x) if (0.0..=1.0).contains(&x) => Ok(x),
-        _ => Err(format!(
-            "not a confidence: {s:?} (use a number from 0 to 1)"
-        )),
-    }
-}
-
-fn parse_word<T: std::str::FromStr<Err = String>>(s: &str) -> Result<T, String> {
-    s.parse()
-}
-
 pub fn run(cli: Cli) -> Result<ExitCode> {
     // A reader's library that panics on a hostile file is reported as a warning naming the
     // file; its raw panic message would only add noise.
@@ -293,46 +256,37 @@ impl Global {
         Ok(pairs)
     }
 
-    /// Open the store and build its graph.
-    pub fn graph(&self, filter: &Filter) -> Result<Loaded> {
-        self.graph_deduped(filter, false)
-    }
-
-    /// Open the store and build its graph; with `dedupe`, near-duplicate sentences of the same
-    /// claim count once (`graph::near_duplicates`), and `Loaded::duplicates_removed` says how many
-    /// rows that dropped.
-    pub fn graph_deduped(&self, filter: &Filter, dedupe: bool) -> Result<Loaded> {
+    /// The store with what a query resolves names with: the normaliser, and the aliases in
+    /// force. Queries need only the normaliser: compiling the cues would cost more than the
+    /// query.
+    pub fn query_parts(&self) -> Result<(Store, Normalizer, Aliases)> {
         let store = self.open_store()?;
-        // Queries need only the normaliser: compiling the cues would cost more than the query.
         let set = self.pattern_set()?;
         let normalizer = Normalizer::new(&set.lexicon);
         let aliases = Aliases::new(&normalizer, &self.alias_pairs(&set)?);
-        let mut rows = store.rows().context("cannot read the store's claims")?;
-        let mut duplicates_removed = 0;
-        if dedupe {
-            let mut texts = Vec::with_capacity(rows.len());
-            for r in &rows {
-                let c = store.claim(r.at).context("cannot read a claim record")?;
-                texts.push(c.sentence);
-            }
-            let dup = hearsay::graph::near_duplicates(
-                &rows,
-                &texts,
-                &aliases,
-                hearsay::graph::DEDUPE_THRESHOLD,
+        Ok((store, normalizer, aliases))
+    }
+
+    /// Open the store and build its graph.
+    pub fn graph(&self, filter: &Filter) -> Result<Loaded> {
+        let (store, normalizer, aliases) = self.query_parts()?;
+        query::load(store, normalizer, aliases, filter, false)
+            .context("cannot read the store's claims")
+    }
+
+    /// Open the store and build its graph; with `dedupe`, near-duplicate sentences of the same
+    /// claim count once, and stderr says how many rows that dropped.
+    pub fn load(&self, filter: &Filter, dedupe: bool) -> Result<Loaded> {
+        let (store, normalizer, aliases) = self.query_parts()?;
+        let loaded = query::load(store, normalizer, aliases, filter, dedupe)
+            .context("cannot read the store's claims")?;
+        if dedupe && !self.quiet {
+            eprintln!(
+                "hearsay: --dedupe removed {} near-duplicate mentions",
+                loaded.duplicates_removed
             );
-            duplicates_removed = dup.iter().filter(|d| **d).count();
-            let mut it = dup.into_iter();
-            rows.retain(|_| !it.next().unwrap_or(false));
         }
-        let graph = ClaimGraph::build(rows, &aliases, filter);
-        Ok(Loaded {
-            store,
-            normalizer,
-            aliases,
-            graph,
-            duplicates_removed,
-        })
+        Ok(loaded)
     }
 
     pub fn warn(&self, msg: &str) {
@@ -340,119 +294,6 @@ impl Global {
             eprintln!("hearsay: warning: {}", escape(msg));
         }
     }
-}
-
-/// A store with its graph, ready for queries.
-pub struct Loaded {
-    pub store: Store,
-    pub normalizer: Normalizer,
-    pub aliases: Aliases,
-    pub graph: ClaimGraph,
-    /// Rows dropped as near-duplicates (0 unless built with dedupe).
-    pub duplicates_removed: usize,
-}
-
-/// Replace control characters so that text from the input cannot drive the terminal.
-pub fn escape(s: &str) -> String {
-    s.chars()
-        .map(|c| {
-            if c.is_control() && c != '\n' && c != '\t' {
-                '\u{FFFD}'
-            } else {
-                c
-            }
-        })
-        .collect()
-}
-
-/// A simple aligned table for terminals.
-pub struct Table {
-    headers: Vec<String>,
-    rows: Vec<Vec<String>>,
-}
-
-impl Table {
-    pub fn new(headers: &[&str]) -> Self {
-        Table {
-            headers: headers.iter().map(|s| s.to_string()).collect(),
-            rows: Vec::new(),
-        }
-    }
-    pub fn row(&mut self, cells: Vec<String>) {
-        self.rows.push(
-            cells
-                .into_iter()
-                .map(|c| escape(&c).replace(['\n', '\t'], " "))
-                .collect(),
-        );
-    }
-    pub fn print(&self, out: &mut impl Write) -> std::io::Result<()> {
-        let n = self.headers.len();
-        let mut w: Vec<usize> = self.headers.iter().map(|h| h.chars().count()).collect();
-        for r in &self.rows {
-            for (i, c) in r.iter().enumerate().take(n) {
-                w[i] = w[i].max(c.chars().count().min(60));
-            }
-        }
-        let line = |cells: &[String], out: &mut dyn Write| -> std::io::Result<()> {
-            let mut s = String::new();
-            for (i, c) in cells.iter().enumerate().take(n) {
-                let c: String = if c.chars().count() > 60 {
-                    c.chars().take(59).chain(std::iter::once('…')).collect()
-                } else {
-                    c.clone()
-                };
-                let pad = w[i].saturating_sub(c.chars().count());
-                if i + 1 == n {
-                    s.push_str(&c);
-                } else {
-                    s.push_str(&c);
-                    s.push_str(&" ".repeat(pad + 2));
-                }
-            }
-            writeln!(out, "{}", s.trim_end())
-        };
-        line(&self.headers, out)?;
-        line(&w.iter().map(|&x| "-".repeat(x)).collect::<Vec<_>>(), out)?;
-        for r in &self.rows {
-            line(r, out)?;
-        }
-        Ok(())
-    }
-}
-
-/// Write serialisable rows in the chosen machine format (JSON Lines or CSV with `headers`).
-pub fn write_rows<T: serde::Serialize>(
-    out: &mut impl Write,
-    format: Format,
-    rows: &[T],
-    csv_row: impl Fn(&T) -> Vec<String>,
-    headers: &[&str],
-) -> Result<()> {
-    match format {
-        Format::Json => {
-            for r in rows {
-                serde_json::to_writer(&mut *out, r)?;
-                out.write_all(b"\n")?;
-            }
-        }
-        Format::Csv => {
-            let mut w = csv::Writer::from_writer(&mut *out);
-            w.write_record(headers)?;
-            for r in rows {
-                w.write_record(csv_row(r))?;
-            }
-            w.flush()?;
-        }
-        Format::Table => {
-            let mut t = Table::new(headers);
-            for r in rows {
-                t.row(csv_row(r));
-            }
-            t.print(out)?;
-        }
-    }
-    Ok(())
 }
 
 /// True when a path is given that does not exist: a friendlier message than the walk's.

@@ -1,15 +1,10 @@
 //! `hearsay pair X Y`: what the corpus says about two variables, in each direction.
 
-use super::{escape, ClaimFilter, Format, Global, Loaded};
+use super::{escape, ClaimFilter, Format, Global};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::graph::ClaimGraph;
-use hearsay::query::comention;
-use hearsay::query::{self, DirectionSummary, PairReport};
-use hearsay::store::{RowBytes, Store};
-use hearsay::variables::{Aliases, Normalizer};
+use hearsay::query::{DirectionSummary, PairQuery, PairReport, VarMatch};
 use hearsay::Modality;
-use petgraph::graph::NodeIndex;
 use std::io::Write;
 use std::process::ExitCode;
 
@@ -44,14 +39,16 @@ pub struct PairArgs {
 }
 
 pub fn run(g: &Global, a: &PairArgs) -> Result<ExitCode> {
-    let mut s = Session::open(g)?;
+    let (store, normalizer, aliases) = g.query_parts()?;
+    let mut q =
+        PairQuery::open(store, normalizer, aliases).context("cannot read the store's claims")?;
     if a.repeat <= 1 {
-        return answer(g, a, &mut s, true);
+        return answer(g, a, &mut q, true);
     }
     let mut times = Vec::with_capacity(a.repeat);
     for i in 0..a.repeat {
         let t = std::time::Instant::now();
-        answer(g, a, &mut s, i == 0)?;
+        answer(g, a, &mut q, i == 0)?;
         times.push(t.elapsed().as_secs_f64() * 1000.0);
     }
     times.sort_by(f64::total_cmp);
@@ -64,73 +61,14 @@ pub fn run(g: &Global, a: &PairArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-/// What every query needs, loaded once: the store (its search index opens on first use), the
-/// normaliser and aliases, and the raw compact rows.
-struct Session {
-    store: Store,
-    normalizer: Normalizer,
-    aliases: Aliases,
-    bytes: RowBytes,
-}
-
-impl Session {
-    fn open(g: &Global) -> Result<Session> {
-        let store = g.open_store()?;
-        let set = g.pattern_set()?;
-        let normalizer = Normalizer::new(&set.lexicon);
-        let aliases = Aliases::new(&normalizer, &g.alias_pairs(&set)?);
-        let bytes = store
-            .row_bytes()
-            .context("cannot read the store's claims")?;
-        Ok(Session {
-            store,
-            normalizer,
-            aliases,
-            bytes,
-        })
-    }
-}
-
-/// One query, printed only when `print`.
-///
-/// The graph is built from the rows that name X or Y (after aliases) only: every count, label
-/// and evidence row of the pair report depends on those rows alone, so the report equals the
-/// one over the whole graph. Only when a variable is unknown (the report then suggests known
-/// variables containing its words) is the whole graph built.
-fn answer(g: &Global, a: &PairArgs, s: &mut Session, print: bool) -> Result<ExitCode> {
-    let filter = a.filter.to_filter();
-    let key = |q: &str| s.aliases.resolve(&s.normalizer.key(q)).to_string();
-    let (kx, ky) = (key(&a.x), key(&a.y));
-    let aliases = &s.aliases;
-    let rows = s
-        .store
-        .rows_where(&s.bytes, |c, e| {
-            let wanted = |k: &[u8]| k == kx.as_bytes() || k == ky.as_bytes();
-            if aliases.is_empty() {
-                return wanted(c) || wanted(e);
-            }
-            let resolved_wanted = |k: &[u8]| {
-                std::str::from_utf8(k).is_ok_and(|k| wanted(aliases.resolve(k).as_bytes()))
-            };
-            resolved_wanted(c) || resolved_wanted(e)
-        })
+/// One query (the plan is [`PairQuery`]'s), printed only when `print`.
+fn answer(g: &Global, a: &PairArgs, q: &mut PairQuery, print: bool) -> Result<ExitCode> {
+    let graph = q
+        .graph(&a.x, &a.y, &a.filter.to_filter(), a.whole_graph)
         .context("cannot read the store's claims")?;
-    let mut graph = ClaimGraph::build(rows, aliases, &filter);
-    let look = |graph: &ClaimGraph, q: &str| query::lookup(graph, &s.normalizer, aliases, q);
-    let (mut x, mut y) = (look(&graph, &a.x), look(&graph, &a.y));
-    let unknown = |v: &(query::VarMatch, Option<NodeIndex>)| v.1.is_none() && !v.0.key.is_empty();
-    if a.whole_graph || unknown(&x) || unknown(&y) {
-        let rows = s.store.rows().context("cannot read the store's claims")?;
-        graph = ClaimGraph::build(rows, aliases, &filter);
-        (x, y) = (look(&graph, &a.x), look(&graph, &a.y));
-    }
-    let co_mentions =
-        comention::pair_co_mentions(&mut s.store, &graph, (&x.0.key, x.1), (&y.0.key, y.1))
-            .context("cannot search the sentence index")?;
-    let store = &s.store;
-    let rep = query::pair_report(&graph, x, y, co_mentions, a.evidence, |r| {
-        query::evidence_text(&graph, store, r)
-    });
+    let rep = q
+        .report(graph, a.evidence)
+        .context("cannot search the sentence index")?;
     if !print {
         return Ok(ExitCode::SUCCESS);
     }
@@ -146,21 +84,7 @@ fn answer(g: &Global, a: &PairArgs, s: &mut Session, print: bool) -> Result<Exit
     Ok(ExitCode::SUCCESS)
 }
 
-/// The pair report of two looked-up variables, with evidence text fetched from the store.
-pub(super) fn report_with_evidence(
-    loaded: &Loaded,
-    x: (query::VarMatch, Option<NodeIndex>),
-    y: (query::VarMatch, Option<NodeIndex>),
-    co_mentions: usize,
-    evidence: usize,
-) -> PairReport {
-    let (store, graph) = (&loaded.store, &loaded.graph);
-    query::pair_report(graph, x, y, co_mentions, evidence, |r| {
-        query::evidence_text(graph, store, r)
-    })
-}
-
-fn name(v: &query::VarMatch) -> String {
+fn name(v: &VarMatch) -> String {
     v.label.clone().unwrap_or_else(|| v.query.clone())
 }
 

@@ -1,10 +1,12 @@
 //! `hearsay paths X Y`: indirect chains of stated edges from X to Y.
 
-use super::graph::{find_var, hops_out, print_evidence, HopOut, WeightArgs};
-use super::{escape, ClaimFilter, Format, Global};
+use super::args::WeightArgs;
+use super::output::{find_var, print_evidence};
+use super::{escape, write_rows, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::graph::analysis::{self, Chain};
+use hearsay::graph::{self, Chain, Sign};
+use hearsay::query::HopEvidence;
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -52,15 +54,15 @@ struct ChainOut<'a> {
     rank: usize,
     support: f64,
     product: f64,
-    sign: analysis::Sign,
-    hops: Vec<HopOut<'a>>,
+    sign: Sign,
+    hops: Vec<HopEvidence<'a>>,
 }
 
 pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
     let loaded = a.weight.load(g, &a.filter)?;
     let (x, y) = (find_var(&loaded, &a.x)?, find_var(&loaded, &a.y)?);
     let spec = a.weight.spec();
-    let chains: Vec<Chain> = analysis::paths(
+    let chains: Vec<Chain> = graph::paths(
         &loaded.graph,
         &spec,
         x,
@@ -77,17 +79,13 @@ pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
             support: c.support,
             product: c.product,
             sign: c.sign,
-            hops: hops_out(&loaded, &c.hops, a.evidence),
+            hops: loaded.hops(&c.hops, a.evidence),
         })
         .collect();
     let mut out = std::io::stdout().lock();
     match g.format() {
-        Format::Json => {
-            for c in &outs {
-                serde_json::to_writer(&mut out, c)?;
-                out.write_all(b"\n")?;
-            }
-        }
+        // JSON Lines has no columns: the cells and headers are for CSV and tables only.
+        Format::Json => write_rows(&mut out, Format::Json, &outs, |_| Vec::new(), &[])?,
         Format::Csv => {
             let mut w = csv::Writer::from_writer(&mut out);
             w.write_record([

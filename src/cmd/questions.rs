@@ -1,11 +1,12 @@
 //! `hearsay questions`: the question set for a variable or pair list.
 
+use super::args::pair_list;
 use super::{write_rows, Global};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::compare::questions::{self as q, Named, Question};
+use hearsay::compare::questions::{self as q, Question};
 use hearsay::variables::Normalizer;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 #[derive(Args, Debug)]
@@ -33,27 +34,6 @@ pub struct QuestionsArgs {
     pub sign: bool,
 }
 
-/// Read the pairs of `--vars` or `--pairs`.
-pub fn read_pairs(
-    n: &Normalizer,
-    vars: Option<&Path>,
-    pairs: Option<&Path>,
-) -> Result<Vec<(Named, Named)>> {
-    let (path, from_vars) = match (vars, pairs) {
-        (Some(v), _) => (v, true),
-        (None, Some(p)) => (p, false),
-        (None, None) => anyhow::bail!("give --vars FILE or --pairs FILE"),
-    };
-    let text =
-        std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
-    let pairs = if from_vars {
-        q::pairs_from_vars(n, path, &text)?
-    } else {
-        q::pairs_from_list(n, path, &text)?
-    };
-    Ok(pairs)
-}
-
 pub const HEADERS: &[&str] = &[
     "id", "x", "y", "x_key", "y_key", "family", "template", "text",
 ];
@@ -61,7 +41,10 @@ pub const HEADERS: &[&str] = &[
 pub fn run(g: &Global, a: &QuestionsArgs) -> Result<ExitCode> {
     let set = g.pattern_set()?;
     let n = Normalizer::new(&set.lexicon);
-    let pairs = read_pairs(&n, a.vars.as_deref(), a.pairs.as_deref())?;
+    let Some(list) = pair_list(a.vars.as_deref(), a.pairs.as_deref()) else {
+        anyhow::bail!("give --vars FILE or --pairs FILE");
+    };
+    let pairs = q::read_pairs(&n, list)?;
     let wordings = q::load_wordings(a.questions.as_deref()).context("cannot load the wordings")?;
     let qs = q::questions(&pairs, &wordings, a.sign);
     let mut out = std::io::stdout().lock();

@@ -4,11 +4,13 @@
 use super::{ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::query;
+use hearsay::compare::questions as q;
+use hearsay::compare::{self as cmp, AnswerSet, AnswerSource, Corpus, Summary};
+use hearsay::query::Loaded;
 use hearsay::report::{self, Options, Sources};
 use std::collections::HashMap;
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 #[derive(Args, Debug)]
@@ -71,13 +73,6 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
         .into_iter()
         .map(|c| (c.id, c.family))
         .collect();
-    let pair = a.pair.as_deref().and_then(|p| match p {
-        [x, y] => Some((
-            query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, x),
-            query::lookup(&loaded.graph, &loaded.normalizer, &loaded.aliases, y),
-        )),
-        _ => None,
-    });
     let opts = Options {
         title: a.title.clone(),
         edges: a.edges,
@@ -86,38 +81,23 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
         co_mention_vars: a.co_mention_vars,
     };
     let comparison = match &a.compare {
-        Some(path) => {
-            let (answers, asked, mentions) = super::compare::load_answers(
-                &mut loaded,
-                &super::compare::AnswerSource {
-                    answers: path,
-                    vars: a.vars.as_deref(),
-                    pairs: a.pairs.as_deref(),
-                    questions: None,
-                },
-            )?;
-            let corpus = hearsay::compare::Corpus {
-                graph: &loaded.graph,
-                aliases: &loaded.aliases,
-                mentions: &mentions,
-                sentences: loaded.store.manifest.totals().1,
-            };
-            let profiles = hearsay::compare::profiles(&corpus, &asked, a.threshold.max(1));
-            Some(hearsay::compare::summarise(&answers, &profiles).summaries)
-        }
+        Some(path) => Some(comparison(&mut loaded, a, path)?),
         None => None,
     };
-    let mut data = report::collect(
-        &loaded.graph,
+    let pair = match a.pair.as_deref() {
+        Some([x, y]) => Some((x.as_str(), y.as_str())),
+        _ => None,
+    };
+    let data = report::collect(
+        &mut loaded,
         Sources {
-            store: &mut loaded.store,
             families: &families,
             pair,
+            comparison,
         },
         &opts,
     )
     .context("cannot gather the report's data from the store")?;
-    data.comparison = comparison;
     let page = report::render(&data);
     match &a.output {
         Some(p) => {
@@ -126,4 +106,27 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
         None => std::io::stdout().lock().write_all(page.as_bytes())?,
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// `--compare ANSWERS`: the per-model, per-family summaries of `hearsay compare`, read with the
+/// built-in wordings.
+fn comparison(loaded: &mut Loaded, a: &ReportArgs, answers: &Path) -> Result<Vec<Summary>> {
+    let wordings = q::load_wordings(None).context("cannot load the wordings")?;
+    let set = AnswerSet::read(
+        &loaded.normalizer,
+        &AnswerSource {
+            answers,
+            list: super::args::pair_list(a.vars.as_deref(), a.pairs.as_deref()),
+            wordings: &wordings,
+        },
+    )?;
+    let mentions = set
+        .mentions(loaded)
+        .context("cannot search the sentence index")?;
+    let profiles = cmp::profiles(
+        &Corpus::of(loaded, &mentions),
+        &set.asked,
+        a.threshold.max(1),
+    );
+    Ok(cmp::summarise(&set.answers, &profiles).summaries)
 }

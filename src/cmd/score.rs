@@ -1,6 +1,6 @@
 //! `hearsay score --truth FILE`: compare the claim graph with a reference diagram.
 
-use super::graph::WeightArgs;
+use super::args::WeightArgs;
 use super::{ClaimFilter, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::Args;

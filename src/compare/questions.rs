@@ -282,6 +282,27 @@ pub fn pairs_from_list(
     Ok(out)
 }
 
+/// Where the pairs of a question set come from: a variable list (every ordered pair) or a pair
+/// list (only the pairs listed).
+#[derive(Debug, Clone, Copy)]
+pub enum PairList<'a> {
+    Vars(&'a Path),
+    Pairs(&'a Path),
+}
+
+/// Read the pairs of a variable or pair list.
+pub fn read_pairs(n: &Normalizer, list: PairList<'_>) -> Result<Vec<(Named, Named)>, InputError> {
+    let (PairList::Vars(path) | PairList::Pairs(path)) = list;
+    let text = std::fs::read_to_string(path).map_err(|source| InputError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    match list {
+        PairList::Vars(_) => pairs_from_vars(n, path, &text),
+        PairList::Pairs(_) => pairs_from_list(n, path, &text),
+    }
+}
+
 /// One question.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Question {

@@ -19,8 +19,7 @@
 //! The curve repeats this at every distinct positive weight of a scored edge.
 
 use crate::error::InputError;
-use crate::graph::weight::WeightSpec;
-use crate::graph::ClaimGraph;
+use crate::graph::{ClaimGraph, WeightSpec};
 use crate::variables::{Aliases, Normalizer};
 use serde::Serialize;
 use std::collections::{BTreeMap, BTreeSet};

@@ -7,51 +7,13 @@
 //! Every result counts statements in text; none is evidence that a causation is real.
 
 use crate::claim::{Modality, Polarity};
+use crate::graph::sign::Sign;
 use crate::graph::weight::WeightSpec;
 use crate::graph::{ClaimGraph, Relation};
 use petgraph::graph::NodeIndex;
 use petgraph::visit::EdgeRef;
 use serde::Serialize;
 use std::collections::{BTreeMap, HashSet};
-
-/// The sign an edge or a chain states.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Sign {
-    Increase,
-    Decrease,
-    Unsigned,
-}
-
-impl Sign {
-    pub fn as_str(self) -> &'static str {
-        match self {
-            Sign::Increase => "increase",
-            Sign::Decrease => "decrease",
-            Sign::Unsigned => "unsigned",
-        }
-    }
-    /// The sign of two links in a row: like signs increase, unlike decrease, unsigned spreads.
-    pub fn then(self, next: Sign) -> Sign {
-        match (self, next) {
-            (Sign::Unsigned, _) | (_, Sign::Unsigned) => Sign::Unsigned,
-            (a, b) if a == b => Sign::Increase,
-            _ => Sign::Decrease,
-        }
-    }
-}
-
-/// The sign of an edge: the majority of its non-negated signed claims (increase against decrease
-/// and prevent); unsigned when it has none or they tie.
-pub fn edge_sign(rel: &Relation) -> Sign {
-    let inc = rel.counts.stated(Polarity::Increase);
-    let dec = rel.counts.stated(Polarity::Decrease) + rel.counts.stated(Polarity::Prevent);
-    match inc.cmp(&dec) {
-        std::cmp::Ordering::Greater => Sign::Increase,
-        std::cmp::Ordering::Less => Sign::Decrease,
-        std::cmp::Ordering::Equal => Sign::Unsigned,
-    }
-}
 
 fn is_denial(g: &ClaimGraph, row: usize) -> bool {
     let r = &g.rows[row];
@@ -109,7 +71,7 @@ fn hop(g: &ClaimGraph, spec: &WeightSpec, a: NodeIndex, b: NodeIndex, rel: &Rela
         effect_label: g.graph[b].label.clone(),
         weight: spec.weight(g, rel),
         documents: rel.docs.len(),
-        sign: edge_sign(rel),
+        sign: Sign::majority(rel),
         rows: spread(g, &support),
     }
 }

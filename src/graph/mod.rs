@@ -1,14 +1,41 @@
-//! The claim graph: claims aggregated per variable and per ordered pair.
+//! The claim graph: claims aggregated per variable and per ordered pair, and what is computed
+//! from the graph alone.
 //!
 //! Nodes are variables (alias-resolved keys); a directed edge cause → effect aggregates every
 //! causal claim between them: counts by polarity and modality, distinct documents and sentences,
 //! and the first and last claim in corpus order. Association claims are counted per unordered pair
 //! and never become causal edges. The graph is built from compact [`ClaimRow`]s, so it can be
 //! rebuilt from a store in milliseconds; full claim records are fetched only as evidence.
+//!
+//! Everything here is a pure function of the rows and the graph, which keeps each piece testable
+//! on a handful of rows; the one exception, [`drop_near_duplicates`], reads the rows' sentences
+//! from the store before the graph is built. The public face:
+//!
+//! - [`ClaimGraph`] (built with [`ClaimGraph::build`] under a [`Filter`]) and its parts
+//!   [`Variable`], [`Relation`], [`Counts`];
+//! - edge weights: [`WeightSpec`] and its [`Unit`];
+//! - edge signs: [`Sign`] and [`dominant_polarity`], every rule in one module (its doc says
+//!   which consumer reads which rule, and how they differ);
+//! - the analyses: [`paths`], [`conflicts`], [`cycles`], [`matrix`] and their result types;
+//! - [`near_duplicates`] and [`drop_near_duplicates`] for `--dedupe`;
+//! - [`export`]: the file formats for network tools, read as `graph::export::write_json` and the
+//!   like (a module, so that the writers keep their short names).
+//!
+//! Architecture invariant: the graph never prints and never imports the query, report or
+//! compare layers above it.
 
-pub mod analysis;
+mod analysis;
+mod dedupe;
 pub mod export;
-pub mod weight;
+mod sign;
+mod weight;
+
+pub use analysis::{
+    conflicts, cycles, matrix, paths, Cell, Chain, Conflict, ConflictKind, ConflictSide, Cycle, Hop,
+};
+pub use dedupe::{drop_near_duplicates, jaccard, near_duplicates, shingles, DEDUPE_THRESHOLD};
+pub use sign::{dominant_polarity, Sign};
+pub use weight::{Unit, WeightSpec};
 
 use crate::claim::{Kind, Modality, Polarity};
 use crate::store::ClaimRow;
@@ -213,76 +240,6 @@ impl ClaimGraph {
     }
 }
 
-/// Jaccard similarity of word 3-shingles at or above which two sentences are near-duplicates.
-pub const DEDUPE_THRESHOLD: f64 = 0.8;
-
-/// The normalised words of a sentence: lower-cased runs of letters and digits.
-fn norm_words(text: &str) -> Vec<String> {
-    text.split(|c: char| !c.is_alphanumeric())
-        .filter(|w| !w.is_empty())
-        .map(str::to_lowercase)
-        .collect()
-}
-
-/// The word 3-shingles of a sentence (its words, for sentences under three words).
-pub fn shingles(text: &str) -> BTreeSet<String> {
-    let w = norm_words(text);
-    if w.len() < 3 {
-        return w.into_iter().collect();
-    }
-    w.windows(3).map(|x| x.join(" ")).collect()
-}
-
-/// Jaccard similarity of two shingle sets (1 for two empty sets).
-pub fn jaccard(a: &BTreeSet<String>, b: &BTreeSet<String>) -> f64 {
-    if a.is_empty() && b.is_empty() {
-        return 1.0;
-    }
-    let inter = a.intersection(b).count();
-    inter as f64 / (a.len() + b.len() - inter) as f64
-}
-
-/// Which rows repeat an earlier row: same variables (after aliases), kind, polarity and modality,
-/// and a sentence whose normalised text is identical or whose word-3-shingle Jaccard similarity
-/// with the earlier one is at least `threshold`. `texts[i]` is row `i`'s sentence. The first row
-/// in corpus order is kept; the rest are marked `true`.
-///
-/// Comparisons are exact (not MinHash estimates): rows are first grouped by claim, then by
-/// normalised text, so only the distinct texts of one claim are compared with each other.
-pub fn near_duplicates(
-    rows: &[ClaimRow],
-    texts: &[String],
-    aliases: &Aliases,
-    threshold: f64,
-) -> Vec<bool> {
-    type Group<'a> = (&'a str, &'a str, Kind, Polarity, Modality);
-    let mut groups: HashMap<Group, Vec<(String, BTreeSet<String>)>> = HashMap::new();
-    let mut out = vec![false; rows.len()];
-    for (i, r) in rows.iter().enumerate() {
-        let text = texts.get(i).map(String::as_str).unwrap_or("");
-        let key = (
-            aliases.resolve(&r.cause),
-            aliases.resolve(&r.effect),
-            r.kind,
-            r.polarity,
-            r.modality,
-        );
-        let norm = norm_words(text).join(" ");
-        let kept = groups.entry(key).or_default();
-        if kept.iter().any(|(t, _)| *t == norm) {
-            out[i] = true;
-            continue;
-        }
-        let sh = shingles(text);
-        if kept.iter().any(|(_, s)| jaccard(s, &sh) >= threshold) {
-            out[i] = true;
-            continue;
-        }
-        kept.push((norm, sh));
-    }
-    out
-}
-
 #[cfg(test)]
 pub(crate) mod tests {
     use super::*;
@@ -314,37 +271,5 @@ pub(crate) mod tests {
         assert_eq!(g.association(c, a).unwrap().counts.total, 1);
         assert_eq!(g.graph[a].mentions, 5);
         assert_eq!(g.graph[a].docs, 3);
-    }
-
-    #[test]
-    fn near_duplicates_collapse_boilerplate_but_not_other_readings() {
-        let mut rows = vec![
-            row("a", "b", Kind::Causal, Modality::Asserted, "d1"),
-            row("a", "b", Kind::Causal, Modality::Asserted, "d2"),
-            row("a", "b", Kind::Causal, Modality::Asserted, "d3"),
-            row("a", "b", Kind::Causal, Modality::Negated, "d4"),
-            row("a", "b", Kind::Causal, Modality::Asserted, "d5"),
-        ];
-        rows[4].cause = "x".into();
-        let texts: Vec<String> = [
-            "Fertiliser runoff causes algae blooms in the lake every summer.",
-            "FERTILISER runoff causes algae blooms in the lake, every summer!",
-            "Fertiliser runoff causes algae blooms in the lake every single summer.",
-            "Fertiliser runoff causes algae blooms in the lake every summer.",
-            "Fertiliser runoff causes algae blooms in the lake every summer.",
-        ]
-        .map(String::from)
-        .to_vec();
-        let dup = near_duplicates(&rows, &texts, &Aliases::default(), DEDUPE_THRESHOLD);
-        // Identical after normalisation; 7 of 10 shingles shared (0.7 < 0.8) is kept; a
-        // different modality and a different cause are different claims.
-        assert_eq!(dup, vec![false, true, false, false, false]);
-        let s1 = shingles(&texts[0]);
-        let s3 = shingles(&texts[2]);
-        assert!(
-            (jaccard(&s1, &s3) - 7.0 / 10.0).abs() < 1e-9,
-            "{}",
-            jaccard(&s1, &s3)
-        );
     }
 }

@@ -161,3 +161,98 @@ pub fn claim_sentences(g: &ClaimGraph, x: NodeIndex, y: NodeIndex) -> (usize, us
     }
     (causal.len(), assoc.len())
 }
+
+/// A pair of variables named together in sentences but never in a causal claim.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CoMention {
+    pub a: String,
+    pub b: String,
+    /// Sentences naming both with no claim between them.
+    pub sentences: usize,
+    /// Association claims between them.
+    pub associations: usize,
+}
+
+/// True when every index term of one key is a term of the other, so that every sentence naming
+/// the longer one names the shorter one too.
+fn nested(a: &str, b: &str) -> bool {
+    let (ta, tb) = (key_terms(a), key_terms(b));
+    ta.iter().all(|t| tb.contains(t)) || tb.iter().all(|t| ta.contains(t))
+}
+
+/// The most-mentioned `vars` variables, paired up: pairs named together in sentences without a
+/// claim between them and with no causal claim either way, most co-mentioned first.
+pub fn co_mention_pairs(
+    g: &ClaimGraph,
+    store: &mut Store,
+    vars: usize,
+) -> Result<Vec<CoMention>, StoreError> {
+    let mut nodes: Vec<NodeIndex> = g.graph.node_indices().collect();
+    nodes.sort_by(|&x, &y| {
+        g.graph[y]
+            .mentions
+            .cmp(&g.graph[x].mentions)
+            .then_with(|| g.graph[x].key.cmp(&g.graph[y].key))
+    });
+    nodes.truncate(vars);
+    let mut sets = Vec::with_capacity(nodes.len());
+    for &n in &nodes {
+        let terms = key_terms(&g.graph[n].key);
+        sets.push(if terms.is_empty() {
+            BTreeSet::new()
+        } else {
+            store.sentence_ids_with(&[&terms])?
+        });
+    }
+    let mut out = Vec::new();
+    for i in 0..nodes.len() {
+        for j in (i + 1)..nodes.len() {
+            let (a, b) = (nodes[i], nodes[j]);
+            if g.edge(a, b).is_some()
+                || g.edge(b, a).is_some()
+                || nested(&g.graph[a].key, &g.graph[b].key)
+            {
+                continue;
+            }
+            let sentences = unclaimed(
+                g,
+                Some(a),
+                Some(b),
+                sets[i]
+                    .intersection(&sets[j])
+                    .map(|(d, s)| (d.as_str(), *s)),
+            );
+            if sentences > 0 {
+                out.push(CoMention {
+                    a: g.graph[a].label.clone(),
+                    b: g.graph[b].label.clone(),
+                    sentences,
+                    associations: g.association(a, b).map(|r| r.counts.total).unwrap_or(0),
+                });
+            }
+        }
+    }
+    out.sort_by(|x, y| {
+        y.sentences
+            .cmp(&x.sentences)
+            .then_with(|| (&x.a, &x.b).cmp(&(&y.a, &y.b)))
+    });
+    Ok(out)
+}
+
+impl super::Loaded {
+    /// [`co_mention_pairs`] of this store's graph.
+    pub fn co_mention_pairs(&mut self, vars: usize) -> Result<Vec<CoMention>, StoreError> {
+        co_mention_pairs(&self.graph, &mut self.store, vars)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn nested_keys_name_each_other() {
+        assert!(nested("cell", "cell death") && !nested("cell", "death rate"));
+    }
+}

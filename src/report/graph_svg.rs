@@ -6,7 +6,9 @@
 //! with a text label and a `<title>` (the hover text); the panels are plain HTML that the inlined
 //! script shows and hides.
 
-use super::{PictureEdge, PictureNode, Report, Sign};
+use super::data::{PictureEdge, PictureNode, Report};
+use super::evidence::evidence_list;
+use crate::graph::Sign;
 use maud::{html, Markup};
 
 const W: f64 = 960.0;
@@ -231,7 +233,7 @@ pub fn edge_details(r: &Report) -> Markup {
                         (e.polarity.iter().map(|(p, n)| format!("{p} {n}")).collect::<Vec<_>>().join(", "))
                         "."
                     }
-                    (super::page::evidence_list(&e.evidence))
+                    (evidence_list(&e.evidence))
                 }
             }
         }

@@ -4,7 +4,8 @@
 //! names, skip reasons) can only ever become text. The style sheet and script are constants of
 //! this crate; the script sorts tables and opens evidence panels, and needs no data of its own.
 
-use super::{graph_svg, plots, EvidenceLine, Report};
+use super::data::Report;
+use super::{graph_svg, plots};
 use crate::query::{DirectionSummary, PairReport};
 use maud::{html, Markup, PreEscaped, DOCTYPE};
 
@@ -237,21 +238,6 @@ fn co_mention_table(r: &Report) -> Markup {
     }
 }
 
-/// Evidence sentences with their place, cue and reading.
-pub fn evidence_list(ev: &[EvidenceLine]) -> Markup {
-    html! {
-        ol.evidence {
-            @for e in ev {
-                li {
-                    span.loc { (e.location) } " "
-                    span.tag { "[" (e.polarity) ", " (e.modality) "; cue " (e.cue) "]" }
-                    blockquote { (e.sentence) }
-                }
-            }
-        }
-    }
-}
-
 fn direction_row(name: String, d: &DirectionSummary) -> Markup {
     html! {
         tr {
@@ -310,7 +296,7 @@ fn pair_section(p: &PairReport) -> Markup {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::Summary;
+    use crate::query::CorpusSummary as Summary;
 
     #[test]
     fn corpus_text_is_escaped() {

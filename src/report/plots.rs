@@ -4,7 +4,7 @@
 //! Each plot is a `<figure>` with an SVG `<title>`/`<desc>` and a collapsible table of the same
 //! numbers, which is the text alternative.
 
-use super::Report;
+use super::data::Report;
 use maud::{html, Markup};
 
 const PW: f64 = 600.0;

@@ -1,0 +1,257 @@
+//! `pair`: everything the corpus says about two variables, and the plan that answers it fast.
+//!
+//! [`pair_report`] is a pure function of a graph. [`PairQuery`] is the latency-sensitive path
+//! of `hearsay pair`: it keeps the store's compact rows in memory and builds each query's graph
+//! from the rows that name X or Y only, which gives the same report as the whole graph (every
+//! count, label and evidence row of the report depends on those rows alone) in a fraction of
+//! the time. Only when a name is unknown (the report then suggests known variables containing
+//! its words) is the whole graph built.
+
+use super::comention::pair_co_mentions;
+use super::evidence::{evidence_text, strongest_rows};
+use super::lookup::{lookup, Looked, VarMatch};
+use super::Loaded;
+use crate::claim::{Modality, Polarity};
+use crate::error::StoreError;
+use crate::graph::{ClaimGraph, Filter, Relation};
+use crate::store::{RowBytes, Store};
+use crate::variables::{Aliases, Normalizer};
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// Counts for one direction of a pair.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct DirectionSummary {
+    pub claims: usize,
+    pub documents: usize,
+    pub sentences: usize,
+    pub asserted: usize,
+    pub hedged: usize,
+    pub negated: usize,
+    pub question: usize,
+    pub conditional: usize,
+    /// polarity → modality → count.
+    pub by_polarity: BTreeMap<Polarity, BTreeMap<Modality, usize>>,
+}
+
+impl DirectionSummary {
+    pub fn of(rel: Option<&Relation>) -> Self {
+        let Some(r) = rel else { return Self::default() };
+        let c = &r.counts;
+        DirectionSummary {
+            claims: c.total,
+            documents: r.docs.len(),
+            sentences: r.sentences.len(),
+            asserted: c.modality(Modality::Asserted),
+            hedged: c.modality(Modality::Hedged),
+            negated: c.modality(Modality::Negated),
+            question: c.modality(Modality::Question),
+            conditional: c.modality(Modality::Conditional),
+            by_polarity: c.by.clone(),
+        }
+    }
+    /// Claims that state the relation rather than deny it.
+    pub fn support(&self) -> usize {
+        self.claims - self.negated
+    }
+}
+
+/// One evidence sentence.
+#[derive(Debug, Clone, Serialize)]
+pub struct Evidence {
+    /// "forward" (x → y), "backward" (y → x) or "association".
+    pub relation: &'static str,
+    pub location: String,
+    pub polarity: Polarity,
+    pub modality: Modality,
+    pub cue: String,
+    pub sentence: String,
+}
+
+/// Everything the corpus says about a pair of variables.
+#[derive(Debug, Clone, Serialize)]
+pub struct PairReport {
+    pub x: VarMatch,
+    pub y: VarMatch,
+    /// Causal claims x → y.
+    pub forward: DirectionSummary,
+    /// Causal claims y → x.
+    pub backward: DirectionSummary,
+    /// Association claims between x and y, in either order.
+    pub association: DirectionSummary,
+    /// Sentences naming both with no claim between them.
+    pub co_mentions: usize,
+    /// support(x → y) / (support(x → y) + support(y → x)); absent when neither is stated.
+    pub direction_ratio: Option<f64>,
+    pub evidence: Vec<Evidence>,
+}
+
+/// Build the pair report. `comentions` gives the number of sentences naming both variables with
+/// no claim between them; `evidence_text` turns a row into (location, sentence).
+pub fn pair_report(
+    g: &ClaimGraph,
+    x: Looked,
+    y: Looked,
+    co_mentions: usize,
+    per_relation: usize,
+    mut evidence_text: impl FnMut(usize) -> (String, String),
+) -> PairReport {
+    let (xm, xn) = x;
+    let (ym, yn) = y;
+    let (fwd, bwd, assoc) = match (xn, yn) {
+        (Some(a), Some(b)) => (g.edge(a, b), g.edge(b, a), g.association(a, b)),
+        _ => (None, None, None),
+    };
+    let forward = DirectionSummary::of(fwd);
+    let backward = DirectionSummary::of(bwd);
+    let association = DirectionSummary::of(assoc);
+    let (f, b) = (forward.support(), backward.support());
+    let direction_ratio = if f + b > 0 {
+        Some(f as f64 / (f + b) as f64)
+    } else {
+        None
+    };
+    let mut evidence = Vec::new();
+    for (name, rel) in [("forward", fwd), ("backward", bwd), ("association", assoc)] {
+        if let Some(rel) = rel {
+            for r in strongest_rows(g, rel, per_relation) {
+                let (location, sentence) = evidence_text(r);
+                let row = &g.rows[r];
+                evidence.push(Evidence {
+                    relation: name,
+                    location,
+                    polarity: row.polarity,
+                    modality: row.modality,
+                    cue: row.cue.clone(),
+                    sentence,
+                });
+            }
+        }
+    }
+    PairReport {
+        x: xm,
+        y: ym,
+        forward,
+        backward,
+        association,
+        co_mentions,
+        direction_ratio,
+        evidence,
+    }
+}
+
+impl Loaded {
+    /// The pair report of two looked-up variables with `co_mentions` given, evidence text
+    /// fetched from the store.
+    pub fn pair_report(
+        &self,
+        x: Looked,
+        y: Looked,
+        co_mentions: usize,
+        evidence: usize,
+    ) -> PairReport {
+        let (store, graph) = (&self.store, &self.graph);
+        pair_report(graph, x, y, co_mentions, evidence, |r| {
+            evidence_text(graph, store, r)
+        })
+    }
+
+    /// The pair report of two looked-up variables, co-mentions counted with the sentence index.
+    pub fn pair(
+        &mut self,
+        x: Looked,
+        y: Looked,
+        evidence: usize,
+    ) -> Result<PairReport, StoreError> {
+        let n = pair_co_mentions(
+            &mut self.store,
+            &self.graph,
+            (&x.0.key, x.1),
+            (&y.0.key, y.1),
+        )?;
+        Ok(self.pair_report(x, y, n, evidence))
+    }
+}
+
+/// What every `pair` query needs, loaded once: the store (its search index opens on first use),
+/// the normaliser and aliases, and the raw compact rows.
+pub struct PairQuery {
+    store: Store,
+    normalizer: Normalizer,
+    aliases: Aliases,
+    bytes: RowBytes,
+}
+
+/// The graph that answers one pair, with the two names looked up in it.
+pub struct PairGraph {
+    graph: ClaimGraph,
+    x: Looked,
+    y: Looked,
+}
+
+impl PairQuery {
+    /// Read the store's compact rows once, for any number of queries.
+    pub fn open(
+        store: Store,
+        normalizer: Normalizer,
+        aliases: Aliases,
+    ) -> Result<PairQuery, StoreError> {
+        let bytes = store.row_bytes()?;
+        Ok(PairQuery {
+            store,
+            normalizer,
+            aliases,
+            bytes,
+        })
+    }
+
+    /// The graph of the rows that name `x` or `y` (after aliases) and the filter accepts; the
+    /// whole graph when `whole_graph` is set or a name is unknown.
+    pub fn graph(
+        &self,
+        x: &str,
+        y: &str,
+        filter: &Filter,
+        whole_graph: bool,
+    ) -> Result<PairGraph, StoreError> {
+        let key = |q: &str| self.aliases.resolve(&self.normalizer.key(q)).to_string();
+        let (kx, ky) = (key(x), key(y));
+        let aliases = &self.aliases;
+        let rows = self.store.rows_where(&self.bytes, |c, e| {
+            let wanted = |k: &[u8]| k == kx.as_bytes() || k == ky.as_bytes();
+            if aliases.is_empty() {
+                return wanted(c) || wanted(e);
+            }
+            let resolved_wanted = |k: &[u8]| {
+                std::str::from_utf8(k).is_ok_and(|k| wanted(aliases.resolve(k).as_bytes()))
+            };
+            resolved_wanted(c) || resolved_wanted(e)
+        })?;
+        let mut graph = ClaimGraph::build(rows, aliases, filter);
+        let look = |graph: &ClaimGraph, q: &str| lookup(graph, &self.normalizer, aliases, q);
+        let (mut lx, mut ly) = (look(&graph, x), look(&graph, y));
+        let unknown = |v: &Looked| v.1.is_none() && !v.0.key.is_empty();
+        if whole_graph || unknown(&lx) || unknown(&ly) {
+            let rows = self.store.rows()?;
+            graph = ClaimGraph::build(rows, aliases, filter);
+            (lx, ly) = (look(&graph, x), look(&graph, y));
+        }
+        Ok(PairGraph {
+            graph,
+            x: lx,
+            y: ly,
+        })
+    }
+
+    /// The report over a pair's graph: co-mentions from the sentence index, `evidence`
+    /// sentences per relation from the store.
+    pub fn report(&mut self, pg: PairGraph, evidence: usize) -> Result<PairReport, StoreError> {
+        let PairGraph { graph, x, y } = pg;
+        let co_mentions =
+            pair_co_mentions(&mut self.store, &graph, (&x.0.key, x.1), (&y.0.key, y.1))?;
+        let store = &self.store;
+        Ok(pair_report(&graph, x, y, co_mentions, evidence, |r| {
+            evidence_text(&graph, store, r)
+        }))
+    }
+}

@@ -1,0 +1,127 @@
+//! `top`: the most-stated relations, causal and association.
+
+use crate::claim::{Kind, Modality, Polarity};
+use crate::graph::{dominant_polarity, ClaimGraph, Relation};
+use petgraph::graph::NodeIndex;
+use serde::Serialize;
+
+/// One line of `hearsay top`.
+#[derive(Debug, Clone, Serialize)]
+pub struct TopRelation {
+    pub kind: Kind,
+    pub cause: String,
+    pub effect: String,
+    pub cause_key: String,
+    pub effect_key: String,
+    pub documents: usize,
+    pub claims: usize,
+    pub asserted: usize,
+    pub hedged: usize,
+    pub negated: usize,
+    /// The sign most of the non-negated claims give.
+    pub sign: Polarity,
+    /// Where the relation is first stated.
+    pub first: String,
+}
+
+/// The most-stated relations, ranked by distinct documents, then claims.
+pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<TopRelation> {
+    let mut out = Vec::new();
+    let mut push = |kind: Kind, a: NodeIndex, b: NodeIndex, rel: &Relation| {
+        if rel.docs.len() < min_docs || rel.counts.total < min_claims {
+            return;
+        }
+        let first = rel
+            .rows
+            .first()
+            .map(|&r| format!("{}:{}", g.rows[r].doc, g.rows[r].line))
+            .unwrap_or_default();
+        out.push(TopRelation {
+            kind,
+            cause: g.graph[a].label.clone(),
+            effect: g.graph[b].label.clone(),
+            cause_key: g.graph[a].key.clone(),
+            effect_key: g.graph[b].key.clone(),
+            documents: rel.docs.len(),
+            claims: rel.counts.total,
+            asserted: rel.counts.modality(Modality::Asserted),
+            hedged: rel.counts.modality(Modality::Hedged),
+            negated: rel.counts.modality(Modality::Negated),
+            sign: dominant_polarity(rel),
+            first,
+        });
+    };
+    for (a, b, rel) in g.edges() {
+        push(Kind::Causal, a, b, rel);
+    }
+    // An association is filed under its two nodes in index order, which is the order in which
+    // the corpus first named them: shown as its first claim states it instead ("cap-dependent
+    // translation" as cap, translation).
+    for (&(a, b), rel) in &g.associations {
+        let first_cause = rel
+            .rows
+            .first()
+            .and_then(|&r| g.index.get(&g.rows[r].cause));
+        let (a, b) = if first_cause == Some(&b) {
+            (b, a)
+        } else {
+            (a, b)
+        };
+        push(Kind::Association, a, b, rel);
+    }
+    out.sort_by(|x, y| {
+        y.documents
+            .cmp(&x.documents)
+            .then(y.claims.cmp(&x.claims))
+            .then_with(|| x.cause_key.cmp(&y.cause_key))
+            .then_with(|| x.effect_key.cmp(&y.effect_key))
+            .then(x.kind.cmp(&y.kind))
+    });
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::claim::{Kind, Modality};
+    use crate::graph::tests::row;
+    use crate::graph::Filter;
+    use crate::variables::Aliases;
+
+    #[test]
+    fn an_association_is_shown_as_its_first_claim_states_it() {
+        // "translation" is named first (by a causal claim), "cap" later: the association is
+        // filed as (translation, cap) but its first claim says cap, translation.
+        let rows = vec![
+            row(
+                "stress",
+                "translation",
+                Kind::Causal,
+                Modality::Asserted,
+                "d1",
+            ),
+            row(
+                "cap",
+                "translation",
+                Kind::Association,
+                Modality::Asserted,
+                "d2",
+            ),
+            row(
+                "translation",
+                "cap",
+                Kind::Association,
+                Modality::Asserted,
+                "d3",
+            ),
+        ];
+        let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
+        let top = top_relations(&g, 1, 1);
+        let assoc = top.iter().find(|t| t.kind == Kind::Association).unwrap();
+        assert_eq!(
+            (assoc.cause.as_str(), assoc.effect.as_str()),
+            ("cap", "translation")
+        );
+        assert_eq!((assoc.claims, assoc.documents), (2, 2));
+    }
+}
