@@ -1,5 +1,7 @@
-//! Subcommands, one file each, and the setup they share (`Cli`, output formats, loading the
-//! patterns, the store and the graph).
+//! Subcommands, one file each, and the setup they share: `Cli` and the global options here
+//! (output formats, loading the patterns, opening the store and building its graph through
+//! `query::load`), the argument groups several commands flatten in `args.rs`, and what they print
+//! with in `output.rs`. Every command file parses and prints; what it computes is library code.
 
 mod args;
 mod claims;

@@ -33,7 +33,7 @@ mod weight;
 pub use analysis::{
     conflicts, cycles, matrix, paths, Cell, Chain, Conflict, ConflictKind, ConflictSide, Cycle, Hop,
 };
-pub use dedupe::{drop_near_duplicates, jaccard, near_duplicates, shingles, DEDUPE_THRESHOLD};
+pub use dedupe::{drop_near_duplicates, near_duplicates, DEDUPE_THRESHOLD};
 pub use sign::{dominant_polarity, Sign};
 pub use weight::{Unit, WeightSpec};
 

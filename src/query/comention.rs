@@ -240,7 +240,7 @@ pub fn co_mention_pairs(
     Ok(out)
 }
 
-impl super::Loaded {
+impl super::load::Loaded {
     /// [`co_mention_pairs`] of this store's graph.
     pub fn co_mention_pairs(&mut self, vars: usize) -> Result<Vec<CoMention>, StoreError> {
         co_mention_pairs(&self.graph, &mut self.store, vars)

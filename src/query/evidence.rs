@@ -1,7 +1,7 @@
 //! Evidence: the sentences behind a relation or a chain, fetched from the store for the rows
 //! the graph points at.
 
-use super::Loaded;
+use super::load::Loaded;
 use crate::claim::{Modality, Polarity};
 use crate::graph::{ClaimGraph, Hop, Relation};
 use crate::store::Store;

@@ -1,7 +1,7 @@
 //! Names the user types, matched to the graph's variables through the same normalisation and
 //! aliases as the claims.
 
-use super::Loaded;
+use super::load::Loaded;
 use crate::error::InputError;
 use crate::graph::ClaimGraph;
 use crate::variables::{Aliases, Normalizer};

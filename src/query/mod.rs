@@ -11,7 +11,7 @@
 //!
 //! The public face: [`load`] and [`Loaded`]; [`lookup`] and [`VarMatch`]; [`PairQuery`],
 //! [`PairReport`] and its parts; [`top_relations`]; co-mentions ([`MentionIndex`],
-//! [`co_mention_pairs`]); evidence ([`EvidenceLine`], [`HopEvidence`], [`evidence_text`]); the
+//! [`co_mention_pairs`], [`claim_sentences`]); evidence ([`EvidenceLine`], [`HopEvidence`]); the
 //! corpus at a glance ([`corpus_summary`], [`heaviest_edges`]); and the graph's conflicts, which a
 //! summary of the corpus lists beside the rest.
 //!
@@ -27,10 +27,8 @@ mod pair;
 mod top;
 
 pub use crate::graph::{conflicts, Conflict, ConflictKind};
-pub use comention::{
-    claim_sentences, co_mention_pairs, pair_co_mentions, unclaimed, CoMention, MentionIndex,
-};
-pub use evidence::{evidence_text, strongest_rows, EvidenceLine, HopEvidence};
+pub use comention::{claim_sentences, co_mention_pairs, CoMention, MentionIndex};
+pub use evidence::{EvidenceLine, HopEvidence};
 pub use load::{load, Loaded};
 pub use lookup::{lookup, Looked, VarMatch};
 pub use overview::{corpus_summary, heaviest_edges, CorpusSummary};

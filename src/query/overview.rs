@@ -1,6 +1,6 @@
 //! The corpus at a glance, and the heaviest part of its graph: what a summary page opens with.
 
-use super::Loaded;
+use super::load::Loaded;
 use crate::claim::{Kind, Modality, Polarity};
 use crate::corpus::Skipped;
 use crate::graph::export::{self, Export, Selection};

@@ -9,8 +9,8 @@
 
 use super::comention::pair_co_mentions;
 use super::evidence::{evidence_text, strongest_rows};
+use super::load::Loaded;
 use super::lookup::{lookup, Looked, VarMatch};
-use super::Loaded;
 use crate::claim::{Modality, Polarity};
 use crate::error::StoreError;
 use crate::graph::{ClaimGraph, Filter, Relation};
