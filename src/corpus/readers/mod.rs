@@ -13,6 +13,9 @@ pub mod markdown;
 pub mod pdf;
 pub mod text;
 
+use crate::corpus::document::{Document, Warnings};
+use crate::error::ReadError;
+
 /// Join extracted blocks with blank lines, so every block ends a sentence.
 pub(crate) fn push_block(out: &mut String, block: &str) {
     let block = block.trim();
@@ -41,4 +44,19 @@ pub(crate) fn collapse_ws(s: &str) -> String {
         }
     }
     out
+}
+
+/// The common body of the readers of text-based formats: decode the bytes as text (reporting
+/// any fallback encoding), turn the text into the reader's own text with `extract`, and emit one
+/// document without pages.
+fn emit_decoded(
+    label: &str,
+    bytes: &[u8],
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+    extract: impl FnOnce(String) -> Result<String, ReadError>,
+) -> Result<(), ReadError> {
+    let src = text::decode_text(label, bytes, warnings)?;
+    emit(text::text_document(label, None, extract(src)?));
+    Ok(())
 }
