@@ -21,13 +21,15 @@
 //! The files follow that layout and the life of a store: `manifest` (the commit point), `rows`
 //! (the compact claim rows), `index` (the sentence index and its analyzer), `read` (a store
 //! opened for queries), `result` (one file's results waiting to be written), `writer` (a new
-//! segment and the commit) and `merge` (the same writer fed from `extract` shards).
+//! segment and the commit), `scan` (the incremental scan that drives the writer) and `merge`
+//! (the same writer fed from `extract` shards).
 //!
-//! The public face: [`Store`] for reading, [`StoreWriter`] and [`FileResult`] for writing,
-//! [`Merge`] for building a store from shards, the records `extract` writes for `merge`
-//! ([`SentenceRecord`], [`FileStart`], [`FileRecord`]), and the stored types ([`Manifest`],
-//! [`FileEntry`], [`ClaimRow`], [`ClaimRef`]). The store reads files through [`crate::corpus`]
-//! and extracts with [`crate::extract`]; it never uses the graph or anything above it.
+//! The public face: [`Store`] for reading, [`scan()`] with its [`ScanOptions`] and
+//! [`ScanEvents`] for building a store from files, [`StoreWriter`] and [`Merge`] for building
+//! one from shards, the records `extract` writes for `merge` ([`SentenceRecord`],
+//! [`FileStart`], [`FileRecord`]), and the stored types ([`Manifest`], [`FileEntry`],
+//! [`ClaimRow`], [`ClaimRef`]). The store reads files through [`crate::corpus`] and extracts
+//! with [`crate::extract`]; it never uses the graph or anything above it.
 
 mod index;
 mod manifest;
@@ -35,6 +37,7 @@ mod merge;
 mod read;
 mod result;
 mod rows;
+mod scan;
 mod writer;
 
 #[cfg(test)]
@@ -44,8 +47,8 @@ pub use index::key_terms;
 pub use manifest::{FileEntry, Manifest, STORE_VERSION};
 pub use merge::{FileRecord, FileStart, Merge, SentenceRecord, ShardLine};
 pub use read::{RowBytes, Store};
-pub use result::FileResult;
 #[cfg(test)]
 pub(crate) use rows::test_row;
 pub use rows::{doc_id, ClaimRef, ClaimRow};
+pub use scan::{scan, ScanEvents, ScanOptions, ScanReport};
 pub use writer::StoreWriter;

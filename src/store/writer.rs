@@ -23,7 +23,7 @@ use tantivy::{doc, IndexWriter, Term};
 pub struct StoreWriter {
     pub(super) dir: PathBuf,
     _lock: File,
-    pub old: Manifest,
+    pub(super) old: Manifest,
     segment: u32,
     jsonl: Option<BufWriter<File>>,
     rows_out: Option<BufWriter<File>>,
