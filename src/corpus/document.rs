@@ -135,4 +135,4 @@ pub trait Reader: Send + Sync {
 }
 
 /// The largest file hearsay reads whole.
-pub const MAX_FILE_BYTES: u64 = 1 << 30;
+pub(super) const MAX_FILE_BYTES: u64 = 1 << 30;

@@ -34,8 +34,7 @@ mod tests;
 
 pub use batches::{read_batched, read_batched_hashed, streams};
 pub use document::{
-    Document, Input, InputFormat, ReadOptions, Reader, Skipped, Warnings, MAX_FILE_BYTES,
-    UNKNOWN_FORMAT,
+    Document, Input, InputFormat, ReadOptions, Reader, Skipped, Warnings, UNKNOWN_FORMAT,
 };
 pub use panics::quiet_contained_panics;
 pub use read::{read_from, read_input};

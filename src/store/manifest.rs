@@ -19,7 +19,7 @@ use std::path::Path;
 /// recurs), and every sentence carries its file as a term, so replacing a file drops all its
 /// sentences (version 3 deleted by the new content's document ids, which kept the sentences of
 /// records a changed file no longer has).
-pub const STORE_VERSION: u32 = 4;
+pub(super) const STORE_VERSION: u32 = 4;
 
 /// One input file as the store knows it.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
@@ -52,7 +52,8 @@ pub struct Manifest {
     pub generation: u64,
     pub hearsay_version: String,
     pub patterns: String,
-    /// The pattern set's fingerprint ([`crate::patterns::PatternSet::fingerprint`]) the files were read with.
+    /// The pattern set's fingerprint ([`crate::patterns::PatternSet::fingerprint`]) the files
+    /// were read with.
     #[serde(default)]
     pub patterns_fingerprint: String,
     pub files: Vec<FileEntry>,

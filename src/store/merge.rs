@@ -40,7 +40,7 @@ pub struct FileRecord {
 /// One line of an `extract` shard.
 #[derive(Debug, Deserialize)]
 #[serde(untagged)]
-pub enum ShardLine {
+enum ShardLine {
     Claim(Box<Claim>),
     Sentence(SentenceRecord),
     File(FileRecord),

@@ -44,8 +44,8 @@ mod writer;
 mod tests;
 
 pub use index::key_terms;
-pub use manifest::{FileEntry, Manifest, STORE_VERSION};
-pub use merge::{FileRecord, FileStart, Merge, SentenceRecord, ShardLine};
+pub use manifest::{FileEntry, Manifest};
+pub use merge::{FileRecord, FileStart, Merge, SentenceRecord};
 pub use read::{RowBytes, Store};
 #[cfg(test)]
 pub(crate) use rows::test_row;
