@@ -18,7 +18,7 @@ pub(super) const STREAM_BYTES: u64 = 8 << 20;
 /// Whether an input is better read as a stream of document batches ([`read_batched`]) than
 /// whole, with one thread per file: standard input, JSON Lines (one file may hold millions of
 /// documents), compressed files (their size on disk says little), and files of
-/// [`STREAM_BYTES`] or more. What is extracted from them is the same either way.
+/// `STREAM_BYTES` (8 MB) or more. What is extracted from them is the same either way.
 pub fn streams(input: &Input, opts: &ReadOptions) -> bool {
     if input.is_stdin() || opts.format == InputFormat::Jsonl {
         return true;

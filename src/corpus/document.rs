@@ -116,7 +116,8 @@ pub trait Reader: Send + Sync {
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError>;
     /// Read from a stream. Formats that can be read piecewise (JSON Lines) override this so a
-    /// file is never held whole; the default reads up to [`MAX_FILE_BYTES`] and calls `read`.
+    /// file is never held whole; the default reads up to `MAX_FILE_BYTES` (1 GiB) and calls
+    /// `read`.
     fn read_stream(
         &self,
         label: &str,

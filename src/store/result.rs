@@ -10,9 +10,9 @@ use std::path::{Path, PathBuf};
 
 /// The result of reading one changed file, ready to be written. A large file's results need not
 /// wait in memory for its end: [`FileResult::spill`] moves what is held so far to an unnamed
-/// temporary file in the store's folder, and [`StoreWriter::put`](super::StoreWriter::put) reads it back in order. The
-/// file's old claims and sentences stay until then, so a file that fails part-way loses nothing
-/// already stored.
+/// temporary file in the store's folder, and [`StoreWriter::put`](super::StoreWriter::put)
+/// reads it back in order. The file's old claims and sentences stay until then, so a file that
+/// fails part-way loses nothing already stored.
 #[derive(Debug, Default)]
 pub struct FileResult {
     pub entry: Option<FileEntry>,

@@ -115,8 +115,9 @@ impl StoreWriter {
         Ok(())
     }
 
-    /// Start a file afresh: its old claims and sentences are dropped, and what [`Self::append`]
-    /// adds next belongs to it. `entry` carries the file's metadata and counts.
+    /// Start a file afresh: its old claims and sentences are dropped, and what
+    /// [`Self::append_claims`] adds next belongs to it. `entry` carries the file's metadata and
+    /// counts.
     pub fn begin(&mut self, mut entry: FileEntry) {
         self.index_writer
             .delete_term(Term::from_field_text(self.fields.file, &entry.path));

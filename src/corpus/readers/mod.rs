@@ -1,5 +1,5 @@
 //! The format readers: each turns one file's bytes (or, for JSON Lines, a stream) into
-//! [`Document`](crate::corpus::Document)s.
+//! [`Document`]s.
 //!
 //! Every reader produces its own text: markup, code blocks, page furniture and the like are left
 //! out, so claim offsets are byte offsets into the text the reader produced, not into the file.
