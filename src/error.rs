@@ -68,6 +68,17 @@ impl StoreError {
     }
 }
 
+/// Why a scan stopped. Nothing of it was committed: the store stays as it was.
+#[derive(Debug, thiserror::Error)]
+pub enum ScanError {
+    #[error("cannot write to the store")]
+    Write(#[source] StoreError),
+    #[error("cannot commit the store")]
+    Commit(#[source] StoreError),
+    #[error(transparent)]
+    Store(#[from] StoreError),
+}
+
 /// Errors from a data file the user gives or the tool ships: pattern files, labelled (gold) data,
 /// variable and pair lists, answer files, reference diagrams. Every message names the file and the
 /// line (or record) at fault.

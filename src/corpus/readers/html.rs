@@ -15,8 +15,9 @@
 //! cannot overflow the stack; input nested deeper than [`MAX_DEPTH`] is refused before parsing,
 //! because the parser's own cost grows with depth.
 
+use super::emit_decoded;
 use super::{collapse_ws, push_block};
-use crate::corpus::{emit_decoded, Document, ReadOptions, Reader, Warnings};
+use crate::corpus::document::{Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 use ego_tree::iter::Edge;
 use scraper::{Html, Node};

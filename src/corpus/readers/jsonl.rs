@@ -7,7 +7,7 @@
 //! records are read.
 
 use super::text::text_document;
-use crate::corpus::{Document, ReadOptions, Reader, Warnings};
+use crate::corpus::document::{Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 use std::io::BufRead;
 

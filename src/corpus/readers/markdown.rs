@@ -2,8 +2,9 @@
 //! out; headings, paragraphs, list items, quotes and table cells each end a block, so each is a
 //! sentence boundary. Offsets are into the extracted text.
 
+use super::emit_decoded;
 use super::{collapse_ws, push_block};
-use crate::corpus::{emit_decoded, Document, ReadOptions, Reader, Warnings};
+use crate::corpus::document::{Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 use pulldown_cmark::{Event, Options, Parser, Tag, TagEnd};
 

@@ -1,5 +1,5 @@
 //! The format readers: each turns one file's bytes (or, for JSON Lines, a stream) into
-//! [`Document`](crate::corpus::Document)s.
+//! [`Document`]s.
 //!
 //! Every reader produces its own text: markup, code blocks, page furniture and the like are left
 //! out, so claim offsets are byte offsets into the text the reader produced, not into the file.
@@ -12,6 +12,9 @@ pub mod jsonl;
 pub mod markdown;
 pub mod pdf;
 pub mod text;
+
+use crate::corpus::document::{Document, Warnings};
+use crate::error::ReadError;
 
 /// Join extracted blocks with blank lines, so every block ends a sentence.
 pub(crate) fn push_block(out: &mut String, block: &str) {
@@ -41,4 +44,19 @@ pub(crate) fn collapse_ws(s: &str) -> String {
         }
     }
     out
+}
+
+/// The common body of the readers of text-based formats: decode the bytes as text (reporting
+/// any fallback encoding), turn the text into the reader's own text with `extract`, and emit one
+/// document without pages.
+fn emit_decoded(
+    label: &str,
+    bytes: &[u8],
+    warnings: &mut Warnings,
+    emit: &mut dyn FnMut(Document),
+    extract: impl FnOnce(String) -> Result<String, ReadError>,
+) -> Result<(), ReadError> {
+    let src = text::decode_text(label, bytes, warnings)?;
+    emit(text::text_document(label, None, extract(src)?));
+    Ok(())
 }

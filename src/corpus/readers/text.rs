@@ -1,6 +1,7 @@
 //! Plain text: UTF-8, UTF-16 with a byte-order mark, and a Latin-1 fallback that is reported.
 
-use crate::corpus::{emit_decoded, Document, ReadOptions, Reader, Warnings};
+use super::emit_decoded;
+use crate::corpus::document::{Document, ReadOptions, Reader, Warnings};
 use crate::error::ReadError;
 
 /// Plain text files.

@@ -1,0 +1,286 @@
+//! The search index: one tantivy document per sentence, so that co-mention queries can find
+//! the sentences that name two variables. Its analyzer stems words exactly as variable keys are
+//! stemmed, so a key's words are the index's terms and a query needs no analysis of its own.
+
+use crate::error::StoreError;
+use crate::variables::StemCache;
+use std::collections::BTreeSet;
+use std::fs;
+use std::path::{Path, PathBuf};
+use tantivy::collector::DocSetCollector;
+use tantivy::query::{BooleanQuery, Occur, Query, TermQuery};
+use tantivy::schema::{
+    Field, IndexRecordOption, Schema, TextFieldIndexing, TextOptions, FAST, STRING,
+};
+use tantivy::tokenizer::{
+    LowerCaser, SimpleTokenizer, StopWordFilter, TextAnalyzer, Token, TokenFilter, TokenStream,
+    Tokenizer,
+};
+use tantivy::{DocAddress, Index, IndexReader, Term};
+
+const TOKENIZER: &str = "hearsay_en";
+
+#[derive(Clone, Copy)]
+pub(super) struct Fields {
+    pub(super) path: Field,
+    pub(super) file: Field,
+    pub(super) text: Field,
+    pub(super) line: Field,
+    pub(super) start: Field,
+}
+
+impl Fields {
+    /// The fields of an opened index (by name, as the index's own schema numbers them).
+    pub(super) fn of(index: &Index) -> Fields {
+        let s = index.schema();
+        let f = schema().1;
+        Fields {
+            path: s.get_field("path").unwrap_or(f.path),
+            file: s.get_field("file").unwrap_or(f.file),
+            text: s.get_field("text").unwrap_or(f.text),
+            line: s.get_field("line").unwrap_or(f.line),
+            start: s.get_field("start").unwrap_or(f.start),
+        }
+    }
+}
+
+/// One index document per sentence. Its text is indexed, not stored, and its path, line and start
+/// are columns (fast fields), not stored either: co-mention queries only need which sentences
+/// match, and reading columns is far cheaper than decoding stored documents (stored fields were
+/// 60 of the 69 MB of the eLife index). No field norms: nothing is ranked. `file` (indexed
+/// only) is the input file the sentence came from, for dropping a file's sentences.
+fn schema() -> (Schema, Fields) {
+    let mut b = Schema::builder();
+    let text_opts = TextOptions::default().set_indexing_options(
+        TextFieldIndexing::default()
+            .set_tokenizer(TOKENIZER)
+            .set_index_option(IndexRecordOption::Basic)
+            .set_fieldnorms(false),
+    );
+    let path = b.add_text_field("path", STRING | FAST);
+    let file = b.add_text_field("file", STRING);
+    let text = b.add_text_field("text", text_opts);
+    let line = b.add_u64_field("line", FAST);
+    let start = b.add_u64_field("start", FAST);
+    (
+        b.build(),
+        Fields {
+            path,
+            file,
+            text,
+            line,
+            start,
+        },
+    )
+}
+
+fn register_tokenizer(index: &Index, unindexed: &[String]) {
+    index.tokenizers().register(TOKENIZER, analyzer(unindexed));
+}
+
+/// The index's analyzer: words split at anything not alphanumeric, lower-cased, the words no key
+/// contains (`unindexed`, see [`crate::variables::dropped_words`]) left out, and the rest stemmed
+/// exactly as variable keys are (so a key's words are the index's terms). Leaving out "the",
+/// "of" and the like saved about a third of the postings work on eLife text.
+pub(super) fn analyzer(unindexed: &[String]) -> TextAnalyzer {
+    TextAnalyzer::builder(SimpleTokenizer::default())
+        .filter(LowerCaser)
+        .filter(StopWordFilter::remove(unindexed.iter().cloned()))
+        .filter(KeyStemmer)
+        .build()
+}
+
+/// Stems index tokens with [`crate::variables::stem`], the stemmer of variable keys. Each
+/// tokenizer (one per indexing thread) remembers the stems of the words it has seen: stemming
+/// was the largest single cost of indexing.
+#[derive(Clone, Copy)]
+struct KeyStemmer;
+
+/// Words whose stems one tokenizer remembers before it starts over (about 8 MB at most).
+const STEM_CACHE_WORDS: usize = 100_000;
+
+impl TokenFilter for KeyStemmer {
+    type Tokenizer<T: Tokenizer> = KeyStemmerFilter<T>;
+
+    fn transform<T: Tokenizer>(self, inner: T) -> KeyStemmerFilter<T> {
+        KeyStemmerFilter {
+            inner,
+            stems: StemCache::new(STEM_CACHE_WORDS),
+        }
+    }
+}
+
+struct KeyStemmerFilter<T> {
+    inner: T,
+    stems: StemCache,
+}
+
+/// A copy starts with no remembered stems: copies go to other threads, and stems are cheap to
+/// learn again.
+impl<T: Clone> Clone for KeyStemmerFilter<T> {
+    fn clone(&self) -> Self {
+        KeyStemmerFilter {
+            inner: self.inner.clone(),
+            stems: StemCache::new(STEM_CACHE_WORDS),
+        }
+    }
+}
+
+impl<T: Tokenizer> Tokenizer for KeyStemmerFilter<T> {
+    type TokenStream<'a> = KeyStemmerStream<'a, T::TokenStream<'a>>;
+
+    fn token_stream<'a>(&'a mut self, text: &'a str) -> Self::TokenStream<'a> {
+        KeyStemmerStream {
+            tail: self.inner.token_stream(text),
+            stems: &mut self.stems,
+            word: String::new(),
+        }
+    }
+}
+
+struct KeyStemmerStream<'a, T> {
+    tail: T,
+    stems: &'a mut StemCache,
+    /// The token's word while its stem is written into the token (both buffers are reused).
+    word: String,
+}
+
+impl<T: TokenStream> TokenStream for KeyStemmerStream<'_, T> {
+    fn advance(&mut self) -> bool {
+        if !self.tail.advance() {
+            return false;
+        }
+        let token = self.tail.token_mut();
+        std::mem::swap(&mut token.text, &mut self.word);
+        token.text.clear();
+        self.stems.push(&self.word, &mut token.text);
+        true
+    }
+
+    fn token(&self) -> &Token {
+        self.tail.token()
+    }
+
+    fn token_mut(&mut self) -> &mut Token {
+        self.tail.token_mut()
+    }
+}
+
+/// Open (or with `create`, create) the store's index. `unindexed` only matters for writing:
+/// queries look terms up directly.
+pub(super) fn open_index(
+    dir: &Path,
+    create: bool,
+    unindexed: &[String],
+) -> Result<Index, StoreError> {
+    let idx_dir = dir.join("index");
+    let exists = idx_dir.join("meta.json").exists();
+    let index = if exists {
+        Index::open_in_dir(&idx_dir)?
+    } else if create {
+        fs::create_dir_all(&idx_dir).map_err(|e| StoreError::io(&idx_dir, e))?;
+        Index::create_in_dir(&idx_dir, schema().0)?
+    } else {
+        return Err(StoreError::Corrupt {
+            path: idx_dir,
+            message: "search index missing".into(),
+        });
+    };
+    register_tokenizer(&index, unindexed);
+    Ok(index)
+}
+
+/// The index terms of a variable key (keys are already stemmed: split, do not stem again).
+pub fn key_terms(key: &str) -> Vec<String> {
+    key.split(' ')
+        .filter(|t| !t.is_empty())
+        .map(str::to_string)
+        .collect()
+}
+
+/// The index of a store opened for queries.
+pub(super) struct SentenceIndex {
+    /// Kept open for as long as its reader is used.
+    _index: Index,
+    reader: IndexReader,
+    fields: Fields,
+    dir: PathBuf,
+}
+
+impl SentenceIndex {
+    /// Open the index of the store at `dir` for queries.
+    pub(super) fn open(dir: &Path) -> Result<SentenceIndex, StoreError> {
+        let index = open_index(dir, false, &[])?;
+        let reader = index.reader()?;
+        let fields = Fields::of(&index);
+        Ok(SentenceIndex {
+            _index: index,
+            reader,
+            fields,
+            dir: dir.to_path_buf(),
+        })
+    }
+
+    fn terms_query(&self, groups: &[&[String]]) -> Option<Box<dyn Query>> {
+        let mut clauses: Vec<(Occur, Box<dyn Query>)> = Vec::new();
+        for g in groups {
+            if g.is_empty() {
+                return None;
+            }
+            for t in *g {
+                let term = Term::from_field_text(self.fields.text, t);
+                clauses.push((
+                    Occur::Must,
+                    Box::new(TermQuery::new(term, IndexRecordOption::Basic)),
+                ));
+            }
+        }
+        Some(Box::new(BooleanQuery::new(clauses)))
+    }
+
+    /// The (document, sentence start) of every sentence that contains every term of each group.
+    pub(super) fn sentence_ids_with(
+        &self,
+        groups: &[&[String]],
+    ) -> Result<BTreeSet<(String, u64)>, StoreError> {
+        let mut out = BTreeSet::new();
+        let Some(q) = self.terms_query(groups) else {
+            return Ok(out);
+        };
+        let searcher = self.reader.searcher();
+        let mut hits: Vec<DocAddress> =
+            searcher.search(&q, &DocSetCollector)?.into_iter().collect();
+        hits.sort_unstable();
+        let column_error = |e: tantivy::TantivyError| StoreError::Corrupt {
+            path: self.dir.join("index"),
+            message: format!("sentence columns: {e}"),
+        };
+        let mut path = String::new();
+        for seg in hits.chunk_by(|a, b| a.segment_ord == b.segment_ord) {
+            let columns = searcher.segment_reader(seg[0].segment_ord).fast_fields();
+            let starts = columns.u64("start").map_err(column_error)?;
+            let Some(paths) = columns.str("path").map_err(column_error)? else {
+                continue;
+            };
+            // Sentences of one document are neighbours: look each path up once.
+            let mut last_ord = None;
+            for addr in seg {
+                let (Some(ord), Some(start)) = (
+                    paths.term_ords(addr.doc_id).next(),
+                    starts.first(addr.doc_id),
+                ) else {
+                    continue;
+                };
+                if last_ord != Some(ord) {
+                    path.clear();
+                    paths
+                        .ord_to_str(ord, &mut path)
+                        .map_err(|e| StoreError::io(self.dir.join("index"), e))?;
+                    last_ord = Some(ord);
+                }
+                out.insert((path.clone(), start));
+            }
+        }
+        Ok(out)
+    }
+}
