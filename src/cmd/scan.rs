@@ -5,8 +5,7 @@ use super::{check_paths, escape, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::corpus::{self, Input, Skipped};
-use hearsay::extract::claims::Extractor;
-use hearsay::extract::pipeline;
+use hearsay::extract::{document_claims, document_sentences, Extractor};
 use hearsay::patterns::PatternSet;
 use hearsay::store::doc_id;
 use hearsay::store::{FileEntry, FileResult, StoreWriter};
@@ -232,10 +231,10 @@ fn read(
     // Each document is taken through the pipeline as soon as it is read, so a JSON Lines dump
     // costs the memory of one record plus its results.
     let take = |d: &corpus::Document, result: &mut FileResult| {
-        result.add_claims(pipeline::document_claims(ex, d));
+        result.add_claims(document_claims(ex, d));
         let id = doc_id(&d.path, d.record.as_deref());
         // Index text only (not stored): whitespace need not be collapsed.
-        for s in pipeline::document_sentences(d) {
+        for s in document_sentences(d) {
             result.add_sentence(
                 id.clone(),
                 s.line as u64,
