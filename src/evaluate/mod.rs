@@ -13,7 +13,7 @@
 //! [`parse_because`], [`parse_cnc`] and [`parse_jsonl`] read span-annotated documents
 //! ([`GoldDoc`], `gold`), which [`score_spans`] scores by token overlap (`spans`). The
 //! `_judged` variants also return every claim judged right or wrong ([`Judged`]), which the
-//! [`Reliability`] table and confidence training use. [`reference`] scores a claim graph against
+//! [`Reliability`] table and confidence training use. [`reference`](mod@reference) scores a claim graph against
 //! a reference diagram; it stays a module of its own, as its `Scores` and `Prf` are not these.
 
 mod gold;

@@ -32,7 +32,7 @@ use std::hash::Hasher as _;
 pub const FORMAT: &str = "hearsay-confidence 1";
 
 /// A trained model: a bias and one weight per feature name. The names are what the file shows;
-/// at load time each is hashed ([`feature_hash`]) so that scoring a claim looks weights up
+/// at load time each is hashed (`feature_hash`) so that scoring a claim looks weights up
 /// without building any string.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ConfidenceModel {
@@ -425,7 +425,7 @@ pub fn feature_name(key: &str, value: Option<&str>) -> String {
 }
 
 /// The features of one claim by name (for training and for `explain`; scoring uses
-/// [`visit_features`] and the hashed weights instead).
+/// `visit_features` and the hashed weights instead).
 pub fn features(
     c: &Claim,
     family: &str,

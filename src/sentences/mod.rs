@@ -7,7 +7,7 @@
 //!    sentence, and so does a line starting a Markdown list item or heading, or the line after a
 //!    heading. A single newline inside a paragraph is wrapped text and is read as a space.
 //! 2. Inside each block the UAX #29 sentence rules give candidate breaks (`unicode-segmentation`,
-//!    with a fast path for terminators in ASCII surroundings: see [`uax29`]).
+//!    with a fast path for terminators in ASCII surroundings: see `uax29`).
 //!    A sentence that opens with a mixed-case word ("mRNA levels fell") is a candidate too,
 //!    though UAX #29 never breaks before a lower-case letter.
 //! 3. Each candidate is then repaired with cheap, local checks of its surroundings: known
