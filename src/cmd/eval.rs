@@ -3,7 +3,7 @@
 use super::{escape, Format, Global, Table};
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::evaluate::{self as eval, gold, spans as spaneval};
+use hearsay::evaluate as eval;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -46,7 +46,7 @@ pub struct EvalArgs {
 /// Labelled data as read: single marked pairs (SemEval) or span-annotated documents.
 pub(super) enum Gold {
     Pairs(Vec<eval::GoldItem>),
-    Docs(Vec<gold::GoldDoc>),
+    Docs(Vec<eval::GoldDoc>),
 }
 
 /// Read a gold file (or BECAUSE folder) in the given format.
@@ -57,8 +57,8 @@ pub(super) fn load_gold(format: GoldFormat, path: &Path) -> Result<Gold> {
             eval::parse_semeval(&read(path)?).map_err(|e| anyhow::anyhow!("{name}: {e}"))?,
         ),
         GoldFormat::Because => Gold::Docs(read_because(path)?),
-        GoldFormat::Cnc => Gold::Docs(gold::parse_cnc(&name, &read(path)?)?),
-        GoldFormat::Jsonl => Gold::Docs(gold::parse_jsonl(&name, &read(path)?)?),
+        GoldFormat::Cnc => Gold::Docs(eval::parse_cnc(&name, &read(path)?)?),
+        GoldFormat::Jsonl => Gold::Docs(eval::parse_jsonl(&name, &read(path)?)?),
     })
 }
 
@@ -68,7 +68,7 @@ pub fn run(g: &Global, a: &EvalArgs) -> Result<ExitCode> {
         Gold::Pairs(items) => return run_semeval(g, a, &ex, &items),
         Gold::Docs(docs) => docs,
     };
-    let (report, errors) = spaneval::score_spans(&ex, &docs);
+    let (report, errors) = eval::score_spans(&ex, &docs);
     let mut out = std::io::stdout().lock();
     if g.format() == Format::Json {
         writeln!(out, "{}", serde_json::to_string(&report)?)?;
@@ -108,7 +108,7 @@ pub fn run(g: &Global, a: &EvalArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-fn pair(p: &spaneval::PairText) -> String {
+fn pair(p: &eval::PairText) -> String {
     let mut s = format!("{} -> {}", escape(&p.cause), escape(&p.effect));
     if let Some(c) = &p.cue {
         s.push_str(&format!("  [{}]", escape(c)));
@@ -121,7 +121,7 @@ pub(super) fn read(p: &Path) -> Result<String> {
 }
 
 /// A BECAUSE folder (every `.ann` with its `.txt`) or one document given by either file.
-pub(super) fn read_because(p: &Path) -> Result<Vec<gold::GoldDoc>> {
+pub(super) fn read_because(p: &Path) -> Result<Vec<eval::GoldDoc>> {
     let mut anns: Vec<PathBuf> = if p.is_dir() {
         std::fs::read_dir(p)
             .with_context(|| format!("cannot read {}", p.display()))?
@@ -142,7 +142,7 @@ pub(super) fn read_because(p: &Path) -> Result<Vec<gold::GoldDoc>> {
             .file_stem()
             .map(|s| s.to_string_lossy().into_owned())
             .unwrap_or_default();
-        docs.push(gold::parse_because(&id, &read(&txt)?, &read(&ann)?)?);
+        docs.push(eval::parse_because(&id, &read(&txt)?, &read(&ann)?)?);
     }
     Ok(docs)
 }
@@ -151,7 +151,7 @@ fn ratio3(x: f64) -> String {
     format!("{x:.3}")
 }
 
-fn print_span_report(out: &mut impl Write, r: &spaneval::SpanReport) -> Result<()> {
+fn print_span_report(out: &mut impl Write, r: &eval::SpanReport) -> Result<()> {
     if let Some(s) = &r.sentence_level {
         return summary_table(
             out,
@@ -228,7 +228,7 @@ fn print_span_report(out: &mut impl Write, r: &spaneval::SpanReport) -> Result<(
 fn summary_table(
     out: &mut impl Write,
     lead: &[(&str, String)],
-    prf: &spaneval::Prf,
+    prf: &eval::Prf,
     tail: &[(&str, String)],
 ) -> Result<()> {
     let counts = [
@@ -283,7 +283,7 @@ fn is_error(s: &&eval::Scored) -> bool {
 fn run_semeval(
     g: &Global,
     a: &EvalArgs,
-    ex: &hearsay::extract::claims::Extractor,
+    ex: &hearsay::extract::Extractor,
     items: &[eval::GoldItem],
 ) -> Result<ExitCode> {
     let (scores, scored) = eval::score_pairs(ex, items);
@@ -297,7 +297,7 @@ fn run_semeval(
         }
         return Ok(ExitCode::SUCCESS);
     }
-    let prf = spaneval::Prf {
+    let prf = eval::Prf {
         tp: scores.tp,
         fp: scores.fp,
         fn_: scores.fn_,

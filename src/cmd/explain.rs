@@ -3,8 +3,7 @@
 use super::{escape, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::extract::confidence::{self, Contribution};
-use hearsay::extract::pipeline;
+use hearsay::extract::{explain_confidence, sentence_attempts, tokenize, Contribution, Extractor};
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -42,8 +41,32 @@ const TOP_FEATURES: usize = 6;
 
 pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
     let ex = g.extractor()?;
-    let (claims, attempts) = pipeline::sentence_attempts(&ex, &a.text);
-    let rows: Vec<Explained> = attempts
+    let rows = explained(&ex, &a.text);
+    let mut out = std::io::stdout().lock();
+    if a.tags {
+        write_tags(&mut out, &ex, &a.text)?;
+    }
+    if g.format() == Format::Json {
+        for r in &rows {
+            serde_json::to_writer(&mut out, r)?;
+            out.write_all(b"\n")?;
+        }
+        return Ok(ExitCode::SUCCESS);
+    }
+    if rows.is_empty() {
+        write_no_match(&mut out, &ex, &a.text)?;
+        return Ok(ExitCode::SUCCESS);
+    }
+    for r in &rows {
+        write_row(&mut out, &ex, r)?;
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+/// Every cue attempt of the text, each claim scored as the pipeline scores it.
+fn explained(ex: &Extractor, text: &str) -> Vec<Explained> {
+    let (claims, attempts) = sentence_attempts(ex, text);
+    attempts
         .into_iter()
         .map(|t| {
             let (mut claim, rejected) = match t.result {
@@ -53,7 +76,7 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
             // Attempts are recorded before scoring: score each claim as the pipeline does.
             let mut confidence_features = Vec::new();
             if let Some(c) = claim.as_mut() {
-                let (p, why) = confidence::explain(&ex, c, &a.text, &claims);
+                let (p, why) = explain_confidence(&ex.confidence, &ex.cues, c, text, &claims);
                 c.confidence = p;
                 confidence_features = why;
             }
@@ -66,104 +89,103 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
                 confidence_features,
             }
         })
-        .collect();
-    let mut out = std::io::stdout().lock();
-    if a.tags {
-        for s in hearsay::sentences::split(&a.text) {
-            let sentence = &a.text[s.start..s.end];
-            let mut toks = hearsay::extract::claims::tokenize(sentence);
-            ex.tag_tokens(sentence, &mut toks);
-            let tagged: Vec<String> = toks
-                .iter()
-                .map(|t| {
-                    let tag = t.tag.map_or("?", |t| t.as_str());
-                    format!("{}/{tag}", &sentence[t.start..t.end])
-                })
-                .collect();
-            writeln!(out, "tags: {}", escape(&tagged.join(" ")))?;
-        }
+        .collect()
+}
+
+/// `--tags`: each sentence's words with the part-of-speech tags the span finder sees.
+fn write_tags(out: &mut impl Write, ex: &Extractor, text: &str) -> Result<()> {
+    for s in hearsay::sentences::split(text) {
+        let sentence = &text[s.start..s.end];
+        let mut toks = tokenize(sentence);
+        ex.tag_tokens(sentence, &mut toks);
+        let tagged: Vec<String> = toks
+            .iter()
+            .map(|t| {
+                let tag = t.tag.map_or("?", |t| t.as_str());
+                format!("{}/{tag}", &sentence[t.start..t.end])
+            })
+            .collect();
+        writeln!(out, "tags: {}", escape(&tagged.join(" ")))?;
     }
-    if g.format() == Format::Json {
-        for r in &rows {
-            serde_json::to_writer(&mut out, r)?;
-            out.write_all(b"\n")?;
-        }
-        return Ok(ExitCode::SUCCESS);
+    Ok(())
+}
+
+/// Why no cue matched: no cue word at all, or cue words no pattern matched around.
+fn write_no_match(out: &mut impl Write, ex: &Extractor, text: &str) -> Result<()> {
+    let hits = ex.cues.hits(text);
+    if hits.is_empty() {
+        writeln!(
+            out,
+            "no cue word found: none of the {} cue literals occurs in the text",
+            ex.cues.literals().len()
+        )?;
+    } else {
+        let words: Vec<&str> = hits
+            .iter()
+            .map(|h| &text[h.pos..])
+            .map(|s| {
+                s.split(|c: char| !c.is_alphanumeric() && c != '-')
+                    .next()
+                    .unwrap_or("")
+            })
+            .collect();
+        writeln!(
+            out,
+            "cue words found ({}), but no cue pattern matched around them",
+            escape(&words.join(", "))
+        )?;
     }
-    if rows.is_empty() {
-        let hits = ex.cues.hits(&a.text);
-        if hits.is_empty() {
+    Ok(())
+}
+
+/// One cue attempt as a table: the claim and its confidence, or why there is none; the notes.
+fn write_row(out: &mut impl Write, ex: &Extractor, r: &Explained) -> Result<()> {
+    writeln!(out, "cue {} matched \"{}\"", r.cue, escape(&r.matched))?;
+    match (&r.claim, &r.rejected) {
+        (Some(c), _) => {
             writeln!(
                 out,
-                "no cue word found: none of the {} cue literals occurs in the text",
-                ex.cues.literals().len()
+                "  cause:    \"{}\"  (key \"{}\")",
+                escape(&c.cause.text),
+                c.cause.key
             )?;
-        } else {
-            let words: Vec<&str> = hits
-                .iter()
-                .map(|h| &a.text[h.pos..])
-                .map(|s| {
-                    s.split(|c: char| !c.is_alphanumeric() && c != '-')
-                        .next()
-                        .unwrap_or("")
-                })
-                .collect();
             writeln!(
                 out,
-                "cue words found ({}), but no cue pattern matched around them",
-                escape(&words.join(", "))
+                "  effect:   \"{}\"  (key \"{}\")",
+                escape(&c.effect.text),
+                c.effect.key
             )?;
-        }
-        return Ok(ExitCode::SUCCESS);
-    }
-    for r in &rows {
-        writeln!(out, "cue {} matched \"{}\"", r.cue, escape(&r.matched))?;
-        match (&r.claim, &r.rejected) {
-            (Some(c), _) => {
-                writeln!(
-                    out,
-                    "  cause:    \"{}\"  (key \"{}\")",
-                    escape(&c.cause.text),
-                    c.cause.key
-                )?;
-                writeln!(
-                    out,
-                    "  effect:   \"{}\"  (key \"{}\")",
-                    escape(&c.effect.text),
-                    c.effect.key
-                )?;
-                writeln!(
-                    out,
-                    "  kind:     {}\n  polarity: {}\n  modality: {}",
-                    c.kind, c.polarity, c.modality
-                )?;
-                if c.cross_sentence {
-                    writeln!(out, "  (a slot was taken from the previous sentence)")?;
-                }
-                let top: Vec<String> = r
-                    .confidence_features
-                    .iter()
-                    .take(TOP_FEATURES)
-                    .map(|f| format!("{} {:+.2}", f.feature, f.weight))
-                    .collect();
-                writeln!(
-                    out,
-                    "  confidence: {:.3}  (bias {:+.2}; largest weights: {})",
-                    c.confidence,
-                    confidence::model().bias,
-                    if top.is_empty() {
-                        "none".to_string()
-                    } else {
-                        escape(&top.join(", "))
-                    }
-                )?;
+            writeln!(
+                out,
+                "  kind:     {}\n  polarity: {}\n  modality: {}",
+                c.kind, c.polarity, c.modality
+            )?;
+            if c.cross_sentence {
+                writeln!(out, "  (a slot was taken from the previous sentence)")?;
             }
-            (None, Some(why)) => writeln!(out, "  no claim: {}", escape(why))?,
-            (None, None) => {}
+            let top: Vec<String> = r
+                .confidence_features
+                .iter()
+                .take(TOP_FEATURES)
+                .map(|f| format!("{} {:+.2}", f.feature, f.weight))
+                .collect();
+            writeln!(
+                out,
+                "  confidence: {:.3}  (bias {:+.2}; largest weights: {})",
+                c.confidence,
+                ex.confidence.bias,
+                if top.is_empty() {
+                    "none".to_string()
+                } else {
+                    escape(&top.join(", "))
+                }
+            )?;
         }
-        for n in &r.notes {
-            writeln!(out, "  - {}", escape(n))?;
-        }
+        (None, Some(why)) => writeln!(out, "  no claim: {}", escape(why))?,
+        (None, None) => {}
     }
-    Ok(ExitCode::SUCCESS)
+    for n in &r.notes {
+        writeln!(out, "  - {}", escape(n))?;
+    }
+    Ok(())
 }

@@ -6,8 +6,7 @@ use super::{check_paths, ClaimFilter, Global};
 use anyhow::Result;
 use clap::Args;
 use hearsay::corpus::{self, Input};
-use hearsay::extract::claims::collapse;
-use hearsay::extract::pipeline;
+use hearsay::extract::{collapse, document_claims, document_sentences};
 use hearsay::store::doc_id;
 use hearsay::store::{FileRecord, FileStart, SentenceRecord};
 use rayon::prelude::*;
@@ -138,7 +137,7 @@ type Extracted = (Result<(String, usize, usize), String>, Vec<String>);
 
 /// What every input is extracted with.
 struct Job<'a> {
-    ex: &'a hearsay::extract::claims::Extractor,
+    ex: &'a hearsay::extract::Extractor,
     opts: &'a corpus::ReadOptions,
     sentences: bool,
     filter: &'a hearsay::graph::Filter,
@@ -171,7 +170,7 @@ impl Job<'_> {
     /// Append one document's claim records (and sentence records) to `o`.
     fn document(&self, d: &corpus::Document, o: &mut DocOut) {
         o.bytes += d.text.len();
-        for c in pipeline::document_claims(self.ex, d) {
+        for c in document_claims(self.ex, d) {
             if !self.filter.accepts_claim(&c) {
                 continue;
             }
@@ -180,7 +179,7 @@ impl Job<'_> {
         }
         if self.sentences {
             let id = doc_id(&d.path, d.record.as_deref());
-            for s in pipeline::document_sentences(d) {
+            for s in document_sentences(d) {
                 o.sentences += 1;
                 let rec = SentenceRecord {
                     sentence_of: id.clone(),

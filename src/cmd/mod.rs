@@ -29,7 +29,7 @@ mod train_tagger;
 
 use anyhow::{Context, Result};
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use hearsay::extract::claims::Extractor;
+use hearsay::extract::{Extractor, ExtractorError};
 use hearsay::graph::Filter;
 use hearsay::patterns::{self as pat, PatternSet};
 use hearsay::query::{self, Loaded};
@@ -226,15 +226,14 @@ impl Global {
 
     /// The extractor for a pattern set already loaded by [`Global::pattern_set`].
     pub fn extractor_for(&self, set: &PatternSet) -> Result<Extractor> {
-        // A pattern folder may carry its own confidence model (read with the set).
-        if let Some((f, text)) = &set.confidence {
-            let m = hearsay::extract::confidence::Model::parse(&f.display().to_string(), text)?;
-            // Already installed by an earlier call in this process: the same file.
-            let _ = hearsay::extract::confidence::install(m);
-        }
-        Extractor::new(set)
-            .map_err(|e| anyhow::anyhow!(e))
-            .context("cannot compile the cue patterns")
+        // A pattern folder may carry its own confidence model (read with the set); the
+        // extractor scores with it. Its error names the file, as the cue patterns' do.
+        Extractor::new(set).map_err(|e| match e {
+            ExtractorError::Confidence(e) => e.into(),
+            ExtractorError::Cues(e) => {
+                anyhow::anyhow!(e).context("cannot compile the cue patterns")
+            }
+        })
     }
 
     pub fn open_store(&self) -> Result<Store> {

@@ -3,8 +3,7 @@
 use super::{write_rows, Global};
 use anyhow::Result;
 use clap::{Args, Subcommand};
-use hearsay::extract::claims::Extractor;
-use hearsay::extract::pipeline;
+use hearsay::extract::{sentence_attempts, Extractor};
 use hearsay::patterns::CueSpec;
 use serde::Serialize;
 use std::io::Write;
@@ -53,7 +52,7 @@ pub fn check_examples(ex: &Extractor) -> (usize, Vec<ExampleFailure>) {
         };
         for e in &cue.examples {
             count += 1;
-            let (claims, _) = pipeline::sentence_attempts(ex, &e.text);
+            let (claims, _) = sentence_attempts(ex, &e.text);
             let (ck, ek) = (ex.normalizer.key(&e.cause), ex.normalizer.key(&e.effect));
             let mine: Vec<_> = claims.iter().filter(|c| c.cue == cue.id).collect();
             let Some(c) = mine
@@ -98,7 +97,7 @@ pub fn check_examples(ex: &Extractor) -> (usize, Vec<ExampleFailure>) {
         }
         for text in &cue.counter_examples {
             count += 1;
-            let (claims, _) = pipeline::sentence_attempts(ex, text);
+            let (claims, _) = sentence_attempts(ex, text);
             if let Some(c) = claims.iter().find(|c| c.cue == cue.id) {
                 fail(
                     text,

@@ -5,9 +5,11 @@ use super::eval::{load_gold, print_reliability, Gold, GoldFormat};
 use super::Global;
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
-use hearsay::evaluate::spans;
 use hearsay::evaluate::{self, Judged, Reliability};
-use hearsay::extract::confidence::{self, Example, TrainOptions};
+use hearsay::extract::{
+    confidence_features, is_held_out, train_confidence, unit_key, ConfidenceExample as Example,
+    ConfidenceTrainOptions as TrainOptions, Extractor, TaggedSentence,
+};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -64,13 +66,78 @@ fn format_name(f: GoldFormat) -> String {
 
 pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
     let ex = g.extractor()?;
-    let mut judged: Vec<(String, Judged)> = Vec::new();
+    let (judged, sources) = judge_all(&ex, &a.gold)?;
+    let (train, dev, dev_names) = examples(&ex, &judged, a.hold_out);
+    if train.is_empty() {
+        anyhow::bail!("no judged claims to train on");
+    }
+    let opts = TrainOptions {
+        l2: a.l2,
+        min_count: a.min_count,
+        ..TrainOptions::default()
+    };
+    let model = train_confidence(&train, opts);
+    let rel = Reliability::from_outcomes(
+        dev.iter()
+            .map(|e| (model.probability(&e.features), e.correct)),
+    );
+    let base = train.iter().filter(|e| e.correct).count() as f64 / train.len() as f64;
+    let baseline = Reliability::from_outcomes(dev.iter().map(|e| (base, e.correct)));
+    let mut per_set = Vec::new();
+    for s in a.gold.iter().map(|(f, _)| format_name(*f)) {
+        if per_set.iter().any(|(n, _)| n == &s) {
+            continue;
+        }
+        let r = Reliability::from_outcomes(
+            dev.iter()
+                .zip(&dev_names)
+                .filter(|(_, n)| **n == s)
+                .map(|(e, _)| (model.probability(&e.features), e.correct)),
+        );
+        per_set.push((s, r));
+    }
+    let held = HeldOut {
+        rel,
+        base,
+        baseline,
+        per_set,
+    };
+    let header = file_header(a, &sources, train.len(), dev.len(), &held);
+    std::fs::write(&a.out, model.to_toml(&header))
+        .with_context(|| format!("cannot write {}", a.out.display()))?;
+    let mut err = std::io::stderr().lock();
+    eprintln!(
+        "wrote {} ({} weights); {} training claims, {} held out",
+        a.out.display(),
+        model.weights.len(),
+        train.len(),
+        dev.len()
+    );
+    eprintln!("held-out reliability:");
+    print_reliability(&mut err, &held.rel)?;
+    eprintln!(
+        "a constant {base:.3} on the same claims: ECE {:.3}, Brier {:.3}",
+        held.baseline.expected_calibration_error, held.baseline.brier
+    );
+    for (n, r) in &held.per_set {
+        eprintln!(
+            "held out, {n}: {} claims ({} right), ECE {:.3}, Brier {:.3}",
+            r.claims, r.correct, r.expected_calibration_error, r.brier
+        );
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+/// The claims the extractor finds in each labelled data set, judged right or wrong and named by
+/// their data set; and a line per data set for the model file's header.
+fn judge_all(ex: &Extractor, gold: &[(GoldFormat, PathBuf)]) -> Result<(Vec<Named>, Vec<String>)> {
+    let mut judged: Vec<Named> = Vec::new();
     let mut sources = Vec::new();
-    for (format, path) in &a.gold {
+    for (format, path) in gold {
         let name = format_name(*format);
         let found = match load_gold(*format, path)? {
-            Gold::Pairs(items) => evaluate::score_pairs_judged(&ex, &items).2,
-            Gold::Docs(docs) => spans::score_spans_judged(&ex, &docs).2,
+            Gold::Pairs(items) => evaluate::score_pairs_judged(ex, &items).2,
+            Gold::Docs(docs) => evaluate::score_spans_judged(ex, &docs).2,
         };
         let file = path.file_name().map_or_else(
             || path.display().to_string(),
@@ -88,43 +155,57 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
         );
         judged.extend(found.into_iter().map(|j| (name.clone(), j)));
     }
+    Ok((judged, sources))
+}
+
+/// A judged claim with the name of its data set.
+type Named = (String, Judged);
+
+/// The judged claims as training examples, split into training and held-out ones (one sentence
+/// in `hold_out`); with the data set of each held-out example, for a reliability line per set.
+fn examples<'j>(
+    ex: &Extractor,
+    judged: &'j [Named],
+    hold_out: u8,
+) -> (Vec<Example>, Vec<Example>, Vec<&'j str>) {
     let (mut train, mut dev) = (Vec::new(), Vec::new());
-    // The dataset of each held-out example, for a reliability line per dataset.
     let mut dev_names: Vec<&str> = Vec::new();
-    for (name, j) in &judged {
-        let s = confidence::TaggedSentence::new(&j.sentence, j.claim.source.start);
-        let features = confidence::features(
-            &j.claim,
-            confidence::family(&ex, &j.claim.cue),
-            &s,
-            j.claims_here,
-        );
+    for (name, j) in judged {
+        let s = TaggedSentence::new(&j.sentence, j.claim.source.start);
+        let features =
+            confidence_features(&j.claim, ex.cues.family(&j.claim.cue), &s, j.claims_here);
         let e = Example {
             features,
             correct: j.correct,
         };
-        if confidence::is_held_out(&confidence::unit_key(name, &j.unit), a.hold_out) {
+        if is_held_out(&unit_key(name, &j.unit), hold_out) {
             dev.push(e);
             dev_names.push(name);
         } else {
             train.push(e);
         }
     }
-    if train.is_empty() {
-        anyhow::bail!("no judged claims to train on");
-    }
-    let opts = TrainOptions {
-        l2: a.l2,
-        min_count: a.min_count,
-        ..TrainOptions::default()
-    };
-    let model = confidence::train(&train, opts);
-    let rel = Reliability::from_outcomes(
-        dev.iter()
-            .map(|e| (model.probability(&e.features), e.correct)),
-    );
-    let base = train.iter().filter(|e| e.correct).count() as f64 / train.len() as f64;
-    let baseline = Reliability::from_outcomes(dev.iter().map(|e| (base, e.correct)));
+    (train, dev, dev_names)
+}
+
+/// How the trained model does on the held-out claims: overall, against a constant guess of the
+/// base rate, and per data set.
+struct HeldOut {
+    rel: Reliability,
+    base: f64,
+    baseline: Reliability,
+    per_set: Vec<(String, Reliability)>,
+}
+
+/// The comment lines at the top of the model file: what it is, the data, the options, and how it
+/// does on the held-out claims.
+fn file_header(
+    a: &TrainConfidenceArgs,
+    sources: &[String],
+    trained: usize,
+    held_out: usize,
+    h: &HeldOut,
+) -> Vec<String> {
     let mut header = vec![
         "hearsay claim confidence model: logistic regression over named features of a claim."
             .to_string(),
@@ -135,58 +216,20 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
         "patterns/confidence.NOTICE. Data:".to_string(),
     ];
     header.extend(sources.iter().map(|s| format!("  {s}")));
-    let mut per_set = Vec::new();
-    for s in a.gold.iter().map(|(f, _)| format_name(*f)) {
-        if per_set.iter().any(|(n, _)| n == &s) {
-            continue;
-        }
-        let r = Reliability::from_outcomes(
-            dev.iter()
-                .zip(&dev_names)
-                .filter(|(_, n)| **n == s)
-                .map(|(e, _)| (model.probability(&e.features), e.correct)),
-        );
-        per_set.push((s, r));
-    }
     header.push(format!(
         "Options: hold-out 1 in {}, l2 {}, min-count {}. {} training claims, {} held out.",
-        a.hold_out,
-        a.l2,
-        a.min_count,
-        train.len(),
-        dev.len()
+        a.hold_out, a.l2, a.min_count, trained, held_out
     ));
+    let (rel, baseline) = (&h.rel, &h.baseline);
     header.push(format!(
         "Held out: expected calibration error {:.3}, Brier score {:.3} (constant {:.3}: ECE {:.3}, Brier {:.3}).",
-        rel.expected_calibration_error, rel.brier, base, baseline.expected_calibration_error, baseline.brier
+        rel.expected_calibration_error, rel.brier, h.base, baseline.expected_calibration_error, baseline.brier
     ));
-    for (n, r) in &per_set {
+    for (n, r) in &h.per_set {
         header.push(format!(
             "  held out, {n}: {} claims ({} right), ECE {:.3}, Brier {:.3}.",
             r.claims, r.correct, r.expected_calibration_error, r.brier
         ));
     }
-    std::fs::write(&a.out, model.to_toml(&header))
-        .with_context(|| format!("cannot write {}", a.out.display()))?;
-    let mut err = std::io::stderr().lock();
-    eprintln!(
-        "wrote {} ({} weights); {} training claims, {} held out",
-        a.out.display(),
-        model.weights.len(),
-        train.len(),
-        dev.len()
-    );
-    eprintln!("held-out reliability:");
-    print_reliability(&mut err, &rel)?;
-    eprintln!(
-        "a constant {base:.3} on the same claims: ECE {:.3}, Brier {:.3}",
-        baseline.expected_calibration_error, baseline.brier
-    );
-    for (n, r) in &per_set {
-        eprintln!(
-            "held out, {n}: {} claims ({} right), ECE {:.3}, Brier {:.3}",
-            r.claims, r.correct, r.expected_calibration_error, r.brier
-        );
-    }
-    Ok(ExitCode::SUCCESS)
+    header
 }

@@ -3,7 +3,10 @@
 use super::Global;
 use anyhow::{Context, Result};
 use clap::Args;
-use hearsay::extract::tagger::{self, TrainOptions};
+use hearsay::extract::{
+    read_conllu, tagger_accuracy, train_tagger, Tagger, TaggerTrainOptions as TrainOptions,
+    TreebankSentence,
+};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -52,10 +55,10 @@ fn conllu_files(p: &Path) -> Result<Vec<PathBuf>> {
     Ok(v)
 }
 
-fn read(p: &Path) -> Result<Vec<tagger::TaggedSentence>> {
+fn read(p: &Path) -> Result<Vec<TreebankSentence>> {
     let text =
         std::fs::read_to_string(p).with_context(|| format!("cannot read {}", p.display()))?;
-    Ok(tagger::read_conllu(&text))
+    Ok(read_conllu(&text))
 }
 
 pub fn run(_g: &Global, a: &TrainTaggerArgs) -> Result<ExitCode> {
@@ -71,20 +74,20 @@ pub fn run(_g: &Global, a: &TrainTaggerArgs) -> Result<ExitCode> {
         iterations: a.iterations,
         ..TrainOptions::default()
     };
-    let t = tagger::train(&data, opts, |i, acc| {
+    let t = train_tagger(&data, opts, |i, acc| {
         eprintln!("iteration {i}: training accuracy {acc:.4}")
     });
     let model = t.to_model(a.prune);
     std::fs::write(&a.out, &model).with_context(|| format!("cannot write {}", a.out.display()))?;
     // Measure the model as saved (pruned and rounded), not the one in memory.
-    let saved = tagger::Tagger::from_model(&model)?;
+    let saved = Tagger::from_model(&model)?;
     let dev = read(&a.dev)?;
     eprintln!(
         "wrote {} ({} bytes); accuracy on {}: {:.4}",
         a.out.display(),
         model.len(),
         a.dev.display(),
-        tagger::accuracy(&saved, &dev)
+        tagger_accuracy(&saved, &dev)
     );
     Ok(ExitCode::SUCCESS)
 }

@@ -3,7 +3,7 @@
 //!
 //! Every format is read into the same shape, a [`GoldDoc`]: a text and the claims it states at
 //! byte offsets into that text. A document may be one sentence (CNC, JSON Lines) or a whole
-//! transcript (BECAUSE); scoring ([`crate::evaluate::spans`]) runs the ordinary pipeline over the text
+//! transcript (BECAUSE); scoring ([`crate::evaluate::score_spans`]) runs the ordinary pipeline over the text
 //! either way, so the sentence splitter is part of what is measured. SemEval-2010, whose gold
 //! marks short nominals rather than spans, keeps its own reader and rule in [`crate::evaluate`].
 //!

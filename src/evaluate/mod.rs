@@ -8,14 +8,26 @@
 //!
 //! Formats: `semeval2010` (SemEval-2010 Task 8: one numbered, quoted sentence with `<e1>`/`<e2>`
 //! tags, then the relation label, then a comment line).
+//!
+//! The public face: [`parse_semeval`] and [`score_pairs`] for marked pairs (this file);
+//! [`parse_because`], [`parse_cnc`] and [`parse_jsonl`] read span-annotated documents
+//! ([`GoldDoc`], `gold`), which [`score_spans`] scores by token overlap (`spans`). The
+//! `_judged` variants also return every claim judged right or wrong ([`Judged`]), which the
+//! [`Reliability`] table and confidence training use. [`reference`](mod@reference) scores a claim graph against
+//! a reference diagram; it stays a module of its own, as its `Scores` and `Prf` are not these.
 
-pub mod gold;
+mod gold;
 pub mod reference;
-pub mod spans;
+mod spans;
+
+pub use gold::{parse_because, parse_cnc, parse_jsonl, GoldClaim, GoldDoc, Sign};
+pub use spans::{
+    overlap_f1, score_spans, score_spans_judged, Accuracy, PairText, Prf, SentenceScores,
+    SpanError, SpanReport, MIN_OVERLAP_F1,
+};
 
 use crate::claim::{Claim, Kind};
-use crate::extract::claims::{tokenize, Extractor};
-use crate::extract::pipeline;
+use crate::extract::{sentence_attempts, tokenize, Extractor};
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -347,7 +359,7 @@ pub fn score_pairs_judged(
     let mut negatives = 0;
     let mut neg_hits = 0;
     for it in items {
-        let (claims, _) = pipeline::sentence_attempts(ex, &it.text);
+        let (claims, _) = sentence_attempts(ex, &it.text);
         let (a, b) = it.pair;
         let fwd = |c: &&Claim, x: GoldSpan, y: GoldSpan| matches(&it.text, c, x, y);
         let outcome;

@@ -1,8 +1,8 @@
-//! Scoring extraction against span-annotated gold data ([`crate::evaluate::gold`]).
+//! Scoring extraction against span-annotated gold data (read by `gold`: [`crate::evaluate::GoldDoc`]).
 //!
 //! The rule: a predicted claim *matches* a gold claim of the same document when the token-overlap
 //! F1 of its cause span with the gold cause is at least [`MIN_OVERLAP_F1`], and the same holds
-//! for the effects. Tokens are the words of [`crate::extract::claims::tokenize`] (punctuation left out),
+//! for the effects. Tokens are the words of [`crate::extract::tokenize`] (punctuation left out),
 //! compared by position. Each gold claim is matched to at most one prediction and each
 //! prediction to at most one gold claim; pairs are taken best first (by the smaller of the two
 //! F1 scores), so a greedy assignment is stable and cheap. Unmatched predictions are false
@@ -15,8 +15,7 @@ use crate::claim::{Claim, Kind};
 use crate::corpus::Document;
 use crate::evaluate::gold::{GoldClaim, GoldDoc};
 use crate::evaluate::{GoldSpan, Judged, Reliability};
-use crate::extract::claims::{tokenize, Extractor};
-use crate::extract::pipeline;
+use crate::extract::{collapse, document_claims, tokenize, Extractor};
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -166,7 +165,7 @@ fn doc_claims(ex: &Extractor, d: &GoldDoc) -> Vec<Claim> {
         page_starts: Vec::new(),
         lines_are_paragraphs: d.lines_are_paragraphs,
     };
-    pipeline::document_claims(ex, &doc)
+    document_claims(ex, &doc)
 }
 
 /// The sentence of a document around a byte offset.
@@ -174,8 +173,8 @@ fn sentence_at(text: &str, sentences: &[crate::sentences::SentenceSpan], at: usi
     sentences
         .iter()
         .find(|s| s.start <= at && at < s.end)
-        .map(|s| crate::extract::claims::collapse(&text[s.start..s.end]))
-        .unwrap_or_else(|| crate::extract::claims::collapse(text))
+        .map(|s| collapse(&text[s.start..s.end]))
+        .unwrap_or_else(|| collapse(text))
 }
 
 fn gold_text(text: &str, g: &GoldClaim) -> PairText {
@@ -228,144 +227,193 @@ pub fn score_spans_judged(
         let claims = doc_claims(ex, d);
         if let Some(gold_causal) = d.causal {
             sentence_labels = true;
-            sent.sentences += 1;
-            sent.causal += usize::from(gold_causal);
-            let predicted = claims.iter().any(|c| c.kind == Kind::Causal);
-            match (predicted, gold_causal) {
-                (true, true) => sent.prf.tp += 1,
-                (true, false) => sent.prf.fp += 1,
-                (false, true) => sent.prf.fn_ += 1,
-                (false, false) => {}
-            }
-            if predicted != gold_causal {
-                let pairs: Vec<PairText> = claims.iter().map(pred_text).collect();
-                errors.push(SpanError {
-                    id: d.id.clone(),
-                    outcome: if predicted {
-                        "false_positive"
-                    } else {
-                        "false_negative"
-                    },
-                    sentence: crate::extract::claims::collapse(&d.text),
-                    pair: pairs.first().cloned().unwrap_or(PairText {
-                        cause: String::new(),
-                        effect: String::new(),
-                        cue: None,
-                    }),
-                    nearby: pairs.into_iter().skip(1).collect(),
-                });
-            }
+            score_sentence_label(d, gold_causal, &claims, &mut sent, &mut errors);
             continue;
         }
         r.gold_claims += d.claims.len();
         r.predicted_claims += claims.len();
         let words = Words::new(&d.text);
-        // Claims carry document offsets, and a gold document is the whole text, so they agree.
-        let mut candidates: Vec<(f64, usize, usize)> = Vec::new();
-        for (gi, g) in d.claims.iter().enumerate() {
-            let gc = words.within(g.cause.start, g.cause.end);
-            let ge = words.within(g.effect.start, g.effect.end);
-            for (pi, c) in claims.iter().enumerate() {
-                let fc = overlap_f1(gc.clone(), words.within(c.cause.start, c.cause.end));
-                let fe = overlap_f1(ge.clone(), words.within(c.effect.start, c.effect.end));
-                let m = fc.min(fe);
-                if m >= MIN_OVERLAP_F1 {
-                    candidates.push((m, gi, pi));
-                }
-            }
-        }
-        candidates.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
-        let mut gold_match = vec![None; d.claims.len()];
-        let mut pred_used = vec![false; claims.len()];
-        for (_, gi, pi) in candidates {
-            if gold_match[gi].is_none() && !pred_used[pi] {
-                gold_match[gi] = Some(pi);
-                pred_used[pi] = true;
-            }
-        }
-        let spans = if errors_wanted_for(d) {
-            crate::sentences::split(&d.text)
-        } else {
-            Vec::new()
-        };
-        for (gi, g) in d.claims.iter().enumerate() {
-            match gold_match[gi] {
-                Some(pi) => {
-                    let c = &claims[pi];
-                    r.prf.tp += 1;
-                    bump(&mut r.by_cue, &c.cue, |p| p.tp += 1);
-                    bump(&mut r.by_kind, c.kind.as_str(), |p| p.tp += 1);
-                    bump(&mut r.by_polarity, c.polarity.as_str(), |p| p.tp += 1);
-                    bump(&mut r.by_modality, c.modality.as_str(), |p| p.tp += 1);
-                    if let Some(k) = g.kind {
-                        r.kind_accuracy.add(k == c.kind);
-                    }
-                    if let Some(p) = g.polarity {
-                        r.polarity_accuracy.add(p == c.polarity);
-                    }
-                    if let Some(m) = g.modality {
-                        r.modality_accuracy.add(m == c.modality);
-                    }
-                    if let Some(s) = g.sign {
-                        r.sign_accuracy.add(s.agrees(c.polarity));
-                    }
-                }
-                None => {
-                    r.prf.fn_ += 1;
-                    let kind = g.kind.map_or("unlabelled", Kind::as_str);
-                    bump(&mut r.by_kind, kind, |p| p.fn_ += 1);
-                    let pol = g.polarity.map_or("unlabelled", |p| p.as_str());
-                    bump(&mut r.by_polarity, pol, |p| p.fn_ += 1);
-                    let m = g.modality.map_or("unlabelled", |m| m.as_str());
-                    bump(&mut r.by_modality, m, |p| p.fn_ += 1);
-                    let at = g.cause.start.min(g.effect.start);
-                    let s = sentence_at(&d.text, &spans, at);
-                    let nearby = claims
-                        .iter()
-                        .filter(|c| c.source.start <= at && at < c.source.end)
-                        .map(pred_text)
-                        .collect();
-                    errors.push(SpanError {
-                        id: d.id.clone(),
-                        outcome: "false_negative",
-                        sentence: s,
-                        pair: gold_text(&d.text, g),
-                        nearby,
-                    });
-                }
-            }
-        }
+        let (gold_match, pred_used) = match_claims(&words, &d.claims, &claims);
+        count_gold(&mut r, d, &claims, &gold_match, &mut errors);
         for (pi, c) in claims.iter().enumerate() {
             let right = pred_used[pi] || reads_inside(&words, c, &d.claims);
             if right || touches_gold(&words, c, &d.claims) {
                 judged.push(Judged::new(c, &claims, &d.text, &d.id, right));
             }
-            if pred_used[pi] {
-                continue;
+            if !pred_used[pi] {
+                count_false_positive(&mut r, d, c, &mut errors);
             }
-            r.prf.fp += 1;
-            bump(&mut r.by_cue, &c.cue, |p| p.fp += 1);
-            bump(&mut r.by_kind, c.kind.as_str(), |p| p.fp += 1);
-            bump(&mut r.by_polarity, c.polarity.as_str(), |p| p.fp += 1);
-            bump(&mut r.by_modality, c.modality.as_str(), |p| p.fp += 1);
-            let nearby = d
-                .claims
-                .iter()
-                .filter(|g| {
-                    let at = g.cause.start.min(g.effect.start);
-                    c.source.start <= at && at < c.source.end
-                })
-                .map(|g| gold_text(&d.text, g))
-                .collect();
-            errors.push(SpanError {
-                id: d.id.clone(),
-                outcome: "false_positive",
-                sentence: c.sentence.clone(),
-                pair: pred_text(c),
-                nearby,
-            });
         }
     }
+    finish(&mut r);
+    if sentence_labels {
+        sent.prf.finish();
+        sent.accuracy = ratio(sent.sentences - sent.prf.fp - sent.prf.fn_, sent.sentences);
+        r.sentence_level = Some(sent);
+    }
+    r.reliability = Reliability::from_judged(&judged);
+    (r, errors, judged)
+}
+
+/// A document labelled only as a whole (causal or not): counted per sentence.
+fn score_sentence_label(
+    d: &GoldDoc,
+    gold_causal: bool,
+    claims: &[Claim],
+    sent: &mut SentenceScores,
+    errors: &mut Vec<SpanError>,
+) {
+    sent.sentences += 1;
+    sent.causal += usize::from(gold_causal);
+    let predicted = claims.iter().any(|c| c.kind == Kind::Causal);
+    match (predicted, gold_causal) {
+        (true, true) => sent.prf.tp += 1,
+        (true, false) => sent.prf.fp += 1,
+        (false, true) => sent.prf.fn_ += 1,
+        (false, false) => {}
+    }
+    if predicted != gold_causal {
+        let pairs: Vec<PairText> = claims.iter().map(pred_text).collect();
+        errors.push(SpanError {
+            id: d.id.clone(),
+            outcome: if predicted {
+                "false_positive"
+            } else {
+                "false_negative"
+            },
+            sentence: collapse(&d.text),
+            pair: pairs.first().cloned().unwrap_or(PairText {
+                cause: String::new(),
+                effect: String::new(),
+                cue: None,
+            }),
+            nearby: pairs.into_iter().skip(1).collect(),
+        });
+    }
+}
+
+/// Gold claims matched to predicted ones, one to one, best overlap first: per gold claim its
+/// match, and per predicted claim whether it was used. Claims carry document offsets, and a gold
+/// document is the whole text, so they agree.
+fn match_claims(
+    words: &Words,
+    gold: &[GoldClaim],
+    claims: &[Claim],
+) -> (Vec<Option<usize>>, Vec<bool>) {
+    let mut candidates: Vec<(f64, usize, usize)> = Vec::new();
+    for (gi, g) in gold.iter().enumerate() {
+        let gc = words.within(g.cause.start, g.cause.end);
+        let ge = words.within(g.effect.start, g.effect.end);
+        for (pi, c) in claims.iter().enumerate() {
+            let fc = overlap_f1(gc.clone(), words.within(c.cause.start, c.cause.end));
+            let fe = overlap_f1(ge.clone(), words.within(c.effect.start, c.effect.end));
+            let m = fc.min(fe);
+            if m >= MIN_OVERLAP_F1 {
+                candidates.push((m, gi, pi));
+            }
+        }
+    }
+    candidates.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
+    let mut gold_match = vec![None; gold.len()];
+    let mut pred_used = vec![false; claims.len()];
+    for (_, gi, pi) in candidates {
+        if gold_match[gi].is_none() && !pred_used[pi] {
+            gold_match[gi] = Some(pi);
+            pred_used[pi] = true;
+        }
+    }
+    (gold_match, pred_used)
+}
+
+/// Count each gold claim of `d`: a true positive with its labels compared, or a false negative.
+fn count_gold(
+    r: &mut SpanReport,
+    d: &GoldDoc,
+    claims: &[Claim],
+    gold_match: &[Option<usize>],
+    errors: &mut Vec<SpanError>,
+) {
+    let spans = if errors_wanted_for(d) {
+        crate::sentences::split(&d.text)
+    } else {
+        Vec::new()
+    };
+    for (gi, g) in d.claims.iter().enumerate() {
+        match gold_match[gi] {
+            Some(pi) => {
+                let c = &claims[pi];
+                r.prf.tp += 1;
+                bump(&mut r.by_cue, &c.cue, |p| p.tp += 1);
+                bump(&mut r.by_kind, c.kind.as_str(), |p| p.tp += 1);
+                bump(&mut r.by_polarity, c.polarity.as_str(), |p| p.tp += 1);
+                bump(&mut r.by_modality, c.modality.as_str(), |p| p.tp += 1);
+                if let Some(k) = g.kind {
+                    r.kind_accuracy.add(k == c.kind);
+                }
+                if let Some(p) = g.polarity {
+                    r.polarity_accuracy.add(p == c.polarity);
+                }
+                if let Some(m) = g.modality {
+                    r.modality_accuracy.add(m == c.modality);
+                }
+                if let Some(s) = g.sign {
+                    r.sign_accuracy.add(s.agrees(c.polarity));
+                }
+            }
+            None => {
+                r.prf.fn_ += 1;
+                let kind = g.kind.map_or("unlabelled", Kind::as_str);
+                bump(&mut r.by_kind, kind, |p| p.fn_ += 1);
+                let pol = g.polarity.map_or("unlabelled", |p| p.as_str());
+                bump(&mut r.by_polarity, pol, |p| p.fn_ += 1);
+                let m = g.modality.map_or("unlabelled", |m| m.as_str());
+                bump(&mut r.by_modality, m, |p| p.fn_ += 1);
+                let at = g.cause.start.min(g.effect.start);
+                let s = sentence_at(&d.text, &spans, at);
+                let nearby = claims
+                    .iter()
+                    .filter(|c| c.source.start <= at && at < c.source.end)
+                    .map(pred_text)
+                    .collect();
+                errors.push(SpanError {
+                    id: d.id.clone(),
+                    outcome: "false_negative",
+                    sentence: s,
+                    pair: gold_text(&d.text, g),
+                    nearby,
+                });
+            }
+        }
+    }
+}
+
+/// Count a predicted claim that matched no gold claim of `d`.
+fn count_false_positive(r: &mut SpanReport, d: &GoldDoc, c: &Claim, errors: &mut Vec<SpanError>) {
+    r.prf.fp += 1;
+    bump(&mut r.by_cue, &c.cue, |p| p.fp += 1);
+    bump(&mut r.by_kind, c.kind.as_str(), |p| p.fp += 1);
+    bump(&mut r.by_polarity, c.polarity.as_str(), |p| p.fp += 1);
+    bump(&mut r.by_modality, c.modality.as_str(), |p| p.fp += 1);
+    let nearby = d
+        .claims
+        .iter()
+        .filter(|g| {
+            let at = g.cause.start.min(g.effect.start);
+            c.source.start <= at && at < c.source.end
+        })
+        .map(|g| gold_text(&d.text, g))
+        .collect();
+    errors.push(SpanError {
+        id: d.id.clone(),
+        outcome: "false_positive",
+        sentence: c.sentence.clone(),
+        pair: pred_text(c),
+        nearby,
+    });
+}
+
+/// Turn the span report's counts into rates.
+fn finish(r: &mut SpanReport) {
     r.prf.finish();
     for m in [
         &mut r.by_cue,
@@ -383,13 +431,6 @@ pub fn score_spans_judged(
     ] {
         a.finish();
     }
-    if sentence_labels {
-        sent.prf.finish();
-        sent.accuracy = ratio(sent.sentences - sent.prf.fp - sent.prf.fn_, sent.sentences);
-        r.sentence_level = Some(sent);
-    }
-    r.reliability = Reliability::from_judged(&judged);
-    (r, errors, judged)
 }
 
 /// Do the cause and effect of `c` lie, word for word, inside the cause and the effect of one gold

@@ -10,29 +10,32 @@
 //!
 //! Features are computed from the claim and the raw text of its sentence only, so the model is
 //! trained (`hearsay train-confidence`, see [`train`]) on exactly what the pipeline sees. The
-//! sentence is tagged once with the built-in tagger ([`crate::extract::tagger::Tagger::load_builtin`]) and
+//! sentence is tagged once with the built-in tagger ([`crate::extract::Tagger::load_builtin`]) and
 //! only when it gave a claim, which keeps the cost to a small share of extraction.
 //!
-//! The model in force is the built-in one unless [`install`] was called first (the command line
-//! does so when `--patterns DIR` holds a `confidence.toml`).
+//! The model is a value: each extractor owns the one of its pattern set
+//! ([`ConfidenceModel::of`]: the folder's own `confidence.toml`, else the built-in one), and the
+//! pipeline scores a sentence's claims with it ([`score_sentence`]) right after extracting them.
+//! This module reads tokens, tags and the cue set's families, never the claims stage itself.
 
 use crate::claim::Claim;
-use crate::extract::claims::{tokenize, Extractor, Token};
+use crate::extract::cues::CueSet;
 use crate::extract::tagger::{Tag, Tagger};
+use crate::extract::tokens::{tokenize, Token};
+use crate::patterns::PatternSet;
 use rustc_hash::FxHashMap;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::hash::Hasher as _;
-use std::sync::OnceLock;
 
 /// The header every model file carries.
 pub const FORMAT: &str = "hearsay-confidence 1";
 
 /// A trained model: a bias and one weight per feature name. The names are what the file shows;
-/// at load time each is hashed ([`feature_hash`]) so that scoring a claim looks weights up
+/// at load time each is hashed (`feature_hash`) so that scoring a claim looks weights up
 /// without building any string.
 #[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct Model {
+pub struct ConfidenceModel {
     pub format: String,
     pub bias: f64,
     pub weights: BTreeMap<String, f64>,
@@ -40,8 +43,8 @@ pub struct Model {
     by_hash: FxHashMap<u64, f64>,
 }
 
-impl PartialEq for Model {
-    fn eq(&self, other: &Model) -> bool {
+impl PartialEq for ConfidenceModel {
+    fn eq(&self, other: &ConfidenceModel) -> bool {
         self.format == other.format && self.bias == other.bias && self.weights == other.weights
     }
 }
@@ -49,7 +52,7 @@ impl PartialEq for Model {
 /// Errors from reading a model file.
 #[derive(Debug, thiserror::Error)]
 #[error("{path}: {message}")]
-pub struct ModelError {
+pub struct ConfidenceError {
     pub path: String,
     pub message: String,
 }
@@ -74,10 +77,10 @@ fn name_hash(name: &str) -> u64 {
     }
 }
 
-impl Model {
+impl ConfidenceModel {
     /// A model from its bias and named weights.
-    pub fn new(bias: f64, weights: BTreeMap<String, f64>) -> Model {
-        let mut m = Model {
+    pub fn new(bias: f64, weights: BTreeMap<String, f64>) -> ConfidenceModel {
+        let mut m = ConfidenceModel {
             format: FORMAT.to_string(),
             bias,
             weights,
@@ -96,12 +99,12 @@ impl Model {
     }
 
     /// Parse a model file; `path` names it in errors.
-    pub fn parse(path: &str, text: &str) -> Result<Model, ModelError> {
-        let err = |message: String| ModelError {
+    pub fn parse(path: &str, text: &str) -> Result<ConfidenceModel, ConfidenceError> {
+        let err = |message: String| ConfidenceError {
             path: path.to_string(),
             message,
         };
-        let mut m: Model = toml::from_str(text).map_err(|e| err(e.to_string()))?;
+        let mut m: ConfidenceModel = toml::from_str(text).map_err(|e| err(e.to_string()))?;
         if m.format != FORMAT {
             return Err(err(format!(
                 "format is \"{}\", expected \"{FORMAT}\"",
@@ -118,16 +121,16 @@ impl Model {
         Ok(m)
     }
 
-    /// The model shipped in `patterns/confidence.toml`, parsed once.
-    pub fn builtin() -> &'static Model {
-        static M: OnceLock<Model> = OnceLock::new();
-        M.get_or_init(|| {
-            Model::parse(
+    /// The model of a pattern set: the folder's own `confidence.toml` when it has one, else the
+    /// one shipped in `patterns/confidence.toml`.
+    pub fn of(set: &PatternSet) -> Result<ConfidenceModel, ConfidenceError> {
+        match &set.confidence {
+            Some((path, text)) => ConfidenceModel::parse(&path.display().to_string(), text),
+            None => ConfidenceModel::parse(
                 "patterns/confidence.toml",
                 crate::patterns::BUILTIN_CONFIDENCE,
-            )
-            .expect("the built-in confidence model is valid (checked by a unit test)")
-        })
+            ),
+        }
     }
 
     /// The probability for a set of named features.
@@ -141,7 +144,7 @@ impl Model {
     }
 
     /// The probability for one claim of a tagged sentence, by hashed look-up (the same value as
-    /// [`Model::probability`] of [`features`]).
+    /// [`ConfidenceModel::probability`] of [`features`]).
     pub fn score(
         &self,
         c: &Claim,
@@ -187,19 +190,6 @@ fn round4(x: f64) -> f64 {
 
 fn sigmoid(z: f64) -> f64 {
     1.0 / (1.0 + (-z).exp())
-}
-
-static INSTALLED: OnceLock<Model> = OnceLock::new();
-
-/// Use `m` instead of the built-in model for the rest of the process. Fails (returning `m`) when
-/// a model is already in force.
-pub fn install(m: Model) -> Result<(), Model> {
-    INSTALLED.set(m)
-}
-
-/// The model in force.
-pub fn model() -> &'static Model {
-    INSTALLED.get().unwrap_or_else(|| Model::builtin())
 }
 
 /// A coarse word class for features: few values, so that each is seen often.
@@ -435,7 +425,7 @@ pub fn feature_name(key: &str, value: Option<&str>) -> String {
 }
 
 /// The features of one claim by name (for training and for `explain`; scoring uses
-/// [`visit_features`] and the hashed weights instead).
+/// `visit_features` and the hashed weights instead).
 pub fn features(
     c: &Claim,
     family: &str,
@@ -449,25 +439,22 @@ pub fn features(
     out
 }
 
-/// The family of a cue id, from the extractor's cue set ("" when unknown).
-pub fn family<'e>(ex: &'e Extractor, cue: &str) -> &'e str {
-    ex.cues
-        .cues
-        .iter()
-        .find(|c| c.spec.id == cue)
-        .map_or("", |c| c.spec.family.as_str())
-}
-
-/// Set the confidence of the claims of one sentence with the model in force.
-pub fn score_sentence(ex: &Extractor, claims: &mut [Claim], sentence: &str, offset: usize) {
+/// Set the confidence of the claims of one sentence with model `m`; `cues` is the cue set that
+/// found them (for each cue's family).
+pub fn score_sentence(
+    m: &ConfidenceModel,
+    cues: &CueSet,
+    claims: &mut [Claim],
+    sentence: &str,
+    offset: usize,
+) {
     if claims.is_empty() {
         return;
     }
-    let m = model();
     let s = TaggedSentence::new(sentence, offset);
     let n = claims.len();
     for c in claims.iter_mut() {
-        let p = m.score(c, family(ex, &c.cue), &s, n);
+        let p = m.score(c, cues.family(&c.cue), &s, n);
         c.confidence = (p * 1000.0).round() / 1000.0;
     }
 }
@@ -479,21 +466,22 @@ pub struct Contribution {
     pub weight: f64,
 }
 
-/// How the model in force scored one claim, for `explain`: the confidence the pipeline gives it
-/// and the features that carry a weight, largest effect first. `doc_text` is the text the claim's
-/// offsets point into; `all` the claims found in it (for the claims-per-sentence feature).
+/// How model `m` scored one claim, for `explain`: the confidence the pipeline gives it and the
+/// features that carry a weight, largest effect first. `cues` is the cue set that found it,
+/// `doc_text` the text the claim's offsets point into, `all` the claims found in it (for the
+/// claims-per-sentence feature).
 pub fn explain(
-    ex: &Extractor,
+    m: &ConfidenceModel,
+    cues: &CueSet,
     c: &Claim,
     doc_text: &str,
     all: &[Claim],
 ) -> (f64, Vec<Contribution>) {
-    let m = model();
     let (a, b) = (c.source.start, c.source.end);
     let sentence = doc_text.get(a..b).unwrap_or("");
     let s = TaggedSentence::new(sentence, a);
     let here = all.iter().filter(|o| o.source.start == a).count().max(1);
-    let names = features(c, family(ex, &c.cue), &s, here);
+    let names = features(c, cues.family(&c.cue), &s, here);
     let p = (m.probability(&names) * 1000.0).round() / 1000.0;
     let mut out: Vec<Contribution> = names
         .into_iter()
@@ -543,7 +531,7 @@ impl Default for TrainOptions {
 
 /// Fit a logistic regression with L2 by Newton's method (iteratively reweighted least squares).
 /// Deterministic: features are numbered in name order and examples summed in the given order.
-pub fn train(examples: &[Example], opts: TrainOptions) -> Model {
+pub fn train(examples: &[Example], opts: TrainOptions) -> ConfidenceModel {
     let mut counts: BTreeMap<&str, usize> = BTreeMap::new();
     for e in examples {
         for f in &e.features {
@@ -603,7 +591,7 @@ pub fn train(examples: &[Example], opts: TrainOptions) -> Model {
             break;
         }
     }
-    Model::new(
+    ConfidenceModel::new(
         round4(w[0]),
         names
             .iter()
@@ -667,7 +655,7 @@ mod tests {
 
     #[test]
     fn builtin_model_parses() {
-        let m = Model::builtin();
+        let m = ConfidenceModel::of(&PatternSet::builtin().unwrap()).unwrap();
         assert_eq!(m.format, FORMAT);
     }
 
@@ -689,14 +677,14 @@ mod tests {
 
     #[test]
     fn hashed_scoring_equals_scoring_by_name() {
-        let ex = Extractor::new(&crate::patterns::PatternSet::builtin().unwrap()).unwrap();
+        let ex = crate::extract::Extractor::new(&PatternSet::builtin().unwrap()).unwrap();
         let text = "Heavy rain probably causes severe flooding in the valley, officials said.";
         let (claims, _) = crate::extract::pipeline::sentence_attempts(&ex, text);
         assert!(!claims.is_empty());
-        let m = Model::builtin();
+        let m = &ex.confidence;
         let s = TaggedSentence::new(text, 0);
         for c in &claims {
-            let fam = family(&ex, &c.cue);
+            let fam = ex.cues.family(&c.cue);
             let names = features(c, fam, &s, claims.len());
             assert!(names.iter().any(|n| n.starts_with("cue=")), "{names:?}");
             let by_name = m.probability(&names);
@@ -730,13 +718,14 @@ mod tests {
         let pb = m.probability(&["bad"]);
         assert!(pg > 0.8 && pb < 0.2, "{pg} {pb}");
         assert_eq!(m, train(&ex, TrainOptions::default()));
-        let back = Model::parse("t", &m.to_toml(&["test".into()])).unwrap();
+        let back = ConfidenceModel::parse("t", &m.to_toml(&["test".into()])).unwrap();
         assert_eq!(back, m);
     }
 
     #[test]
     fn bad_model_files_name_the_file() {
-        let e = Model::parse("x.toml", "format = \"other\"\nbias = 0\n[weights]\n").unwrap_err();
+        let e = ConfidenceModel::parse("x.toml", "format = \"other\"\nbias = 0\n[weights]\n")
+            .unwrap_err();
         assert!(e.to_string().starts_with("x.toml:"), "{e}");
     }
 }

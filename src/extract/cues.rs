@@ -188,8 +188,27 @@ fn lean_regex(re: &str) -> Result<MetaRegex, String> {
         .map_err(|e| e.to_string())
 }
 
-fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, String> {
-    let toks = &spec.tokens;
+/// A cue's pattern read into a regex: where its literals and slots are.
+struct Layout {
+    /// The regex, inner slots that run to the next literal written as [`BOUNDED_SLOT`].
+    re: String,
+    /// Capture-group indexes of the bounded inner slots.
+    bounded: Vec<usize>,
+    left: Option<Role>,
+    right: Option<Role>,
+    inner: Vec<Role>,
+    /// Token indexes of the first and last literal (the last moved past "SLOT , SLOT").
+    first: usize,
+    last: usize,
+    /// A slot glued to the first literal ("CAUSE -induced") is captured inside the match.
+    glued_first: bool,
+}
+
+/// Where an inner slot that runs to the next literal stands in [`Layout::re`]: bounded in the
+/// exact regex, not in the fast one.
+const BOUNDED_SLOT: &str = "\u{0}slot\u{0}";
+
+fn layout(toks: &[PatternToken]) -> Result<Layout, String> {
     let is_lit =
         |t: &PatternToken| matches!(t, PatternToken::Word { .. } | PatternToken::Glued { .. });
     let first = toks.iter().position(is_lit).ok_or("no literal")?;
@@ -211,11 +230,8 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
     let mut left = None;
     let mut right = None;
     let mut inner = Vec::new();
-    // A slot glued to the first literal ("CAUSE -induced") is captured inside the match.
     let glued_first = matches!(toks[first], PatternToken::Glued { .. });
     let mut re = String::from("(?i)");
-    // Inner slots that run to the next literal: bounded in the exact regex, not in the fast one.
-    const BOUNDED_SLOT: &str = "\u{0}slot\u{0}";
     let mut bounded = Vec::new();
     for (i, t) in toks.iter().enumerate() {
         match t {
@@ -269,27 +285,69 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
     if required_punct.is_none() {
         re.push_str("\\b");
     }
+    Ok(Layout {
+        re,
+        bounded,
+        left,
+        right,
+        inner,
+        first,
+        last,
+        glued_first,
+    })
+}
+
+/// The forms of the literal the prefilter looks for. The rarest literal makes the fewest
+/// prefilter hits. Function words ("with", "from", "that", "between") are the commonest words of
+/// any English text, so any other word beats them; among the rest the longest is taken, as
+/// longer words are rarer.
+fn anchor_forms(toks: &[PatternToken], common: &dyn Fn(&str) -> bool) -> Vec<String> {
+    toks.iter()
+        .filter_map(|t| match t {
+            PatternToken::Word { forms, .. } | PatternToken::Glued { forms } => Some(forms),
+            _ => None,
+        })
+        .max_by_key(|forms| {
+            let shortest = forms.iter().map(|f| f.len()).min().unwrap_or(0);
+            (!forms.iter().any(|f| common(f)), shortest)
+        })
+        .cloned()
+        .unwrap_or_default()
+}
+
+/// A reject rule as a regex anchored at the match's edge: its start (`after`) or its end.
+fn reject_regex(r: &Option<String>, after: bool) -> Result<Option<Regex>, String> {
+    r.as_ref()
+        .map(|s| {
+            let full = if after {
+                format!("(?i)^(?:{s})")
+            } else {
+                format!("(?i)(?:{s})$")
+            };
+            Regex::new(&full).map_err(|e| e.to_string())
+        })
+        .transpose()
+}
+
+fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, String> {
+    let toks = &spec.tokens;
+    let Layout {
+        re,
+        bounded,
+        left,
+        right,
+        inner,
+        first,
+        last,
+        glued_first,
+    } = layout(toks)?;
     let regex = lean_regex(&re.replace(BOUNDED_SLOT, "\\S.*?"))
         .map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
     let exact = (!bounded.is_empty()).then(|| Exact {
         pattern: re.replace(BOUNDED_SLOT, &format!("\\S.{{0,{}}}?", SLOT_CHARS - 1)),
         regex: std::sync::OnceLock::new(),
     });
-    let anchor_forms = toks
-        .iter()
-        .filter_map(|t| match t {
-            PatternToken::Word { forms, .. } | PatternToken::Glued { forms } => Some(forms),
-            _ => None,
-        })
-        // The rarest literal makes the fewest prefilter hits. Function words ("with", "from",
-        // "that", "between") are the commonest words of any English text, so any other word
-        // beats them; among the rest the longest is taken, as longer words are rarer.
-        .max_by_key(|forms| {
-            let shortest = forms.iter().map(|f| f.len()).min().unwrap_or(0);
-            (!forms.iter().any(|f| common(f)), shortest)
-        })
-        .cloned()
-        .unwrap_or_default();
+    let anchor_forms = anchor_forms(toks, common);
     let glued_anchor = toks
         .iter()
         .any(|t| matches!(t, PatternToken::Glued { forms } if *forms == anchor_forms));
@@ -303,18 +361,6 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
             }
         })
         .collect();
-    let anchored = |r: &Option<String>, after: bool| -> Result<Option<Regex>, String> {
-        r.as_ref()
-            .map(|s| {
-                let full = if after {
-                    format!("(?i)^(?:{s})")
-                } else {
-                    format!("(?i)(?:{s})$")
-                };
-                Regex::new(&full).map_err(|e| e.to_string())
-            })
-            .transpose()
-    };
     let verb_first = matches!(&toks[first], PatternToken::Word { verb: true, .. });
     let glued_last = matches!(toks[last], PatternToken::Glued { .. });
     let anchor_token = toks.iter().position(|t| match t {
@@ -332,8 +378,8 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
         group_names,
         glued_last,
         verb_first,
-        reject_after: anchored(&spec.reject_after, true)?,
-        reject_before: anchored(&spec.reject_before, false)?,
+        reject_after: reject_regex(&spec.reject_after, true)?,
+        reject_before: reject_regex(&spec.reject_before, false)?,
         spec,
         regex,
         exact,
@@ -431,6 +477,14 @@ impl CueSet {
             anchors,
             id: NEXT_ID.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         })
+    }
+
+    /// The family of the cue with id `cue` ("" when there is none), for confidence features.
+    pub fn family(&self, cue: &str) -> &str {
+        self.cues
+            .iter()
+            .find(|c| c.spec.id == cue)
+            .map_or("", |c| c.spec.family.as_str())
     }
 
     /// The prefilter's literal strings (one per line in `patterns list --literals`), without the

@@ -1,4 +1,4 @@
-//! The per-document pipeline: document → sentences → cue matches → claims.
+//! The per-document pipeline: document → sentences → cue matches → claims → confidence.
 //!
 //! This is the one place where the stages are chained, so `scan`, `extract`, `merge` and `eval`
 //! all produce the same claims from the same text. Its shape follows the cost model: the cue
@@ -9,6 +9,7 @@
 use crate::claim::Claim;
 use crate::corpus::Document;
 use crate::extract::claims::{Attempt, Extractor, Origin, SentenceRef};
+use crate::extract::confidence;
 use crate::sentences::{self, SentenceSpan};
 
 /// The largest block around a hit that is split into sentences, on each side of it. Paragraphs
@@ -110,8 +111,9 @@ fn run_capped(
             };
             let before = out.len();
             ex.extract(sent, prev, &origin, &candidates, out, trace.as_deref_mut());
-            crate::extract::confidence::score_sentence(
-                ex,
+            confidence::score_sentence(
+                &ex.confidence,
+                &ex.cues,
                 &mut out[before..],
                 sent.text,
                 sent.offset,

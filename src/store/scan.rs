@@ -15,8 +15,7 @@ use super::rows::doc_id;
 use super::writer::StoreWriter;
 use crate::corpus::{self, Document, Input, ReadOptions, Skipped};
 use crate::error::{ScanError, StoreError};
-use crate::extract::claims::Extractor;
-use crate::extract::pipeline;
+use crate::extract::{document_claims, document_sentences, Extractor};
 use crate::patterns::PatternSet;
 use rayon::prelude::*;
 use std::collections::BTreeSet;
@@ -388,10 +387,10 @@ impl<V: ScanEvents> FileRead<'_, V> {
     /// Take one document through the pipeline into `result`: its claims, and its sentences for
     /// the index.
     fn take(&self, d: &Document, result: &mut FileResult) {
-        result.add_claims(pipeline::document_claims(self.ex, d));
+        result.add_claims(document_claims(self.ex, d));
         let id = doc_id(&d.path, d.record.as_deref());
         // Index text only (not stored): whitespace need not be collapsed.
-        for s in pipeline::document_sentences(d) {
+        for s in document_sentences(d) {
             result.add_sentence(
                 id.clone(),
                 s.line as u64,

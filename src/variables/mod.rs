@@ -5,6 +5,10 @@
 //! keys, so an alias file written in surface forms works through the same normalisation. Keys are
 //! computed at extraction time and stored in the claim; aliases are applied when the graph is built,
 //! so changing an alias file needs no rescan.
+//!
+//! The public face: [`Normalizer`] (span text → key), [`Aliases`] (key → key, applied when the
+//! graph is built), [`stem`] and [`StemCache`] (the one stemmer, shared with the sentence index)
+//! and [`dropped_words`] (the words keys leave out, which the index leaves out too).
 
 use crate::patterns::Lexicon;
 use compact_str::CompactString;

@@ -3,8 +3,7 @@
 
 use crate::common::*;
 use hearsay::evaluate::{self as eval, Reliability};
-use hearsay::extract::claims::Extractor;
-use hearsay::extract::confidence;
+use hearsay::extract::{is_held_out, unit_key, ConfidenceModel, Extractor};
 use hearsay::patterns::PatternSet;
 
 fn scanned_demo() -> tempfile::TempDir {
@@ -19,7 +18,7 @@ fn scanned_demo() -> tempfile::TempDir {
 fn held_out(name: &str, judged: Vec<eval::Judged>) -> Vec<eval::Judged> {
     judged
         .into_iter()
-        .filter(|j| confidence::is_held_out(&confidence::unit_key(name, &j.unit), 5))
+        .filter(|j| is_held_out(&unit_key(name, &j.unit), 5))
         .collect()
 }
 
@@ -41,11 +40,10 @@ fn confidence_is_calibrated_on_held_out_sentences() {
     let items = eval::parse_semeval(&std::fs::read_to_string(sem).unwrap()).unwrap();
     let mut held = held_out("semeval2010", eval::score_pairs_judged(&ex, &items).2);
     let p = cnc.display().to_string();
-    let docs =
-        hearsay::evaluate::gold::parse_cnc(&p, &std::fs::read_to_string(&cnc).unwrap()).unwrap();
+    let docs = hearsay::evaluate::parse_cnc(&p, &std::fs::read_to_string(&cnc).unwrap()).unwrap();
     held.extend(held_out(
         "cnc",
-        hearsay::evaluate::spans::score_spans_judged(&ex, &docs).2,
+        hearsay::evaluate::score_spans_judged(&ex, &docs).2,
     ));
     let r = Reliability::from_judged(&held);
     let base = r.correct as f64 / r.claims.max(1) as f64;
@@ -217,7 +215,7 @@ fn train_confidence_is_reproducible() {
         files.push(std::fs::read_to_string(&out).unwrap());
     }
     assert_eq!(files[0], files[1]);
-    let m = confidence::Model::parse("a.toml", &files[0]).unwrap();
+    let m = ConfidenceModel::parse("a.toml", &files[0]).unwrap();
     assert!(m.weights.len() > 5, "{files:?}");
     // The trained file works as a pattern folder's override.
     let pat = dir.path().join("patterns");
@@ -313,4 +311,67 @@ fn schema_one_store_asks_for_a_rescan() {
             "{err}"
         );
     }
+}
+
+/// The model a pattern folder carries is the one its claims are scored with (the extractor owns
+/// its model; nothing is installed for the process): a copy of the shipped folder scores the demo
+/// corpus exactly as the built-in patterns do, and a model that is only a bias gives every claim
+/// the confidence of that bias, in `extract` and in `explain`.
+#[test]
+fn a_pattern_folders_own_model_scores_its_claims() {
+    let dir = tempfile::tempdir().unwrap();
+    let pat = dir.path().join("patterns");
+    copy_tree(&root().join("patterns"), &pat);
+    let extract = |patterns: Option<&std::path::Path>| -> Vec<serde_json::Value> {
+        let mut cmd = hearsay();
+        if let Some(p) = patterns {
+            cmd.arg("--patterns").arg(p);
+        }
+        let out = succeeded(cmd.args(["-q", "extract", "corpora-demo"]));
+        String::from_utf8(out.stdout)
+            .unwrap()
+            .lines()
+            .map(|l| serde_json::from_str(l).unwrap())
+            .collect()
+    };
+    let builtin = extract(None);
+    assert!(builtin.len() > 10);
+    assert_eq!(extract(Some(&pat)), builtin);
+    // 1 / (1 + e^-2) = 0.8808, rounded to three decimals as every confidence is.
+    std::fs::write(
+        pat.join("confidence.toml"),
+        "format = \"hearsay-confidence 1\"\nbias = 2.0\n\n[weights]\n",
+    )
+    .unwrap();
+    let flat = extract(Some(&pat));
+    assert_eq!(flat.len(), builtin.len());
+    assert!(
+        flat.iter().all(|c| c["confidence"].as_f64() == Some(0.881)),
+        "{:?}",
+        flat.iter().map(|c| &c["confidence"]).collect::<Vec<_>>()
+    );
+    let out = succeeded(
+        hearsay()
+            .args(["--format", "json", "--patterns"])
+            .arg(&pat)
+            .args(["explain", "Heavy rain causes flooding."]),
+    );
+    let v: serde_json::Value =
+        serde_json::from_slice(out.stdout.split(|&b| b == b'\n').next().unwrap()).unwrap();
+    assert_eq!(v["claim"]["confidence"].as_f64(), Some(0.881), "{v}");
+    // A model file that is not one names the file.
+    std::fs::write(
+        pat.join("confidence.toml"),
+        "format = \"other\"\nbias = 0\n",
+    )
+    .unwrap();
+    let out = hearsay()
+        .arg("--patterns")
+        .arg(&pat)
+        .args(["explain", "Heavy rain causes flooding."])
+        .output()
+        .unwrap();
+    assert!(!out.status.success());
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("confidence.toml"), "{err}");
 }

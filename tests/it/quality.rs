@@ -153,9 +153,8 @@ fn tagger_accuracy_on_ewt_test() {
     let Some(test) = shared_data("pos-treebank/ud-english-ewt/en_ewt-ud-test.conllu") else {
         return;
     };
-    let gold = hearsay::extract::tagger::read_conllu(&std::fs::read_to_string(test).unwrap());
-    let acc =
-        hearsay::extract::tagger::accuracy(hearsay::extract::tagger::Tagger::load_builtin(), &gold);
+    let gold = hearsay::extract::read_conllu(&std::fs::read_to_string(test).unwrap());
+    let acc = hearsay::extract::tagger_accuracy(hearsay::extract::Tagger::load_builtin(), &gold);
     let tokens: usize = gold.iter().map(Vec::len).sum();
     eprintln!("tagger on EWT test: accuracy {acc:.4} over {tokens} tokens");
     assert!(tokens > 20_000);

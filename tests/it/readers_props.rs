@@ -9,7 +9,7 @@ use hearsay::corpus::readers::{
     text::TextReader,
 };
 use hearsay::corpus::{Document, ReadOptions, Reader};
-use hearsay::extract::claims::Extractor;
+use hearsay::extract::Extractor;
 use proptest::prelude::*;
 use std::sync::OnceLock;
 
@@ -57,10 +57,10 @@ fn check_all_readers(bytes: &[u8]) -> Result<(), TestCaseError> {
             for s in hearsay::sentences::split(t) {
                 prop_assert!(in_text(t, s.start, s.end), "{} sentence {:?}", r.name(), s);
             }
-            for s in hearsay::extract::pipeline::document_sentences(d) {
+            for s in hearsay::extract::document_sentences(d) {
                 prop_assert!(in_text(t, s.start, s.start + s.text.len()));
             }
-            for c in hearsay::extract::pipeline::document_claims(extractor(), d) {
+            for c in hearsay::extract::document_claims(extractor(), d) {
                 prop_assert!(in_text(t, c.source.start, c.source.end), "{c:?}");
                 prop_assert!(in_text(t, c.cause.start, c.cause.end), "{c:?}");
                 prop_assert!(in_text(t, c.effect.start, c.effect.end), "{c:?}");

@@ -1,0 +1,406 @@
+//! One cue match to claims: the slots on each side (a fronted clause or the previous sentence
+//! when the cue opens its sentence, a pronoun's antecedent), the checks that need both slots,
+//! and the claim records, one per pair of coordinated cause and effect.
+
+use super::{Chosen, Extractor, Origin, SentenceRef, PRONOUNS};
+use crate::claim::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
+use crate::extract::cues::{CueMatch, SlotPlace};
+use crate::extract::tokens::{tokenize, Token};
+use crate::patterns::{Lexicon, PatternToken};
+
+/// What deciding the slots of one cue match needs: the match, its tokens, the sentence and its
+/// neighbour, where it came from.
+pub(super) struct MatchCtx<'a> {
+    pub(super) m: &'a CueMatch,
+    /// The cue's token range `[ca, cb)`.
+    pub(super) ca: usize,
+    pub(super) cb: usize,
+    /// The sentence's tokens, tagged.
+    pub(super) toks: &'a [Token],
+    /// Tokens no span may cross: the words of the other cues.
+    pub(super) blocked: &'a [bool],
+    pub(super) sent: SentenceRef<'a>,
+    pub(super) prev: Option<SentenceRef<'a>>,
+    pub(super) origin: &'a Origin<'a>,
+    /// The sentence with whitespace collapsed, as the claim records it.
+    pub(super) sentence_text: &'a str,
+}
+
+/// A slot as first chosen, and the slots coordinated with it ("heat, wind and smoke").
+type Picked = (Option<Chosen>, Vec<Chosen>);
+
+impl Extractor {
+    /// The claims of one cue match, or why it gives none.
+    pub(super) fn claim_for(
+        &self,
+        cx: &MatchCtx<'_>,
+        notes: &mut Vec<String>,
+    ) -> Result<Vec<Claim>, String> {
+        let m = cx.m;
+        let spec = &self.cues.cues[m.cue].spec;
+        let (mut cause, cause_extra) = self.pick(cx, m.cause, false, notes);
+        let (mut effect, effect_extra) = self.pick(cx, m.effect, true, notes);
+        let mut cross_sentence = self.fill_opening_slot(cx, &mut cause, &mut effect, notes);
+        cross_sentence |= self.resolve_pronouns(cx, &mut cause, &mut effect, notes);
+        let cause = cause.ok_or("no cause span found")?;
+        let effect = effect.ok_or("no effect span found")?;
+        if spec.time_sense
+            && !cross_sentence
+            && self.reads_as_time(cx.toks, cx.sent, &cause, &effect)
+        {
+            return Err(
+                "a perfect-tense clause beside a past-tense or verbless one: the time sense".into(),
+            );
+        }
+        let mut modality = self.modality(cx.toks, cx.ca, cx.sent.text, notes);
+        if spec.polarity == Polarity::None && modality != Modality::Question {
+            modality = Modality::Negated;
+        }
+        let causes: Vec<Chosen> = std::iter::once(cause).chain(cause_extra).collect();
+        let mut effects: Vec<Chosen> = std::iter::once(effect).chain(effect_extra).collect();
+        if spec.outcome_effect {
+            effects = self.outcome_effects(cx, effects)?;
+        }
+        let mut claims = Vec::new();
+        let mut first_err = None;
+        for c in &causes {
+            for e in &effects {
+                match self.build_claim(c, e, spec, modality, cross_sentence, cx, notes) {
+                    Ok(claim) => claims.push(claim),
+                    Err(why) => {
+                        first_err.get_or_insert(why);
+                    }
+                }
+            }
+        }
+        if claims.is_empty() {
+            return Err(first_err.unwrap_or_else(|| "no claim".into()));
+        }
+        Ok(claims)
+    }
+
+    /// The slot at `place`, with the slots coordinated with it.
+    fn pick(
+        &self,
+        cx: &MatchCtx<'_>,
+        place: SlotPlace,
+        effect_side: bool,
+        notes: &mut Vec<String>,
+    ) -> Picked {
+        let (toks, blocked, sent) = (cx.toks, cx.blocked, cx.sent);
+        let cue = &self.cues.cues[cx.m.cue];
+        let clause = cue.spec.clause_spans;
+        let (span, extra, side) = match place {
+            SlotPlace::Inside(s, e) => return (self.choose_bytes(sent, s, e), Vec::new()),
+            SlotPlace::After => {
+                let last_literal = toks[cx.cb.saturating_sub(1).min(toks.len().saturating_sub(1))]
+                    .lower
+                    .clone();
+                let mut span = if clause {
+                    self.clause_forward(toks, cx.cb)
+                } else {
+                    self.walk_forward(toks, cx.cb, blocked)
+                };
+                if cue.glued_last {
+                    // "stress-induced insomnia": the modified noun is the word right after.
+                    span.to = span.to.min(span.from + 1);
+                }
+                let extra = if clause || cue.glued_last {
+                    Vec::new()
+                } else {
+                    self.conjuncts_forward(toks, span, blocked, &last_literal)
+                };
+                (span, extra, "after")
+            }
+            SlotPlace::Before => {
+                let span = if clause {
+                    self.clause_back(toks, cx.ca)
+                } else {
+                    self.walk_back(toks, cx.ca, noun_first(&cue.spec), blocked, notes)
+                };
+                let extra = if clause || span.is_empty() {
+                    Vec::new()
+                } else {
+                    self.conjuncts_back(toks, span, blocked)
+                };
+                (span, extra, "before")
+            }
+        };
+        let extra: Vec<Chosen> = extra
+            .into_iter()
+            .filter_map(|sp| self.choose(toks, sent, sp, effect_side))
+            .collect();
+        if !extra.is_empty() {
+            notes.push(format!(
+                "{} more coordinated slot(s) {side} the cue",
+                extra.len()
+            ));
+        }
+        (self.choose(toks, sent, span, effect_side), extra)
+    }
+
+    /// An empty slot before a cue that opens the sentence: "Because X, Y." takes the clause
+    /// after the comma; "As a result, Y." takes the previous sentence. Returns whether the slot
+    /// came from the previous sentence.
+    fn fill_opening_slot(
+        &self,
+        cx: &MatchCtx<'_>,
+        cause: &mut Option<Chosen>,
+        effect: &mut Option<Chosen>,
+        notes: &mut Vec<String>,
+    ) -> bool {
+        let (m, toks, sent) = (cx.m, cx.toks, cx.sent);
+        let before_slot_empty = match (m.cause, m.effect) {
+            (SlotPlace::Before, _) => cause.is_none(),
+            (_, SlotPlace::Before) => effect.is_none(),
+            _ => false,
+        };
+        if !before_slot_empty || !opens_sentence(toks, cx.ca, &self.lexicon) {
+            return false;
+        }
+        let mut cross_sentence = false;
+        let after = if m.cause == SlotPlace::After {
+            &*cause
+        } else {
+            &*effect
+        };
+        let after_end_tok = after.as_ref().map(|c| {
+            toks.iter()
+                .position(|t| t.start + sent.offset >= c.end)
+                .unwrap_or(toks.len())
+        });
+        let effect_side = m.effect == SlotPlace::Before;
+        let fronted = after_end_tok.and_then(|j| {
+            if j < toks.len() && toks[j].lower == "," {
+                let span = if self.cues.cues[m.cue].spec.clause_spans {
+                    self.clause_forward(toks, j + 1)
+                } else {
+                    self.walk_forward(toks, j + 1, cx.blocked)
+                };
+                let span = self.strip_determiners(toks, span);
+                self.choose(toks, sent, span, effect_side)
+            } else {
+                None
+            }
+        });
+        let filled = match fronted {
+            Some(c) => {
+                notes.push(
+                    "the cue opens the sentence: the other slot is the clause after the comma"
+                        .into(),
+                );
+                Some(c)
+            }
+            None => cx.prev.and_then(|p| {
+                let ptoks = tokenize(p.text);
+                let mut end = ptoks.len();
+                while end > 0 && !ptoks[end - 1].word {
+                    end -= 1;
+                }
+                let span = self.clause_back(&ptoks, end);
+                cross_sentence = true;
+                notes.push(
+                    "the cue opens the sentence: the slot is the previous sentence's last clause"
+                        .into(),
+                );
+                self.choose(&ptoks, p, span, effect_side)
+            }),
+        };
+        if m.cause == SlotPlace::Before {
+            *cause = filled;
+        } else {
+            *effect = filled;
+        }
+        cross_sentence
+    }
+
+    /// "If the crayfish reach the lakes, they will ...": a slot that is only a pronoun takes its
+    /// antecedent, and the claim says so. Returns whether an antecedent came from the previous
+    /// sentence.
+    fn resolve_pronouns(
+        &self,
+        cx: &MatchCtx<'_>,
+        cause: &mut Option<Chosen>,
+        effect: &mut Option<Chosen>,
+        notes: &mut Vec<String>,
+    ) -> bool {
+        let (m, toks, sent) = (cx.m, cx.toks, cx.sent);
+        let mut cross_sentence = false;
+        for (slot, place, effect_side) in [(cause, m.cause, false), (effect, m.effect, true)] {
+            let pronoun_at = match slot {
+                // A slot already taken from the previous sentence is not this sentence's words.
+                Some(c) if c.start >= sent.offset => {
+                    let (a, b) = c.tokens(toks, sent);
+                    (b == a + 1 && PRONOUNS.contains(&toks[a].lower.as_str())).then_some(a)
+                }
+                Some(_) => None,
+                None if place == SlotPlace::Before => self.bare_demonstrative(toks, cx.ca),
+                None => None,
+            };
+            if let Some(p) = pronoun_at {
+                if let Some((c, cross)) = self.antecedent(toks, p, sent, cx.prev, effect_side) {
+                    notes.push(format!(
+                        "\"{}\" resolved to \"{}\"{}",
+                        toks[p].lower,
+                        c.text,
+                        if cross {
+                            " in the previous sentence"
+                        } else {
+                            ""
+                        }
+                    ));
+                    cross_sentence |= cross;
+                    *slot = Some(c);
+                }
+            }
+        }
+        cross_sentence
+    }
+
+    /// An outcome cue's effects: the phrase next to the cue must name the outcome; for an effect
+    /// before the cue ("the treatment of headaches from") that is the span's last phrase.
+    /// Coordinated effects share the first one's reading: if it is no outcome, none is.
+    fn outcome_effects(
+        &self,
+        cx: &MatchCtx<'_>,
+        effects: Vec<Chosen>,
+    ) -> Result<Vec<Chosen>, String> {
+        let effect_before = cx.m.effect == SlotPlace::Before;
+        let effects: Vec<Chosen> = effects
+            .into_iter()
+            .map_while(|e| {
+                if self.outcome_head(cx.toks, cx.sent, &e) {
+                    Some(e)
+                } else if effect_before {
+                    self.outcome_tail(cx.toks, cx.sent, &e)
+                } else {
+                    None
+                }
+            })
+            .collect();
+        if effects.is_empty() {
+            return Err(
+                "the effect's head is not an outcome noun ([outcomes] in lexicon.toml)".into(),
+            );
+        }
+        Ok(effects)
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn build_claim(
+        &self,
+        cause: &Chosen,
+        effect: &Chosen,
+        spec: &crate::patterns::CueSpec,
+        modality: Modality,
+        cross_sentence: bool,
+        cx: &MatchCtx<'_>,
+        notes: &mut Vec<String>,
+    ) -> Result<Claim, String> {
+        let (sent, origin) = (cx.sent, cx.origin);
+        if cause.start < effect.end && effect.start < cause.end && !cross_sentence {
+            return Err("cause and effect spans overlap".into());
+        }
+        let ckey = self.normalizer.key(&cause.key_text);
+        let ekey = self.normalizer.key(&effect.key_text);
+        if ckey.is_empty() || ekey.is_empty() {
+            return Err(format!(
+                "a span has no content word (cause \"{}\", effect \"{}\")",
+                cause.text, effect.text
+            ));
+        }
+        if ckey == ekey {
+            return Err(format!(
+                "cause and effect are the same variable (\"{ckey}\")"
+            ));
+        }
+        if numbers_only(&ckey) || numbers_only(&ekey) {
+            return Err(format!(
+                "a span is only numbers (cause \"{}\", effect \"{}\")",
+                cause.text, effect.text
+            ));
+        }
+        // Only such words, and labels with digits beside them ("Figure 6C").
+        let alone = |key: &str| {
+            key.split(' ').any(|w| self.not_alone.contains(w))
+                && key
+                    .split(' ')
+                    .all(|w| self.not_alone.contains(w) || w.chars().any(|c| c.is_ascii_digit()))
+        };
+        if alone(&ckey) || alone(&ekey) {
+            return Err(format!(
+                "a span names no variable on its own (cause \"{}\", effect \"{}\"; [keys] \
+                 not_alone in lexicon.toml)",
+                cause.text, effect.text
+            ));
+        }
+        let mut modality = modality;
+        if effect.negated && modality != Modality::Question {
+            notes.push("the effect is denied (\"no ...\")".into());
+            modality = Modality::Negated;
+        }
+        let mut polarity = spec.polarity;
+        if let (Polarity::Unsigned, Some(s)) = (polarity, effect.sign) {
+            notes.push(format!("the effect's sign word makes it an {s}"));
+            polarity = s;
+        }
+        Ok(Claim {
+            schema: SCHEMA_VERSION,
+            confidence: 0.0, // set by the pipeline (crate::extract::confidence)
+            cause: Slot {
+                text: cause.text.clone(),
+                key: ckey,
+                start: cause.start,
+                end: cause.end,
+                pronoun: cause.pronoun.clone(),
+            },
+            effect: Slot {
+                text: effect.text.clone(),
+                key: ekey,
+                start: effect.start,
+                end: effect.end,
+                pronoun: effect.pronoun.clone(),
+            },
+            kind: spec.kind,
+            polarity,
+            modality,
+            cue: spec.id.clone(),
+            sentence: cx.sentence_text.to_string(),
+            source: Source {
+                path: origin.path.to_string(),
+                line: origin.line,
+                column: origin.column,
+                start: sent.offset,
+                end: sent.offset + sent.text.len(),
+                page: origin.page,
+                record: origin.record.map(str::to_string),
+            },
+            cross_sentence,
+        })
+    }
+}
+
+/// The cue's first literal is a noun with its plural (`cause+ of`), not a verb or adjective.
+fn noun_first(spec: &crate::patterns::CueSpec) -> bool {
+    spec.tokens.iter().find_map(|t| match t {
+        PatternToken::Word { forms, verb } => Some(!verb && forms.len() > 1),
+        PatternToken::Glued { .. } => Some(false),
+        _ => None,
+    }) == Some(true)
+}
+
+/// A key whose words are all numbers: a year, a count or a label, not a variable ("(Smith et
+/// al., 2013). Thus, ...", "in experiments 2 and 4 ... drives").
+pub(super) fn numbers_only(key: &str) -> bool {
+    key.split(' ')
+        .all(|w| w.chars().all(|c| c.is_ascii_digit()))
+}
+
+/// Nothing but punctuation, conjunctions and fillers stands before token `ca`.
+fn opens_sentence(toks: &[Token], ca: usize, l: &Lexicon) -> bool {
+    toks[..ca].iter().all(|t| {
+        !t.word
+            || l.clause_breaks.contains(t.lower.as_str())
+            || l.fillers.contains(t.lower.as_str())
+    })
+}

@@ -1,0 +1,189 @@
+//! Tokens: the words and punctuation marks of a sentence, with byte offsets. The span finder,
+//! the tagger's input, the confidence features and span scoring in `evaluate` all count in these
+//! tokens.
+
+use crate::extract::tagger::Tag;
+use compact_str::CompactString;
+use regex::Regex;
+use std::sync::OnceLock;
+
+/// A word or punctuation mark of a sentence; offsets are bytes into the sentence.
+#[derive(Debug, Clone)]
+pub struct Token {
+    pub start: usize,
+    pub end: usize,
+    /// Lower-cased, with ’ as '. Inline up to 24 bytes: no allocation for almost any word.
+    pub lower: CompactString,
+    pub word: bool,
+    /// The token starts with an upper-case letter.
+    pub capital: bool,
+    /// Part of speech, filled in by `Extractor::tag_tokens` for sentences where a cue fired.
+    pub tag: Option<Tag>,
+}
+
+fn token_regex() -> &'static Regex {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    RE.get_or_init(|| {
+        Regex::new(r"[\p{L}\p{N}]+(?:['’\-.][\p{L}\p{N}]+)*|\S")
+            .expect("static token regex is valid")
+    })
+}
+
+/// A token's lower-case form with the typographic apostrophe made plain (inline: no allocation
+/// for a word of up to 24 bytes).
+fn lower_word(s: &str) -> CompactString {
+    if s.is_ascii() {
+        let mut lower = CompactString::from(s);
+        lower.make_ascii_lowercase();
+        return lower;
+    }
+    let lower = s.to_lowercase();
+    CompactString::from(if lower.contains('’') {
+        lower.replace('’', "'")
+    } else {
+        lower
+    })
+}
+
+/// Split a sentence into tokens.
+pub fn tokenize(sentence: &str) -> Vec<Token> {
+    token_spans(sentence)
+        .into_iter()
+        .map(|(start, end)| {
+            let s = &sentence[start..end];
+            let word = s.chars().next().is_some_and(char::is_alphanumeric);
+            Token {
+                start,
+                end,
+                lower: lower_word(s),
+                word,
+                capital: s.chars().next().is_some_and(char::is_uppercase),
+                tag: None,
+            }
+        })
+        .collect()
+}
+
+/// Unicode `White_Space` in ASCII: what the token regex's `\S` skips (note: vertical tab too).
+fn ascii_space(b: u8) -> bool {
+    matches!(b, b'\t' | b'\n' | 0x0B | 0x0C | b'\r' | b' ')
+}
+
+/// The byte ranges of the token regex's matches. Tokenising was a tenth of extraction, most of
+/// it the regex stepping through UTF-8: a token made of ASCII is found here by hand, and only a
+/// token that starts with, or runs into, a non-ASCII character is left to the regex.
+fn token_spans(s: &str) -> Vec<(usize, usize)> {
+    let b = s.as_bytes();
+    let mut out = Vec::with_capacity(b.len() / 5 + 1);
+    let mut i = 0;
+    // The regex's match from `at` (a place where a match may start), or `None` when none is left.
+    let by_regex = |at: usize| token_regex().find_at(s, at).map(|m| (m.start(), m.end()));
+    while i < b.len() {
+        let c = b[i];
+        if ascii_space(c) {
+            i += 1;
+            continue;
+        }
+        let token = if !c.is_ascii() {
+            by_regex(i)
+        } else if !c.is_ascii_alphanumeric() {
+            Some((i, i + 1))
+        } else {
+            let start = i;
+            loop {
+                while i < b.len() && b[i].is_ascii_alphanumeric() {
+                    i += 1;
+                }
+                match (b.get(i), b.get(i + 1)) {
+                    // A joiner and a letter or digit after it: the token goes on.
+                    (Some(b'\'' | b'-' | b'.'), Some(n)) if n.is_ascii_alphanumeric() => i += 2,
+                    // A non-ASCII character inside or right after the token, or after a
+                    // joiner: it may be a letter (or the typographic apostrophe), so the regex
+                    // decides.
+                    (Some(x), _) if !x.is_ascii() => break by_regex(start),
+                    (Some(b'\'' | b'-' | b'.'), Some(n)) if !n.is_ascii() => break by_regex(start),
+                    _ => break Some((start, i)),
+                }
+            }
+        };
+        match token {
+            Some(m) => {
+                out.push(m);
+                i = m.1;
+            }
+            None => break,
+        }
+    }
+    out
+}
+
+/// The token range `[a, b)` that covers the byte range `start..end` of the sentence.
+pub(super) fn token_range(toks: &[Token], start: usize, end: usize) -> (usize, usize) {
+    let a = toks
+        .iter()
+        .position(|t| t.end > start)
+        .unwrap_or(toks.len());
+    let b = toks
+        .iter()
+        .rposition(|t| t.start < end)
+        .map(|i| i + 1)
+        .unwrap_or(a);
+    (a, b.max(a))
+}
+
+/// Collapse whitespace runs (line breaks included) to single spaces.
+pub fn collapse(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    for w in s.split_whitespace() {
+        if !out.is_empty() {
+            out.push(' ');
+        }
+        out.push_str(w);
+    }
+    out
+}
+
+#[cfg(test)]
+mod token_tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    fn by_regex(s: &str) -> Vec<(usize, usize)> {
+        token_regex()
+            .find_iter(s)
+            .map(|m| (m.start(), m.end()))
+            .collect()
+    }
+
+    proptest! {
+        /// The hand-found tokens are the token regex's, over the characters its rules and the
+        /// fast path care about: ASCII letters, digits, joiners, spaces (vertical tab and
+        /// no-break space among them), letters and a combining mark outside ASCII, the
+        /// typographic apostrophe.
+        #[test]
+        fn tokens_agree_with_the_regex(s in proptest::string::string_regex(
+            "[aZ09 .'\\-,;()\t\u{b}\u{c}\r\n\u{0}\u{7f}µαé\u{301}’\u{a0}\u{2009}\u{2013}]{0,30}"
+        ).expect("valid regex")) {
+            prop_assert_eq!(token_spans(&s), by_regex(&s));
+        }
+    }
+
+    /// And over real scientific text: every non-empty line of 120 eLife articles (990 open-access
+    /// articles; ../shared/data/elife-articles/SOURCE.txt).
+    #[test]
+    fn tokens_agree_on_elife_lines() {
+        let lines = crate::testdata::elife_lines(120);
+        if lines.is_empty() {
+            return;
+        }
+        for (path, line) in &lines {
+            assert_eq!(
+                token_spans(line),
+                by_regex(line),
+                "{}: {line:?}",
+                path.display()
+            );
+        }
+        assert!(lines.len() > 1000, "too few lines: {}", lines.len());
+    }
+}
