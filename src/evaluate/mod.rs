@@ -338,7 +338,7 @@ pub fn score_pairs(ex: &Extractor, items: &[GoldItem]) -> (Scores, Vec<Scored>) 
 
 /// Like [`score_pairs`], also judging single claims: is hearsay's reading of the sentence right,
 /// as far as the annotation can tell? A claim is right when it matches the gold pair. On a
-/// Cause-Effect item it is wrong when it misreads the marked pair ([`judge_causal_item`]). It is
+/// Cause-Effect item it is wrong when it misreads the marked pair (`judge_causal_item`). It is
 /// also wrong when it relates the marked pair of an item whose label
 /// names another, non-causal relation (the pair is a part and its whole, a product and its
 /// producer, ...: a causal reading of that pair is a misreading). A claim on the pair of an item

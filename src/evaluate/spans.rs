@@ -202,7 +202,7 @@ pub fn score_spans(ex: &Extractor, docs: &[GoldDoc]) -> (SpanReport, Vec<SpanErr
 
 /// Like [`score_spans`], also returning the claims judged for the reliability table and for
 /// training: right when matched, or when its spans lie inside the spans of one gold claim
-/// ([`reads_inside`]); wrong otherwise when one of its spans shares a word
+/// (`reads_inside`); wrong otherwise when one of its spans shares a word
 /// with a span of a gold claim in the same sentence (the annotators read that part of the
 /// sentence, and hearsay read it differently: wrong spans or the wrong direction). An unmatched
 /// claim that touches no gold span is not judged: the annotation scheme may simply not cover

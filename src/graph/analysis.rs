@@ -417,7 +417,7 @@ pub enum Cell {
     Mentions,
 }
 
-/// The matrix over `keys`: `m[i][j]` is the cell value of the edge keys[i] → keys[j] (0 when the
+/// The matrix over `keys`: `m[i][j]` is the cell value of the edge `keys[i] → keys[j]` (0 when the
 /// corpus states none; the diagonal is 0).
 pub fn matrix(g: &ClaimGraph, spec: &WeightSpec, keys: &[String], cell: Cell) -> Vec<Vec<f64>> {
     keys.iter()

@@ -49,7 +49,7 @@ pub struct ExportEdge {
     /// (increase − decrease − prevent) / signed claims, over non-negated claims, in [-1, 1];
     /// 0 when none is signed.
     pub net_sign: f64,
-    /// See [`crate::graph::weight`]; the rule is in [`Export::weight_rule`].
+    /// See [`WeightSpec`]; the rule is in [`Export::weight_rule`].
     pub weight: f64,
     /// The weight of the reverse edge (effect → cause), 0 when there is none.
     pub reverse_weight: f64,

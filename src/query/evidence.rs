@@ -86,7 +86,7 @@ impl Loaded {
             .collect()
     }
 
-    /// The strongest `n` rows of a relation ([`strongest_rows`]) with their sentences.
+    /// The strongest `n` rows of a relation (`strongest_rows`: plain assertions first, one per document before a second) with their sentences.
     pub fn strongest_evidence(&self, rel: &Relation, n: usize) -> Vec<EvidenceLine> {
         self.evidence(&strongest_rows(&self.graph, rel, n), n)
     }
