@@ -35,6 +35,8 @@ const HEADERS: &[&str] = &[
     "asserted",
     "hedged",
     "negated",
+    "conditional",
+    "question",
     "sign",
     "first",
 ];
@@ -60,6 +62,8 @@ fn cells(r: &TopRelation) -> Vec<String> {
         r.asserted.to_string(),
         r.hedged.to_string(),
         r.negated.to_string(),
+        r.conditional.to_string(),
+        r.question.to_string(),
         r.sign.to_string(),
         r.first.clone(),
     ]
