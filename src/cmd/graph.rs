@@ -29,7 +29,8 @@ and conditional 0.5, question 0, negated or \"no effect\" -1 (see docs/graph.md;
 networkx.node_link_graph(data, edges=\"edges\"); csv writes the edges to FILE and the nodes \
 beside it, to FILE's name with .nodes.csv for its extension (-o edges.csv also writes \
 edges.nodes.csv). table prints the edges as a table. Choose the file format with the global \
---format (graphml by default here); every format goes to -o FILE when given, else to stdout.\n\nAn edge is a count \
+--format (graphml by default here); every format goes to -o FILE when given, else to stdout.\n\n\
+Exit status: 0 on success, 2 on an error.\n\nAn edge is a count \
 of statements in text, not evidence that the causation is real."
 )]
 pub struct GraphArgs {

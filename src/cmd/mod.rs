@@ -52,9 +52,10 @@ A claim is a statement found in text, not evidence that the causation is real, a
 hearsay prints is advice. Check the primary literature and ask qualified practitioners.";
 
 const AFTER: &str =
-    "Exit status: 0 on success (warnings about single files included), 2 on an error.
+    "Exit status: 0 on success (warnings about single files included), 1 when a check fails
+(scan or extract --strict with an unreadable file, a failing `patterns check`), 2 on an error.
 Output: a table on a terminal, JSON Lines otherwise; choose with --format.
-Typical use:  hearsay scan corpora-demo  &&  hearsay pair \"crayfish\" \"algae blooms\"";
+Typical use:  hearsay scan corpora-demo  &&  hearsay pair \"fertiliser runoff\" \"algae blooms\"";
 
 #[derive(Parser, Debug)]
 #[command(name = "hearsay", version, about = ABOUT, after_help = AFTER, max_term_width = 100)]

@@ -12,10 +12,13 @@ use std::process::ExitCode;
 #[derive(Args, Debug)]
 #[command(
     after_help = "X and Y go through the same normalisation (and aliases) as the variables \
-in the store, so \"the rising sea levels\" finds \"rising sea level\". Counts: causal claims X → Y \
+in the store, so \"the algae bloom\" finds \"algae blooms\". Counts: causal claims X → Y \
 and Y → X by modality and polarity, distinct documents, association claims (either order), and \
 co-mentions: sentences naming both with no claim between them. The direction ratio is the share \
-of non-negated causal claims that go X → Y.\n\nThese are counts of statements in text, not \
+of non-negated causal claims that go X → Y. When a relation has more claims than --evidence \
+shows, a line under the evidence says how many are left out (the table only; JSON has the \
+counts and the evidence list).\n\nExit status: 0 (also when a name is no variable: the table \
+notes it), 2 on an error.\n\nThese are counts of statements in text, not \
 evidence that either causation is real."
 )]
 pub struct PairArgs {
