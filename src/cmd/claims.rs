@@ -51,7 +51,11 @@ pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
     };
     let (cause, effect, var) = (key(&a.cause), key(&a.effect), key(&a.var));
     // A misspelt name gives an empty table; say why on stderr, where the data is not.
-    for (flag, name) in [("--cause", &a.cause), ("--effect", &a.effect), ("--var", &a.var)] {
+    for (flag, name) in [
+        ("--cause", &a.cause),
+        ("--effect", &a.effect),
+        ("--var", &a.var),
+    ] {
         if let Some(name) = name {
             if let Err(e) = find_var(&loaded, name) {
                 if !g.quiet {

@@ -416,7 +416,10 @@ impl ReadArgs {
                 .map_or_else(|| "text".to_string(), String::clone),
             id_field: (self.id_field.as_ref().or(b.id_field.as_ref()))
                 .map_or_else(|| "id".to_string(), String::clone),
-            max_decompressed: self.max_decompressed.or(b.max_decompressed).unwrap_or(4 << 30),
+            max_decompressed: self
+                .max_decompressed
+                .or(b.max_decompressed)
+                .unwrap_or(4 << 30),
             max_record: usize::try_from(max_record).unwrap_or(usize::MAX),
             cut_references: !(self.keep_references || b.keep_references),
         }

@@ -168,7 +168,10 @@ fn near_spellings(loaded: &Loaded, key: &str) -> Vec<String> {
         .filter(|&(d, _)| d <= limit)
         .collect();
     near.sort();
-    near.into_iter().take(5).map(|(_, l)| l.to_string()).collect()
+    near.into_iter()
+        .take(5)
+        .map(|(_, l)| l.to_string())
+        .collect()
 }
 
 /// Levenshtein distance over characters.

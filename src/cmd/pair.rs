@@ -107,7 +107,11 @@ fn line(d: &DirectionSummary) -> String {
         d.negated,
         d.conditional,
         count(d.question, "question"),
-        if pol.is_empty() { String::new() } else { format!("  [{}]", pol.join(", ")) }
+        if pol.is_empty() {
+            String::new()
+        } else {
+            format!("  [{}]", pol.join(", "))
+        }
     )
 }
 

@@ -31,7 +31,8 @@ pub struct ScanArgs {
     /// Memory for the results of one large input (a JSON Lines dump, standard input) before
     /// they wait on disk in the store's folder until the input is read to its end, in MB.
     #[arg(long, default_value_t = 64, value_name = "MB")]
-    pub file_memory: usize,    #[command(flatten, next_help_heading = "Reading files")]
+    pub file_memory: usize,
+    #[command(flatten, next_help_heading = "Reading files")]
     pub read: ReadArgs,
 }
 

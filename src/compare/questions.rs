@@ -104,7 +104,11 @@ impl Wording {
                 (None, Some(_)) => Some(y),
                 (None, None) => None,
             };
-            out.push_str(if subject.is_some_and(looks_plural) { many } else { one });
+            out.push_str(if subject.is_some_and(looks_plural) {
+                many
+            } else {
+                one
+            });
             rest = tail;
         }
         out.push_str(rest);
@@ -116,14 +120,8 @@ impl Wording {
 /// "us" or "is" ("algae blooms", "fish stocks"; not "grass", "stimulus", "erosis"). A heuristic:
 /// a name such as "species" or "fish" is taken as written.
 fn looks_plural(name: &str) -> bool {
-    let last = name
-        .split_whitespace()
-        .last()
-        .unwrap_or("")
-        .to_lowercase();
-    last.len() > 2
-        && last.ends_with('s')
-        && !["ss", "us", "is"].iter().any(|e| last.ends_with(e))
+    let last = name.split_whitespace().last().unwrap_or("").to_lowercase();
+    last.len() > 2 && last.ends_with('s') && !["ss", "us", "is"].iter().any(|e| last.ends_with(e))
 }
 
 /// Whether every `[...]` in a wording is a `[singular|plural]` choice with a placeholder after it.
@@ -485,7 +483,9 @@ mod tests {
         assert_eq!(q[1].text, "Are algae blooms an effect of boat traffic?");
         assert_eq!(q[0].text, "Does boat traffic cause algae blooms?");
         // The verb agrees with the subject after it: algae blooms (plural) as x.
-        let back = q.iter().find(|q| q.x == "algae blooms" && q.template == "cause");
+        let back = q
+            .iter()
+            .find(|q| q.x == "algae blooms" && q.template == "cause");
         assert_eq!(
             back.map(|q| q.text.as_str()),
             Some("Do algae blooms cause boat traffic?")
@@ -510,7 +510,12 @@ mod tests {
     fn a_choice_must_be_closed_split_and_followed_by_a_placeholder() {
         assert!(choices_are_valid("[Is|Are] {y} an effect of {x}?"));
         assert!(choices_are_valid("{x} and {y}"));
-        for bad in ["[Is] {y} {x}", "[Is|Are {y} {x}", "{y} {x} [Is|Are]", "Is|Are] {x} {y}"] {
+        for bad in [
+            "[Is] {y} {x}",
+            "[Is|Are {y} {x}",
+            "{y} {x} [Is|Are]",
+            "Is|Are] {x} {y}",
+        ] {
             assert!(!choices_are_valid(bad), "{bad}");
         }
     }

@@ -202,13 +202,7 @@ mod tests {
         let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
         let ab = g.edge(g.index["a"], g.index["b"]).unwrap();
         let cd = g.edge(g.index["c"], g.index["d"]).unwrap();
-        assert_eq!(
-            (Sign::of(ab), hedged_heavy(ab)),
-            (Sign::Increase, true)
-        );
-        assert_eq!(
-            (Sign::of(cd), hedged_heavy(cd)),
-            (Sign::Decrease, true)
-        );
+        assert_eq!((Sign::of(ab), hedged_heavy(ab)), (Sign::Increase, true));
+        assert_eq!((Sign::of(cd), hedged_heavy(cd)), (Sign::Decrease, true));
     }
 }
