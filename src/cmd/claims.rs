@@ -1,5 +1,6 @@
 //! `hearsay claims`: every stored claim that matches the filters.
 
+use super::output::find_var;
 use super::{write_rows, ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::Args;
@@ -9,7 +10,10 @@ use std::process::ExitCode;
 #[derive(Args, Debug)]
 #[command(
     after_help = "JSON output is the claim record itself (see the README's \"Output \
-schema\"), one per line, as `extract` prints it."
+schema\"), one per line, as `extract` prints it. A name given to --cause, --effect or --var \
+that is no variable of the store is noted on stderr, with the variables that contain it; the \
+output is then empty.\n\nExit status: 0 (also when no claim matches), 2 on an error.\n\nA \
+claim is a statement found in text, not evidence that the causation is real."
 )]
 pub struct ClaimsArgs {
     /// Only claims whose cause is this variable (matched through normalisation and aliases).
@@ -46,6 +50,20 @@ pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
             .map(|s| loaded.aliases.resolve(&norm.key(s)).to_string())
     };
     let (cause, effect, var) = (key(&a.cause), key(&a.effect), key(&a.var));
+    // A misspelt name gives an empty table; say why on stderr, where the data is not.
+    for (flag, name) in [
+        ("--cause", &a.cause),
+        ("--effect", &a.effect),
+        ("--var", &a.var),
+    ] {
+        if let Some(name) = name {
+            if let Err(e) = find_var(&loaded, name) {
+                if !g.quiet {
+                    eprintln!("hearsay: note: {flag}: {e}; no claim can match");
+                }
+            }
+        }
+    }
     let mut picked: Vec<Claim> = Vec::new();
     for row in &loaded.graph.rows {
         if cause.as_ref().is_some_and(|k| *k != row.cause)

@@ -1,6 +1,6 @@
 //! `hearsay conflicts`: pairs the corpus states inconsistently, with the evidence on each side.
 
-use super::output::print_evidence;
+use super::output::{count, print_evidence};
 use super::{escape, write_rows, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
@@ -93,12 +93,12 @@ pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
                 let k = c.conflict;
                 writeln!(
                     out,
-                    "#{}  {}  {} / {}  ({} claims)",
+                    "#{}  {}  {} / {}  ({})",
                     i + 1,
                     k.kind.as_str(),
                     escape(&k.x_label),
                     escape(&k.y_label),
-                    k.support
+                    count(k.support, "claim")
                 )?;
                 for (s, ev) in k.sides.iter().zip(c.evidence.iter()) {
                     let label = |key: &str| {
@@ -111,12 +111,12 @@ pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
                     };
                     writeln!(
                         out,
-                        "  {:<9} {} → {}: {} claims in {} documents",
+                        "  {:<9} {} → {}: {} in {}",
                         s.reading,
                         escape(&label(&s.cause)),
                         escape(&label(&s.effect)),
-                        s.claims,
-                        s.documents
+                        count(s.claims, "claim"),
+                        count(s.documents, "document")
                     )?;
                     print_evidence(&mut out, "      ", ev)?;
                 }

@@ -1,7 +1,7 @@
 //! `hearsay cycles`: directed cycles among well-stated edges.
 
 use super::args::WeightArgs;
-use super::output::print_evidence;
+use super::output::{count, print_evidence};
 use super::{escape, write_rows, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
@@ -82,16 +82,17 @@ pub fn run(g: &Global, a: &CyclesArgs) -> Result<ExitCode> {
             if outs.is_empty() {
                 writeln!(
                     out,
-                    "no directed cycle of at most {} edges of weight >= {}",
-                    a.max_len, a.min_weight
+                    "no directed cycle of at most {} of weight >= {}",
+                    count(a.max_len, "edge"),
+                    a.min_weight
                 )?;
             }
             for (i, c) in outs.iter().enumerate() {
                 writeln!(
                     out,
-                    "#{}  {} edges  weakest link {}  sign {}",
+                    "#{}  {}  weakest link {}  sign {}",
                     i + 1,
-                    c.hops.len(),
+                    count(c.hops.len(), "edge"),
                     c.support,
                     c.sign.as_str()
                 )?;

@@ -1,8 +1,9 @@
 //! `hearsay extract PATH...|-`: claims as JSON Lines on stdout, no store. The map step for
 //! pipelines and clusters: its output is what `merge` (and any reducer) consumes.
 
+use super::output::count;
 use super::progress::Progress;
-use super::{check_paths, ClaimFilter, Global};
+use super::{check_paths, ClaimFilter, Global, ReadArgs};
 use anyhow::Result;
 use clap::Args;
 use hearsay::corpus::{self, Input};
@@ -31,6 +32,8 @@ pub struct ExtractArgs {
     /// Exit with status 1 when any file could not be read.
     #[arg(long)]
     pub strict: bool,
+    #[command(flatten, next_help_heading = "Reading files")]
+    pub read: ReadArgs,
     /// Also print every sentence (`{"sentence_of": doc, "line", "start", "text"}`), opened by a
     /// `{"begin_file": path}` record and closed by a file record (`{"file", "documents",
     /// "sentences", "bytes"}`) per input file, so that `hearsay merge` can rebuild the search
@@ -46,7 +49,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     let started = Instant::now();
     check_paths(&a.paths)?;
     let ex = g.extractor()?;
-    let opts = g.read.options();
+    let opts = a.read.options(&g.read);
     let filter = a.filter.to_filter();
     let (inputs, skipped) = corpus::discover(&a.paths);
     for s in &skipped {
@@ -117,10 +120,10 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     if !g.quiet {
         let secs = started.elapsed().as_secs_f64();
         eprintln!(
-            "hearsay: {} files, {:.1} MB, {} claims, {} failed, {} skipped, {:.2} s",
-            inputs.len() - failed,
+            "hearsay: {}, {:.1} MB, {}, {} failed, {} skipped, {:.2} s",
+            count(inputs.len() - failed, "file"),
             bytes as f64 / 1e6,
-            claims,
+            count(claims, "claim"),
             failed,
             skipped.len(),
             secs

@@ -26,8 +26,11 @@ pub enum To {
 weight is distinct documents, each counted with the mean value of its claims: asserted 1, hedged \
 and conditional 0.5, question 0, negated or \"no effect\" -1 (see docs/graph.md; change it with \
 --weight-by and --*-weight). The rule is written into every file. json is node-link JSON for \
-networkx.node_link_graph(data, edges=\"edges\"); csv writes FILE (edges) and FILE.nodes.csv. \
-Choose the file format with the global --format (graphml by default here).\n\nAn edge is a count \
+networkx.node_link_graph(data, edges=\"edges\"); csv writes the edges to FILE and the nodes \
+beside it, to FILE's name with .nodes.csv for its extension (-o edges.csv also writes \
+edges.nodes.csv). table prints the edges as a table. Choose the file format with the global \
+--format (graphml by default here); every format goes to -o FILE when given, else to stdout.\n\n\
+Exit status: 0 on success, 2 on an error.\n\nAn edge is a count \
 of statements in text, not evidence that the causation is real."
 )]
 pub struct GraphArgs {
@@ -104,7 +107,15 @@ pub fn run(g: &Global, a: &GraphArgs) -> Result<ExitCode> {
     let e = export::select(&loaded.graph, &sel);
     let to = file_format(g, a);
     if g.format == Some(FormatArg::Table) && a.to.is_none() {
-        print_table(&e)?;
+        // The table goes where -o says, as every other format does.
+        match &a.output {
+            Some(p) => {
+                let mut buf = Vec::new();
+                print_table(&mut buf, &e)?;
+                std::fs::write(p, &buf).with_context(|| format!("cannot write {}", p.display()))?;
+            }
+            None => print_table(&mut std::io::stdout().lock(), &e)?,
+        }
         return Ok(ExitCode::SUCCESS);
     }
     let mut buf: Vec<u8> = Vec::new();
@@ -115,7 +126,7 @@ pub fn run(g: &Global, a: &GraphArgs) -> Result<ExitCode> {
         To::Dot => export::write_dot(&mut buf, &e)?,
         To::Csv => {
             let Some(p) = &a.output else {
-                anyhow::bail!("--format csv writes an edge list and a node list: give -o FILE (the nodes go to FILE.nodes.csv)");
+                anyhow::bail!("--format csv writes an edge list and a node list: give -o FILE (the nodes go beside it: -o edges.csv also writes edges.nodes.csv)");
             };
             let mut nodes = Vec::new();
             export::write_edges_csv(&mut buf, &e)?;
@@ -151,7 +162,7 @@ fn nodes_path(p: &Path) -> PathBuf {
     p.with_file_name(format!("{stem}.nodes.csv"))
 }
 
-fn print_table(e: &Export) -> Result<()> {
+fn print_table(out: &mut impl Write, e: &Export) -> Result<()> {
     let mut t = Table::new(&[
         "cause", "effect", "weight", "docs", "sents", "claims", "neg", "sign", "dir",
     ]);
@@ -174,8 +185,7 @@ fn print_table(e: &Export) -> Result<()> {
             format!("{:.2}", ed.direction_ratio),
         ]);
     }
-    let mut out = std::io::stdout().lock();
-    t.print(&mut out)?;
+    t.print(out)?;
     writeln!(out, "{}", e.weight_rule)?;
     if e.duplicates_removed > 0 {
         writeln!(

@@ -28,7 +28,7 @@ mod train_confidence;
 mod train_tagger;
 
 use anyhow::{Context, Result};
-use clap::{Args, Parser, Subcommand, ValueEnum};
+use clap::{ArgMatches, Args, FromArgMatches, Parser, Subcommand, ValueEnum};
 use hearsay::extract::{Extractor, ExtractorError};
 use hearsay::graph::Filter;
 use hearsay::patterns::{self as pat, PatternSet};
@@ -52,9 +52,10 @@ A claim is a statement found in text, not evidence that the causation is real, a
 hearsay prints is advice. Check the primary literature and ask qualified practitioners.";
 
 const AFTER: &str =
-    "Exit status: 0 on success (warnings about single files included), 2 on an error.
+    "Exit status: 0 on success (warnings about single files included), 1 when a check fails
+(scan or extract --strict with an unreadable file, a failing `patterns check`), 2 on an error.
 Output: a table on a terminal, JSON Lines otherwise; choose with --format.
-Typical use:  hearsay scan corpora-demo  &&  hearsay pair \"crayfish\" \"algae blooms\"";
+Typical use:  hearsay scan corpora-demo  &&  hearsay pair \"fertiliser runoff\" \"algae blooms\"";
 
 #[derive(Parser, Debug)]
 #[command(name = "hearsay", version, about = ABOUT, after_help = AFTER, max_term_width = 100)]
@@ -92,8 +93,10 @@ pub struct Global {
     /// Worker threads (default: all cores).
     #[arg(long, short = 'j', global = true, value_name = "N")]
     pub threads: Option<usize>,
+    /// The read options, also accepted before the subcommand name; only `scan` and `extract`
+    /// read files, so only their help shows them.
     #[command(flatten)]
-    pub read: ReadArgs,
+    pub read: ReadArgsBefore,
 }
 
 #[derive(Subcommand, Debug)]
@@ -307,27 +310,76 @@ pub fn check_paths(paths: &[String]) -> Result<()> {
     Ok(())
 }
 
-/// How input files are read (the corpus stage's options).
-#[derive(Args, Debug, Clone)]
+/// How input files are read (the corpus stage's options): flattened into `scan` and `extract`,
+/// the commands that read files. Every value is optional so that one given after the subcommand
+/// name can be told from one given before it ([`ReadArgsBefore`]); the defaults are applied in
+/// [`ReadArgs::options`] and written into each help line.
+#[derive(Args, Debug, Clone, Default)]
 pub struct ReadArgs {
-    /// Read every input as this format instead of sniffing content and extension.
-    #[arg(long, global = true, value_enum, default_value_t = InputFormatArg::Auto)]
-    pub input_format: InputFormatArg,
-    /// JSON Lines: the field that holds a record's text.
-    #[arg(long, global = true, default_value = "text", value_name = "FIELD")]
-    pub text_field: String,
-    /// JSON Lines: the field that holds a record's id (records without it use the line number).
-    #[arg(long, global = true, default_value = "id", value_name = "FIELD")]
-    pub id_field: String,
-    /// Most bytes a .gz or .zst file may expand to (suffixes K, M, G: powers of 1024).
-    #[arg(long, global = true, default_value = "4G", value_parser = parse_size, value_name = "SIZE")]
-    pub max_decompressed: u64,
-    /// JSON Lines: longest record read; longer records are skipped with a warning.
-    #[arg(long, global = true, default_value = "64M", value_parser = parse_size, value_name = "SIZE")]
-    pub max_record: u64,
+    /// Read every input as this format instead of sniffing content and extension [default: auto].
+    #[arg(long, value_enum, value_name = "FORMAT")]
+    pub input_format: Option<InputFormatArg>,
+    /// JSON Lines: the field that holds a record's text [default: text].
+    #[arg(long, value_name = "FIELD")]
+    pub text_field: Option<String>,
+    /// JSON Lines: the field that holds a record's id (records without it use the line number)
+    /// [default: id].
+    #[arg(long, value_name = "FIELD")]
+    pub id_field: Option<String>,
+    /// Most bytes a .gz or .zst file may expand to (suffixes K, M, G: powers of 1024)
+    /// [default: 4G].
+    #[arg(long, value_parser = parse_size, value_name = "SIZE")]
+    pub max_decompressed: Option<u64>,
+    /// JSON Lines: longest record read; longer records are skipped with a warning [default: 64M].
+    #[arg(long, value_parser = parse_size, value_name = "SIZE")]
+    pub max_record: Option<u64>,
     /// PDF: keep the text after a "References" or "Bibliography" heading.
-    #[arg(long, global = true)]
+    #[arg(long)]
     pub keep_references: bool,
+}
+
+/// The ids of [`ReadArgs`]' options, hidden where [`ReadArgsBefore`] adds them.
+const READ_IDS: &[&str] = &[
+    "input_format",
+    "text_field",
+    "id_field",
+    "max_decompressed",
+    "max_record",
+    "keep_references",
+];
+
+/// The read options given before the subcommand name (`hearsay --max-record 8M scan DIR`), as
+/// earlier versions took them. Still accepted there, but hidden: on every command's help they
+/// only said how files are read to commands that read none.
+#[derive(Debug, Clone, Default)]
+pub struct ReadArgsBefore(pub ReadArgs);
+
+impl FromArgMatches for ReadArgsBefore {
+    fn from_arg_matches(m: &ArgMatches) -> Result<Self, clap::Error> {
+        ReadArgs::from_arg_matches(m).map(ReadArgsBefore)
+    }
+    fn update_from_arg_matches(&mut self, m: &ArgMatches) -> Result<(), clap::Error> {
+        self.0.update_from_arg_matches(m)
+    }
+}
+
+impl Args for ReadArgsBefore {
+    fn augment_args(cmd: clap::Command) -> clap::Command {
+        hide_read_args(ReadArgs::augment_args(cmd))
+    }
+    fn augment_args_for_update(cmd: clap::Command) -> clap::Command {
+        hide_read_args(ReadArgs::augment_args_for_update(cmd))
+    }
+}
+
+fn hide_read_args(cmd: clap::Command) -> clap::Command {
+    cmd.mut_args(|a| {
+        if READ_IDS.contains(&a.get_id().as_str()) {
+            a.hide(true)
+        } else {
+            a
+        }
+    })
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -341,10 +393,18 @@ pub enum InputFormatArg {
 }
 
 impl ReadArgs {
-    pub fn options(&self) -> hearsay::corpus::ReadOptions {
+    /// The options in force: a value given after the subcommand name, else one given before it
+    /// (`before`), else the default.
+    pub fn options(&self, before: &ReadArgsBefore) -> hearsay::corpus::ReadOptions {
         use hearsay::corpus::InputFormat as F;
+        let b = &before.0;
+        let max_record = self.max_record.or(b.max_record).unwrap_or(64 << 20);
         hearsay::corpus::ReadOptions {
-            format: match self.input_format {
+            format: match self
+                .input_format
+                .or(b.input_format)
+                .unwrap_or(InputFormatArg::Auto)
+            {
                 InputFormatArg::Auto => F::Auto,
                 InputFormatArg::Text => F::Text,
                 InputFormatArg::Markdown => F::Markdown,
@@ -352,11 +412,16 @@ impl ReadArgs {
                 InputFormatArg::Pdf => F::Pdf,
                 InputFormatArg::Jsonl => F::Jsonl,
             },
-            text_field: self.text_field.clone(),
-            id_field: self.id_field.clone(),
-            max_decompressed: self.max_decompressed,
-            max_record: usize::try_from(self.max_record).unwrap_or(usize::MAX),
-            cut_references: !self.keep_references,
+            text_field: (self.text_field.as_ref().or(b.text_field.as_ref()))
+                .map_or_else(|| "text".to_string(), String::clone),
+            id_field: (self.id_field.as_ref().or(b.id_field.as_ref()))
+                .map_or_else(|| "id".to_string(), String::clone),
+            max_decompressed: self
+                .max_decompressed
+                .or(b.max_decompressed)
+                .unwrap_or(4 << 30),
+            max_record: usize::try_from(max_record).unwrap_or(usize::MAX),
+            cut_references: !(self.keep_references || b.keep_references),
         }
     }
 }

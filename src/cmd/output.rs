@@ -6,6 +6,16 @@ use anyhow::Result;
 use hearsay::query::{EvidenceLine, Loaded};
 use std::io::Write;
 
+/// `n` with its noun, singular for one: "1 claim", "2 claims" (every noun the commands count
+/// takes a plain -s).
+pub fn count(n: usize, noun: &str) -> String {
+    if n == 1 {
+        format!("1 {noun}")
+    } else {
+        format!("{n} {noun}s")
+    }
+}
+
 /// Replace control characters so that text from the input cannot drive the terminal.
 pub fn escape(s: &str) -> String {
     s.chars()
@@ -124,19 +134,77 @@ pub fn print_evidence(out: &mut impl Write, indent: &str, ev: &[EvidenceLine]) -
     Ok(())
 }
 
-/// Find a variable the user named, or fail with suggestions.
+/// Find a variable the user named, or fail with suggestions: the variables that contain its
+/// words, else those spelt within a few letters of it ("fish stoks" → "fish stocks").
 pub fn find_var(loaded: &Loaded, name: &str) -> Result<petgraph::graph::NodeIndex> {
     let (m, n) = loaded.lookup(name);
     n.ok_or_else(|| {
+        let mut suggestions = m.suggestions.clone();
+        if suggestions.is_empty() {
+            suggestions = near_spellings(loaded, &m.key);
+        }
         anyhow::anyhow!(
             "no variable \"{}\" in the claims (key \"{}\"){}",
             escape(name),
             m.key,
-            if m.suggestions.is_empty() {
+            if suggestions.is_empty() {
                 String::new()
             } else {
-                format!("; did you mean: {}", m.suggestions.join(", "))
+                format!("; did you mean: {}", escape(&suggestions.join(", ")))
             }
         )
     })
+}
+
+/// Labels of the variables whose key is closest to `key` in edit distance, if within one edit in
+/// five characters (at least one): at most five, nearest first, then by name.
+fn near_spellings(loaded: &Loaded, key: &str) -> Vec<String> {
+    let limit = (key.chars().count() / 5).max(1);
+    let mut near: Vec<(usize, &str)> = loaded
+        .graph
+        .graph
+        .node_weights()
+        .map(|v| (edit_distance(key, &v.key), v.label.as_str()))
+        .filter(|&(d, _)| d <= limit)
+        .collect();
+    near.sort();
+    near.into_iter()
+        .take(5)
+        .map(|(_, l)| l.to_string())
+        .collect()
+}
+
+/// Levenshtein distance over characters.
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut cur = vec![i + 1; b.len() + 1];
+        for (j, &cb) in b.iter().enumerate() {
+            cur[j + 1] = (prev[j] + usize::from(ca != cb))
+                .min(prev[j + 1] + 1)
+                .min(cur[j] + 1);
+        }
+        prev = cur;
+    }
+    prev[b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn edit_distance_counts_single_edits() {
+        assert_eq!(edit_distance("fish stok", "fish stock"), 1);
+        assert_eq!(edit_distance("", "abc"), 3);
+        assert_eq!(edit_distance("alga bloom", "alga bloom"), 0);
+    }
+
+    #[test]
+    fn count_is_singular_for_one() {
+        assert_eq!(count(1, "claim"), "1 claim");
+        assert_eq!(count(0, "claim"), "0 claims");
+        assert_eq!(count(4, "document"), "4 documents");
+    }
 }

@@ -1,5 +1,6 @@
 //! `hearsay pair X Y`: what the corpus says about two variables, in each direction.
 
+use super::output::count;
 use super::{escape, ClaimFilter, Format, Global};
 use anyhow::{Context, Result};
 use clap::Args;
@@ -11,10 +12,13 @@ use std::process::ExitCode;
 #[derive(Args, Debug)]
 #[command(
     after_help = "X and Y go through the same normalisation (and aliases) as the variables \
-in the store, so \"the rising sea levels\" finds \"rising sea level\". Counts: causal claims X → Y \
+in the store, so \"the algae bloom\" finds \"algae blooms\". Counts: causal claims X → Y \
 and Y → X by modality and polarity, distinct documents, association claims (either order), and \
 co-mentions: sentences naming both with no claim between them. The direction ratio is the share \
-of non-negated causal claims that go X → Y.\n\nThese are counts of statements in text, not \
+of non-negated causal claims that go X → Y. When a relation has more claims than --evidence \
+shows, a line under the evidence says how many are left out (the table only; JSON has the \
+counts and the evidence list).\n\nExit status: 0 (also when a name is no variable: the table \
+notes it), 2 on an error.\n\nThese are counts of statements in text, not \
 evidence that either causation is real."
 )]
 pub struct PairArgs {
@@ -95,15 +99,19 @@ fn line(d: &DirectionSummary) -> String {
         pol.push(format!("{p} {n}"));
     }
     format!(
-        "{} claims in {} documents: {} asserted, {} hedged, {} negated, {} conditional, {} questions{}",
-        d.claims,
-        d.documents,
+        "{} in {}: {} asserted, {} hedged, {} negated, {} conditional, {}{}",
+        count(d.claims, "claim"),
+        count(d.documents, "document"),
         d.asserted,
         d.hedged,
         d.negated,
         d.conditional,
-        d.question,
-        if pol.is_empty() { String::new() } else { format!("  [{}]", pol.join(", ")) }
+        count(d.question, "question"),
+        if pol.is_empty() {
+            String::new()
+        } else {
+            format!("  [{}]", pol.join(", "))
+        }
     )
 }
 
@@ -130,13 +138,14 @@ pub(super) fn print_table(out: &mut impl Write, r: &PairReport) -> Result<()> {
     writeln!(out, "{y} → {x}: {}", line(&r.backward))?;
     writeln!(
         out,
-        "associated: {} claims in {} documents",
-        r.association.claims, r.association.documents
+        "associated: {} in {}",
+        count(r.association.claims, "claim"),
+        count(r.association.documents, "document")
     )?;
     writeln!(
         out,
-        "co-mentioned without a claim: {} sentences",
-        r.co_mentions
+        "co-mentioned without a claim: {}",
+        count(r.co_mentions, "sentence")
     )?;
     match r.direction_ratio {
         Some(d) => writeln!(out, "direction ratio ({x} → {y}): {d:.2}")?,
@@ -163,11 +172,36 @@ pub(super) fn print_table(out: &mut impl Write, r: &PairReport) -> Result<()> {
             )?;
         }
     }
+    for note in unshown(r, &x, &y) {
+        writeln!(out, "{note}")?;
+    }
     writeln!(
         out,
         "\n(statements found in text, not evidence that the causation is real)"
     )?;
     Ok(())
+}
+
+/// One line for each relation with more claims than evidence lines shown, so that "4 claims"
+/// above three sentences is not read as the whole evidence.
+fn unshown(r: &PairReport, x: &str, y: &str) -> Vec<String> {
+    let mut notes = Vec::new();
+    for (name, d, arrow) in [
+        ("forward", &r.forward, format!("{x} → {y}")),
+        ("backward", &r.backward, format!("{y} → {x}")),
+        ("association", &r.association, format!("{x} ~ {y}")),
+    ] {
+        let shown = r.evidence.iter().filter(|e| e.relation == name).count();
+        if d.claims > shown {
+            let more = d.claims - shown;
+            notes.push(format!(
+                "  + {more} more {arrow} {} not shown ({} in all; --evidence N shows up to N a relation)",
+                if more == 1 { "claim" } else { "claims" },
+                d.claims,
+            ));
+        }
+    }
+    notes
 }
 
 fn print_csv(out: &mut impl Write, r: &PairReport) -> Result<()> {

@@ -1,7 +1,7 @@
 //! `hearsay paths X Y`: indirect chains of stated edges from X to Y.
 
 use super::args::WeightArgs;
-use super::output::{find_var, print_evidence};
+use super::output::{count, find_var, print_evidence};
 use super::{escape, write_rows, ClaimFilter, Format, Global};
 use anyhow::Result;
 use clap::Args;
@@ -126,20 +126,20 @@ pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
             for c in &outs {
                 writeln!(
                     out,
-                    "#{}  {} hops  weakest link {}  chain sign {}",
+                    "#{}  {}  weakest link {}  chain sign {}",
                     c.rank,
-                    c.hops.len(),
+                    count(c.hops.len(), "hop"),
                     c.support,
                     c.sign.as_str()
                 )?;
                 for h in &c.hops {
                     writeln!(
                         out,
-                        "  {} → {}   weight {}, {} documents, {}",
+                        "  {} → {}   weight {}, {}, {}",
                         escape(&h.hop.cause_label),
                         escape(&h.hop.effect_label),
                         h.hop.weight,
-                        h.hop.documents,
+                        count(h.hop.documents, "document"),
                         h.hop.sign.as_str()
                     )?;
                     print_evidence(&mut out, "      ", &h.evidence)?;

@@ -1,7 +1,7 @@
 //! `hearsay scan PATH...`: read files into the claim store, re-reading only what changed.
 
 use super::progress::Progress;
-use super::{check_paths, escape, Format, Global, Table};
+use super::{check_paths, escape, Format, Global, ReadArgs, Table};
 use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::corpus::{self, Skipped};
@@ -32,6 +32,8 @@ pub struct ScanArgs {
     /// they wait on disk in the store's folder until the input is read to its end, in MB.
     #[arg(long, default_value_t = 64, value_name = "MB")]
     pub file_memory: usize,
+    #[command(flatten, next_help_heading = "Reading files")]
+    pub read: ReadArgs,
 }
 
 /// The scan's summary as printed (`--format json` prints it whole).
@@ -119,7 +121,7 @@ pub fn run(g: &Global, a: &ScanArgs) -> Result<ExitCode> {
     };
     let options = ScanOptions {
         paths: &a.paths,
-        read: g.read.options(),
+        read: a.read.options(&g.read),
         file_memory: a.file_memory.max(1) * 1_000_000,
     };
     let report = store::scan(writer, &set, &inputs, &skipped, &options, &shown, || {

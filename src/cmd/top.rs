@@ -10,7 +10,13 @@ use std::process::ExitCode;
 #[command(
     after_help = "Relations are ranked by the number of distinct documents that state them, \
 then by the number of claims. Causal relations are directed (cause → effect); association \
-relations are listed once per pair. Filters apply to claims before they are counted."
+relations are listed once per pair. Filters apply to claims before they are counted.\n\n\
+Columns: claims = asserted + hedged + negated + conditional + question. sign is the edge's sign \
+by the rule every command uses (docs/graph.md): the majority of the non-negated signed claims \
+(increase against decrease and prevent), mixed on a tie; with no signed claim, \"no effect\" when \
+\"has no effect\" claims outnumber unsigned ones, else unsigned.\n\nExit status: 0 (also when no \
+relation passes the filters), 2 on an error.\n\nThese are counts of statements in text, not \
+evidence that the causation is real."
 )]
 pub struct TopArgs {
     /// How many relations to show (0 for all).
@@ -35,6 +41,8 @@ const HEADERS: &[&str] = &[
     "asserted",
     "hedged",
     "negated",
+    "conditional",
+    "question",
     "sign",
     "first",
 ];
@@ -60,6 +68,8 @@ fn cells(r: &TopRelation) -> Vec<String> {
         r.asserted.to_string(),
         r.hedged.to_string(),
         r.negated.to_string(),
+        r.conditional.to_string(),
+        r.question.to_string(),
         r.sign.to_string(),
         r.first.clone(),
     ]

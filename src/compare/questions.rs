@@ -84,9 +84,67 @@ pub struct Wording {
 }
 
 impl Wording {
+    /// The question for x and y: each `[singular|plural]` choice takes the form that agrees
+    /// with the first placeholder after it (a question puts its verb before the subject: "[Is|Are]
+    /// {y} an effect of {x}?"), then the placeholders are filled in.
     pub fn render(&self, x: &str, y: &str) -> String {
-        self.text.replace("{x}", x).replace("{y}", y)
+        let mut out = String::with_capacity(self.text.len() + x.len() + y.len());
+        let mut rest = self.text.as_str();
+        // Choices are checked by `parse_wordings`; an unclosed '[' is kept as written.
+        while let Some(open) = rest.find('[') {
+            let Some(close) = rest[open..].find(']').map(|c| open + c) else {
+                break;
+            };
+            out.push_str(&rest[..open]);
+            let (one, many) = rest[open + 1..close].split_once('|').unwrap_or(("", ""));
+            let tail = &rest[close + 1..];
+            let subject = match (tail.find("{x}"), tail.find("{y}")) {
+                (Some(a), Some(b)) => Some(if a < b { x } else { y }),
+                (Some(_), None) => Some(x),
+                (None, Some(_)) => Some(y),
+                (None, None) => None,
+            };
+            out.push_str(if subject.is_some_and(looks_plural) {
+                many
+            } else {
+                one
+            });
+            rest = tail;
+        }
+        out.push_str(rest);
+        out.replace("{x}", x).replace("{y}", y)
     }
+}
+
+/// Whether a variable name reads as a plural, by its last word: ending in "s" but not "ss",
+/// "us" or "is" ("algae blooms", "fish stocks"; not "grass", "stimulus", "erosis"). A heuristic:
+/// a name such as "species" or "fish" is taken as written.
+fn looks_plural(name: &str) -> bool {
+    let last = name.split_whitespace().last().unwrap_or("").to_lowercase();
+    last.len() > 2 && last.ends_with('s') && !["ss", "us", "is"].iter().any(|e| last.ends_with(e))
+}
+
+/// Whether every `[...]` in a wording is a `[singular|plural]` choice with a placeholder after it.
+fn choices_are_valid(text: &str) -> bool {
+    let mut rest = text;
+    while let Some(open) = rest.find(['[', ']']) {
+        if rest[open..].starts_with(']') {
+            return false;
+        }
+        let Some(close) = rest[open + 1..].find(['[', ']']).map(|c| open + 1 + c) else {
+            return false;
+        };
+        let inner = &rest[open + 1..close];
+        let tail = &rest[close + 1..];
+        if rest[close..].starts_with('[')
+            || inner.matches('|').count() != 1
+            || !(tail.contains("{x}") || tail.contains("{y}"))
+        {
+            return false;
+        }
+        rest = tail;
+    }
+    true
 }
 
 #[derive(Deserialize)]
@@ -160,6 +218,11 @@ pub fn parse_wordings(path: &Path, text: &str) -> Result<Vec<Wording>, InputErro
         let rest = raw.text.replace("{x}", "").replace("{y}", "");
         if rest.contains('{') || rest.contains('}') {
             return Err(err("text may use only the placeholders {x} and {y}".into()));
+        }
+        if !choices_are_valid(&raw.text) {
+            return Err(err(
+                "a choice is written [singular|plural] and needs {x} or {y} after it".into(),
+            ));
         }
         out.push(Wording {
             id: raw.id,
@@ -417,7 +480,44 @@ mod tests {
         )
         .unwrap();
         assert_eq!(questions(&again, &w, false)[0].id, q[0].id);
-        assert_eq!(q[1].text, "Is algae blooms an effect of boat traffic?");
+        assert_eq!(q[1].text, "Are algae blooms an effect of boat traffic?");
+        assert_eq!(q[0].text, "Does boat traffic cause algae blooms?");
+        // The verb agrees with the subject after it: algae blooms (plural) as x.
+        let back = q
+            .iter()
+            .find(|q| q.x == "algae blooms" && q.template == "cause");
+        assert_eq!(
+            back.map(|q| q.text.as_str()),
+            Some("Do algae blooms cause boat traffic?")
+        );
+    }
+
+    #[test]
+    fn plural_names_by_their_last_word() {
+        for (name, plural) in [
+            ("algae blooms", true),
+            ("fish stocks", true),
+            ("boat traffic", false),
+            ("grass", false),
+            ("stimulus", false),
+            ("gas", true),
+        ] {
+            assert_eq!(looks_plural(name), plural, "{name}");
+        }
+    }
+
+    #[test]
+    fn a_choice_must_be_closed_split_and_followed_by_a_placeholder() {
+        assert!(choices_are_valid("[Is|Are] {y} an effect of {x}?"));
+        assert!(choices_are_valid("{x} and {y}"));
+        for bad in [
+            "[Is] {y} {x}",
+            "[Is|Are {y} {x}",
+            "{y} {x} [Is|Are]",
+            "Is|Are] {x} {y}",
+        ] {
+            assert!(!choices_are_valid(bad), "{bad}");
+        }
     }
 
     #[test]

@@ -14,8 +14,7 @@
 //! - [`ClaimGraph`] (built with [`ClaimGraph::build`] under a [`Filter`]) and its parts
 //!   [`Variable`], [`Relation`], [`Counts`];
 //! - edge weights: [`WeightSpec`] and its [`Unit`];
-//! - edge signs: [`Sign`] and [`dominant_polarity`], every rule in one module (its doc says
-//!   which consumer reads which rule, and how they differ);
+//! - edge signs: [`Sign`] and its one rule, [`Sign::of`], which every output uses;
 //! - the analyses: [`paths`], [`conflicts`], [`cycles`], [`matrix`] and their result types;
 //! - [`near_duplicates`] and [`drop_near_duplicates`] for `--dedupe`;
 //! - [`export`]: the file formats for network tools, read as `graph::export::write_json` and the
@@ -34,7 +33,7 @@ pub use analysis::{
     conflicts, cycles, matrix, paths, Cell, Chain, Conflict, ConflictKind, ConflictSide, Cycle, Hop,
 };
 pub use dedupe::{drop_near_duplicates, near_duplicates, DEDUPE_THRESHOLD};
-pub use sign::{dominant_polarity, Sign};
+pub use sign::Sign;
 pub use weight::{Unit, WeightSpec};
 
 use crate::claim::{Kind, Modality, Polarity};

@@ -1,22 +1,24 @@
 //! The sign of an edge: whether its claims say the cause raises or lowers the effect.
 //!
-//! Every consumer reads an edge's sign here, with the one [`Sign`] type. Three rules are in use
-//! and they give different answers on the same edge; each consumer keeps the rule it has always
-//! had, so that no output changes, and unifying them is a separate decision:
+//! One rule, [`Sign::of`], names the sign of an edge everywhere it is shown: the `sign` column
+//! of `top`, each hop of `paths` and `cycles` (and so every chain's sign, through
+//! [`Sign::then`]), and the colour and line style of the report's graph picture. It used to be
+//! three rules that gave three answers on the same edge (the most frequent polarity, unsigned
+//! included; the majority of signed claims; which signed polarities occur at all), so that one
+//! edge read "unsigned" in `top` and "increase" in `paths`; a user comparing outputs could not
+//! tell which to believe.
 //!
-//! - [`Sign::majority`] (`paths`, `cycles`, and so every chain's sign): the majority of the
-//!   edge's non-negated signed claims, increase against decrease and prevent; unsigned when
-//!   there are none or they tie. It never answers mixed or no effect.
-//! - [`Sign::presence`] (the report's graph picture): which signed polarities occur at all,
-//!   negated claims included; mixed when both increase and decrease (or prevent) occur; without
-//!   either, no effect when "has no effect" claims outnumber unsigned ones, else unsigned.
-//! - [`dominant_polarity`] (`top`): the polarity most non-negated claims give, among all five
-//!   (prevent and none included), so it is a [`Polarity`] rather than a [`Sign`]; ties go to the
-//!   first in the order increase, decrease, prevent, unsigned, none.
+//! The rule reads only claims that state a sign: negated claims deny a statement rather than
+//! make one, and unsigned claims ("X causes Y") say nothing about the direction of the change,
+//! so an edge stated as "X causes Y" ten times and "X raises Y" once is an increasing edge.
+//! Prevent counts as decrease. Equal numbers on both sides is *mixed*. An edge with no signed
+//! claim is *no effect* when its "has no effect" claims outnumber its unsigned ones, else
+//! *unsigned*. docs/graph.md states the rule for users.
 
-use crate::claim::{Modality, Polarity};
+use crate::claim::Polarity;
 use crate::graph::Relation;
 use serde::Serialize;
+use std::fmt;
 
 /// The sign an edge or a chain states.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
@@ -24,10 +26,10 @@ use serde::Serialize;
 pub enum Sign {
     Increase,
     Decrease,
-    /// Both increasing and decreasing claims (only [`Sign::presence`] answers it).
+    /// As many increasing as decreasing (or preventing) non-negated claims.
     Mixed,
     Unsigned,
-    /// Mostly "has no effect" claims (only [`Sign::presence`] answers it).
+    /// No signed claim, and more "has no effect" claims than unsigned ones.
     NoEffect,
 }
 
@@ -54,91 +56,93 @@ impl Sign {
         }
     }
 
-    /// The rule of `paths` and `cycles`: the majority of the non-negated signed claims
-    /// (increase against decrease and prevent); unsigned when there are none or they tie.
-    pub fn majority(rel: &Relation) -> Sign {
-        let inc = rel.counts.stated(Polarity::Increase);
-        let dec = rel.counts.stated(Polarity::Decrease) + rel.counts.stated(Polarity::Prevent);
+    /// The sign of an edge: the majority of its non-negated signed claims (increase against
+    /// decrease and prevent), mixed when they tie; without any, no effect when "has no effect"
+    /// claims outnumber unsigned ones, else unsigned.
+    pub fn of(rel: &Relation) -> Sign {
+        let c = &rel.counts;
+        let inc = c.stated(Polarity::Increase);
+        let dec = c.stated(Polarity::Decrease) + c.stated(Polarity::Prevent);
         match inc.cmp(&dec) {
             std::cmp::Ordering::Greater => Sign::Increase,
             std::cmp::Ordering::Less => Sign::Decrease,
-            std::cmp::Ordering::Equal => Sign::Unsigned,
-        }
-    }
-
-    /// The rule of the report's picture: which signed polarities occur at all (negated claims
-    /// included), mixed when both do; without either, no effect when "has no effect" claims
-    /// outnumber unsigned ones.
-    pub fn presence(rel: &Relation) -> Sign {
-        let c = &rel.counts;
-        let inc = c.polarity(Polarity::Increase);
-        let dec = c.polarity(Polarity::Decrease) + c.polarity(Polarity::Prevent);
-        match (inc > 0, dec > 0) {
-            (true, true) => Sign::Mixed,
-            (true, false) => Sign::Increase,
-            (false, true) => Sign::Decrease,
-            _ if c.polarity(Polarity::None) > c.polarity(Polarity::Unsigned) => Sign::NoEffect,
+            std::cmp::Ordering::Equal if inc > 0 => Sign::Mixed,
+            _ if c.polarity(Polarity::None) > c.stated(Polarity::Unsigned) => Sign::NoEffect,
             _ => Sign::Unsigned,
         }
     }
+
+    /// The rule of `paths` and `cycles`, by its older name: the same as [`Sign::of`].
+    pub fn majority(rel: &Relation) -> Sign {
+        Sign::of(rel)
+    }
 }
 
-/// The rule of `top`: the polarity most non-negated claims give (none when every claim is
-/// negated); ties go to the first in the order increase, decrease, prevent, unsigned, none.
-pub fn dominant_polarity(rel: &Relation) -> Polarity {
-    let mut best = (0usize, Polarity::Unsigned);
-    for p in [
-        Polarity::Increase,
-        Polarity::Decrease,
-        Polarity::Prevent,
-        Polarity::Unsigned,
-        Polarity::None,
-    ] {
-        let n: usize = rel
-            .counts
-            .by
-            .get(&p)
-            .map(|m| {
-                m.iter()
-                    .filter(|(k, _)| **k != Modality::Negated)
-                    .map(|(_, v)| v)
-                    .sum()
-            })
-            .unwrap_or(0);
-        if n > best.0 {
-            best = (n, p);
-        }
-    }
-    if best.0 == 0 {
-        Polarity::None
-    } else {
-        best.1
+impl fmt::Display for Sign {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.as_str())
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::claim::Modality;
     use crate::graph::{ClaimGraph, Filter};
     use crate::store::test_row as row;
     use crate::variables::Aliases;
 
+    fn sign(rows: Vec<crate::store::ClaimRow>) -> Sign {
+        let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
+        Sign::of(g.edge(g.index["a"], g.index["b"]).unwrap())
+    }
+
     #[test]
-    fn the_three_rules_differ_on_one_edge() {
+    fn unsigned_claims_do_not_outvote_a_signed_one() {
         use Modality::*;
         use Polarity::*;
-        // Two increases, one decrease, one denied increase.
+        // The edge that read "unsigned" in `top` and "increase" in `paths` before the rules
+        // were one.
         let rows = vec![
-            row("a", "b", Increase, Asserted, "d1"),
-            row("a", "b", Increase, Hedged, "d2"),
-            row("a", "b", Decrease, Asserted, "d3"),
-            row("a", "b", Increase, Negated, "d4"),
+            row("a", "b", Unsigned, Asserted, "d1"),
+            row("a", "b", Unsigned, Asserted, "d2"),
+            row("a", "b", Increase, Hedged, "d3"),
         ];
-        let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
-        let ab = g.edge(g.index["a"], g.index["b"]).unwrap();
-        assert_eq!(Sign::majority(ab), Sign::Increase);
-        assert_eq!(Sign::presence(ab), Sign::Mixed);
-        assert_eq!(dominant_polarity(ab), Increase);
+        assert_eq!(sign(rows), Sign::Increase);
+    }
+
+    #[test]
+    fn negated_claims_state_no_sign_and_prevent_is_decrease() {
+        use Modality::*;
+        use Polarity::*;
+        let rows = vec![
+            row("a", "b", Increase, Negated, "d1"),
+            row("a", "b", Increase, Negated, "d2"),
+            row("a", "b", Prevent, Asserted, "d3"),
+        ];
+        assert_eq!(sign(rows), Sign::Decrease);
+    }
+
+    #[test]
+    fn a_tie_is_mixed_and_no_signed_claim_is_unsigned_or_no_effect() {
+        use Modality::*;
+        use Polarity::*;
+        let tie = vec![
+            row("a", "b", Increase, Asserted, "d1"),
+            row("a", "b", Decrease, Question, "d2"),
+        ];
+        assert_eq!(sign(tie), Sign::Mixed);
+        let no_effect = vec![
+            row("a", "b", None, Negated, "d1"),
+            row("a", "b", None, Negated, "d2"),
+            row("a", "b", Unsigned, Asserted, "d3"),
+        ];
+        assert_eq!(sign(no_effect), Sign::NoEffect);
+        let unsigned = vec![
+            row("a", "b", None, Negated, "d1"),
+            row("a", "b", Unsigned, Asserted, "d2"),
+        ];
+        assert_eq!(sign(unsigned), Sign::Unsigned);
     }
 
     #[test]
@@ -149,5 +153,6 @@ mod tests {
         assert_eq!(Increase.then(Decrease), Decrease);
         assert_eq!(Unsigned.then(Increase), Unsigned);
         assert_eq!(Decrease.then(Unsigned), Unsigned);
+        assert_eq!(Mixed.then(Increase), Unsigned);
     }
 }

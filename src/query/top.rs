@@ -1,7 +1,7 @@
 //! `top`: the most-stated relations, causal and association.
 
-use crate::claim::{Kind, Modality, Polarity};
-use crate::graph::{dominant_polarity, ClaimGraph, Relation};
+use crate::claim::{Kind, Modality};
+use crate::graph::{ClaimGraph, Relation, Sign};
 use petgraph::graph::NodeIndex;
 use serde::Serialize;
 
@@ -18,8 +18,10 @@ pub struct TopRelation {
     pub asserted: usize,
     pub hedged: usize,
     pub negated: usize,
-    /// The sign most of the non-negated claims give.
-    pub sign: Polarity,
+    pub conditional: usize,
+    pub question: usize,
+    /// The edge's sign, by the one rule every output uses ([`Sign::of`]).
+    pub sign: Sign,
     /// Where the relation is first stated.
     pub first: String,
 }
@@ -47,7 +49,9 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
             asserted: rel.counts.modality(Modality::Asserted),
             hedged: rel.counts.modality(Modality::Hedged),
             negated: rel.counts.modality(Modality::Negated),
-            sign: dominant_polarity(rel),
+            conditional: rel.counts.modality(Modality::Conditional),
+            question: rel.counts.modality(Modality::Question),
+            sign: Sign::of(rel),
             first,
         });
     };

@@ -115,7 +115,7 @@ fn picture(
             weight: e.weight,
             modality,
             polarity,
-            sign: Sign::presence(rel),
+            sign: Sign::of(rel),
             hedged_heavy: hedged_heavy(rel),
             disputed: disputed.contains(&(e.source.as_str(), e.target.as_str())),
             reciprocal: pairs.contains(&(e.target.as_str(), e.source.as_str())),
@@ -202,13 +202,7 @@ mod tests {
         let g = ClaimGraph::build(rows, &Aliases::default(), &Filter::default());
         let ab = g.edge(g.index["a"], g.index["b"]).unwrap();
         let cd = g.edge(g.index["c"], g.index["d"]).unwrap();
-        assert_eq!(
-            (Sign::presence(ab), hedged_heavy(ab)),
-            (Sign::Increase, true)
-        );
-        assert_eq!(
-            (Sign::presence(cd), hedged_heavy(cd)),
-            (Sign::Decrease, true)
-        );
+        assert_eq!((Sign::of(ab), hedged_heavy(ab)), (Sign::Increase, true));
+        assert_eq!((Sign::of(cd), hedged_heavy(cd)), (Sign::Decrease, true));
     }
 }

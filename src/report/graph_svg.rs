@@ -199,7 +199,7 @@ pub fn legend() -> Markup {
                     @match s {
                         Sign::Increase => " (solid line)",
                         Sign::Decrease => " (dashed)",
-                        Sign::Mixed => " (dash-dot: increasing and decreasing claims)",
+                        Sign::Mixed => " (dash-dot: as many increasing as decreasing claims)",
                         Sign::Unsigned => " (dotted: a cause with no sign)",
                         Sign::NoEffect => " (dash-dot-dot: mostly \"no effect\" claims)",
                     }

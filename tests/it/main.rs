@@ -6,6 +6,7 @@ mod compare;
 mod compare_stats;
 mod confidence;
 mod external;
+mod first_use;
 mod graph;
 mod graph_analyses;
 mod hostile;

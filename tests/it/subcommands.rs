@@ -65,7 +65,8 @@ fn top_relations_match_the_demo_corpus_design() {
     let r = find("buffer strips", "fertiliser runoff");
     assert_eq!(
         (r["claims"].as_u64(), r["sign"].as_str()),
-        (Some(4), Some("prevent"))
+        // Prevent counts as decrease in an edge's sign (docs/graph.md).
+        (Some(4), Some("decrease"))
     );
     let r = find("tourism revenue", "boat traffic");
     assert_eq!(r["claims"], 2);
