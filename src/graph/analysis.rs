@@ -71,7 +71,7 @@ fn hop(g: &ClaimGraph, spec: &WeightSpec, a: NodeIndex, b: NodeIndex, rel: &Rela
         effect_label: g.graph[b].label.clone(),
         weight: spec.weight(g, rel),
         documents: rel.docs.len(),
-        sign: Sign::majority(rel),
+        sign: Sign::of(rel),
         rows: spread(g, &support),
     }
 }

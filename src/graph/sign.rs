@@ -71,11 +71,6 @@ impl Sign {
             _ => Sign::Unsigned,
         }
     }
-
-    /// The rule of `paths` and `cycles`, by its older name: the same as [`Sign::of`].
-    pub fn majority(rel: &Relation) -> Sign {
-        Sign::of(rel)
-    }
 }
 
 impl fmt::Display for Sign {
