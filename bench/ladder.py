@@ -295,7 +295,8 @@ def main():
                                     capture_output=True, text=True).stdout.strip(),
            "corpus": os.path.relpath(os.path.realpath(a.corpus), os.path.dirname(ROOT)),
            "corpus_source": "shared/data/elife-articles/SOURCE.txt", "articles": len(files),
-           "rungs_copies": a.rungs, "runs": a.runs, "rungs": {}}
+           "rungs_copies": a.rungs, "runs": a.runs,
+           "load_average_before": [round(v, 2) for v in os.getloadavg()], "rungs": {}}
     try:
         stores = {}
         for r in a.rungs:
