@@ -106,8 +106,9 @@ def main():
             shutil.copytree(a.sparse, sparse)
             sparse_mb = corpus_bytes(sparse) / 1e6
             res["sparse"] = {"corpus": os.path.basename(os.path.normpath(a.sparse)),
-                             "source": os.path.join(os.path.dirname(os.path.normpath(a.sparse)),
-                                                    "SOURCE.txt"),
+                             # Relative to the clone, so a result file names no machine's paths.
+                             "source": os.path.relpath(os.path.join(
+                                 os.path.dirname(os.path.normpath(a.sparse)), "SOURCE.txt"), ROOT),
                              "files": sum(len(ns) for _, _, ns in os.walk(sparse)),
                              "megabytes": round(sparse_mb, 2)}
         # Extract with one and two threads and the ripgrep reference, on both corpora, their runs
