@@ -9,12 +9,9 @@
 //! every feature with its weight, so a reader can add up why a claim got 0.8.
 //!
 //! Features are computed from the claim and the raw text of its sentence only, so the model is
-//! trained (`hearsay train-confidence`, see [`train`]) on exactly what the pipeline sees. Only
-//! the words from the first span's start to the last span's end of a claim, and a margin of
-//! [`TAG_MARGIN`] words on each side, are tagged with the built-in tagger
-//! ([`crate::extract::Tagger::load_builtin`]): the tag features read the spans alone, and
-//! tagging the whole sentence of every claim was a large share of extraction. A claim's features
-//! so depend on the claim and its sentence only, never on the other claims found there.
+//! trained (`hearsay train-confidence`, see [`train`]) on exactly what the pipeline sees. The
+//! sentence is tagged once with the built-in tagger ([`crate::extract::Tagger::load_builtin`]) and
+//! only when it gave a claim, which keeps the cost to a small share of extraction.
 //!
 //! The model is a value: each extractor owns the one of its pattern set
 //! ([`ConfidenceModel::of`]: the folder's own `confidence.toml`, else the built-in one), and the
@@ -23,7 +20,7 @@
 
 use crate::claim::Claim;
 use crate::extract::cues::CueSet;
-use crate::extract::tagger::{Tag, Tagger, TAG_MARGIN};
+use crate::extract::tagger::{Tag, Tagger};
 use crate::extract::tokens::{tokenize, Token};
 use crate::patterns::PatternSet;
 use rustc_hash::FxHashMap;
@@ -241,43 +238,27 @@ const BETWEEN_WORDS: Buckets = Buckets {
     names: &["0-1", "2", "3", "4-5", "6-9", "10+"],
 };
 
-/// A sentence tokenised once, for the features of every claim in it; each claim tags the words
-/// around its own spans ([`TaggedSentence::tags_around`]).
+/// A sentence tokenised and tagged once, for the features of every claim in it.
 pub struct TaggedSentence<'a> {
     text: &'a str,
     /// Byte offset of the sentence in its document.
     offset: usize,
     tokens: Vec<Token>,
+    tags: Vec<Tag>,
 }
 
 impl<'a> TaggedSentence<'a> {
-    /// Tokenise the sentence that starts at `offset` in its document.
+    /// Tokenise and tag the sentence that starts at `offset` in its document.
     pub fn new(text: &'a str, offset: usize) -> Self {
         let tokens = tokenize(text);
+        let words: Vec<&str> = tokens.iter().map(|t| &text[t.start..t.end]).collect();
+        let tags = Tagger::load_builtin().tag(&words);
         TaggedSentence {
             text,
             offset,
             tokens,
+            tags,
         }
-    }
-
-    /// The tags of the tokens from the first range's start to the last one's end, with
-    /// [`TAG_MARGIN`] words more on each side, and the index of the first token tagged.
-    fn tags_around(&self, ranges: &[Option<std::ops::Range<usize>>]) -> (usize, Vec<Tag>) {
-        let spans = ranges.iter().flatten();
-        let (Some(lo), Some(hi)) = (
-            spans.clone().map(|r| r.start).min(),
-            spans.map(|r| r.end).max(),
-        ) else {
-            return (0, Vec::new());
-        };
-        let lo = lo.saturating_sub(TAG_MARGIN);
-        let hi = (hi + TAG_MARGIN).min(self.tokens.len());
-        let words: Vec<&str> = self.tokens[lo..hi]
-            .iter()
-            .map(|t| &self.text[t.start..t.end])
-            .collect();
-        (lo, Tagger::load_builtin().tag(&words))
     }
 
     /// Token indices of a document byte range, when it lies inside this sentence.
@@ -369,16 +350,12 @@ pub fn visit_features(
     }
     let last_word = s.tokens.iter().rposition(|t| t.word);
     let mut inside = 0;
-    let found = [
-        s.tokens_in(c.cause.start, c.cause.end),
-        s.tokens_in(c.effect.start, c.effect.end),
-    ];
-    // Every token of both spans lies inside the tagged window.
-    let (lo, tags) = s.tags_around(&found);
-    let tag = |i: usize| tags[i - lo];
     let mut ranges = [None, None];
-    for (i, (k, r)) in [&CAUSE, &EFFECT].into_iter().zip(found).enumerate() {
-        let Some(r) = r else {
+    for (i, (k, slot)) in [(&CAUSE, &c.cause), (&EFFECT, &c.effect)]
+        .into_iter()
+        .enumerate()
+    {
+        let Some(r) = s.tokens_in(slot.start, slot.end) else {
             f(k.outside, None);
             continue;
         };
@@ -388,8 +365,8 @@ pub fn visit_features(
         let first = r.clone().find(|&i| s.tokens[i].word);
         let last = r.clone().rev().find(|&i| s.tokens[i].word);
         if let (Some(a), Some(b)) = (first, last) {
-            f(k.first, Some(coarse(tag(a))));
-            f(k.head, Some(coarse(tag(b))));
+            f(k.first, Some(coarse(s.tags[a])));
+            f(k.head, Some(coarse(s.tags[b])));
             if a == 0 {
                 f(k.opens_sentence, None);
             }
@@ -397,7 +374,7 @@ pub fn visit_features(
                 f(k.ends_sentence, None);
             }
         }
-        if r.clone().any(|i| tag(i).is_finite_verb()) {
+        if r.clone().any(|i| s.tags[i].is_finite_verb()) {
             f(k.finite_verb, None);
         }
         let text = &s.text[s.tokens[r.start].start..s.tokens[r.end - 1].end];

@@ -11,8 +11,7 @@
 //! The work is split by question: [`spans`] walks out from the cue to the cause and effect spans,
 //! [`senses`] decides whether a cue word is used in another sense (a noun, a name, a time), and
 //! [`modality`] reads negation, hedges, conditions and sign words; [`assemble`] puts one cue
-//! match's slots together into claims; [`window`] says which words are tagged (the clause
-//! around each cue match, not the whole sentence).
+//! match's slots together into claims.
 
 mod assemble;
 mod modality;
@@ -20,7 +19,6 @@ mod senses;
 mod spans;
 #[cfg(test)]
 mod tests;
-mod window;
 
 use crate::claim::{Claim, Polarity};
 use crate::extract::confidence::{ConfidenceError, ConfidenceModel};
@@ -193,8 +191,7 @@ impl Extractor {
         })
     }
 
-    /// Tag every word of a tokenised sentence (the sentence before a cue's, when a pronoun
-    /// slot looks back to it for an antecedent).
+    /// Tag the words of a tokenised sentence (only sentences where a cue fired get here).
     pub fn tag_tokens(&self, sentence: &str, toks: &mut [Token]) {
         let words: Vec<&str> = toks.iter().map(|t| &sentence[t.start..t.end]).collect();
         for (t, tag) in toks.iter_mut().zip(self.tagger.tag(&words)) {
@@ -223,13 +220,13 @@ impl Extractor {
             return;
         }
         let mut toks = tokenize(sent.text);
+        self.tag_tokens(sent.text, &mut toks);
+        let toks = toks;
+        let mut blocked = vec![false; toks.len()];
         let cue_tokens: Vec<(usize, usize)> = matches
             .iter()
             .map(|m| token_range(&toks, m.start, m.end))
             .collect();
-        self.tag_clauses(sent.text, &mut toks, &cue_tokens);
-        let toks = toks;
-        let mut blocked = vec![false; toks.len()];
         let noun_uses: Vec<Option<String>> = matches
             .iter()
             .zip(&cue_tokens)

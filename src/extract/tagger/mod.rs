@@ -113,11 +113,6 @@ pub struct Tagger {
     prepared: OnceLock<Prepared>,
 }
 
-/// How many words beyond a window's edge to tag as well, when only part of a sentence is
-/// tagged: a word's features read two words on each side and the two tags before it, so the
-/// tags inside a window with this margin mostly agree with those of the whole sentence.
-pub const TAG_MARGIN: usize = 3;
-
 /// Number of tags.
 const NT: usize = TAGS.len();
 

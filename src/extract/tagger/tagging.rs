@@ -81,9 +81,9 @@ impl WordCache {
 }
 
 impl Tagger {
-    /// Tag a tokenised sentence (or a run of its words). For the built-in model the last run
-    /// tagged on each thread is remembered, so a caller that asks for the same words twice
-    /// (`explain` and the pipeline, or two claims with the same spans) tags them once.
+    /// Tag a tokenised sentence. For the built-in model the last sentence tagged on each thread
+    /// is remembered, so the span finder and the confidence model, which both need the tags of a
+    /// sentence with a claim, tag it once.
     pub fn tag(&self, words: &[&str]) -> Vec<Tag> {
         thread_local! {
             static LAST: std::cell::RefCell<(Vec<u8>, Vec<Tag>)> =
