@@ -62,6 +62,25 @@ impl Loaded {
         lookup(&self.graph, &self.normalizer, &self.aliases, query)
     }
 
+    /// Labels of the variables whose key is closest to `key` in edit distance, if within one
+    /// edit in five characters (at least one): at most five, nearest first, then by name. For a
+    /// miss that shares no word with any variable ("fish stoks" → "fish stocks").
+    pub fn near_spellings(&self, key: &str) -> Vec<String> {
+        let limit = (key.chars().count() / 5).max(1);
+        let mut near: Vec<(usize, &str)> = self
+            .graph
+            .graph
+            .node_weights()
+            .map(|v| (edit_distance(key, &v.key), v.label.as_str()))
+            .filter(|&(d, _)| d <= limit)
+            .collect();
+        near.sort();
+        near.into_iter()
+            .take(5)
+            .map(|(_, l)| l.to_string())
+            .collect()
+    }
+
     /// The variables of a variable list (`text`, read from `path`: one name a line, `#`
     /// comments and blank lines skipped) as (name, key), keys through the aliases, each key
     /// once. A name without content words is an error; an empty list is not (the caller
@@ -90,5 +109,33 @@ impl Loaded {
             }
         }
         Ok(out)
+    }
+}
+
+/// Levenshtein distance over characters.
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut cur = vec![i + 1; b.len() + 1];
+        for (j, &cb) in b.iter().enumerate() {
+            cur[j + 1] = (prev[j] + usize::from(ca != cb))
+                .min(prev[j + 1] + 1)
+                .min(cur[j] + 1);
+        }
+        prev = cur;
+    }
+    prev[b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn edit_distance_counts_single_edits() {
+        assert_eq!(edit_distance("fish stok", "fish stock"), 1);
+        assert_eq!(edit_distance("", "abc"), 3);
+        assert_eq!(edit_distance("alga bloom", "alga bloom"), 0);
     }
 }
