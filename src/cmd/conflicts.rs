@@ -63,7 +63,7 @@ pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
         // JSON Lines has no columns: the cells and headers are for CSV and tables only.
         Format::Json => write_rows(&mut out, Format::Json, &outs, |_| Vec::new(), &[])?,
         Format::Csv => {
-            let mut w = csv::Writer::from_writer(&mut out);
+            let mut w = super::output::csv_writer(&mut out);
             w.write_record([
                 "kind", "x", "y", "support", "side1", "claims1", "docs1", "side2", "claims2",
                 "docs2",

@@ -64,7 +64,7 @@ pub fn run(g: &Global, a: &CyclesArgs) -> Result<ExitCode> {
         // JSON Lines has no columns: the cells and headers are for CSV and tables only.
         Format::Json => write_rows(&mut out, Format::Json, &outs, |_| Vec::new(), &[])?,
         Format::Csv => {
-            let mut w = csv::Writer::from_writer(&mut out);
+            let mut w = super::output::csv_writer(&mut out);
             w.write_record(["cycle", "support", "sign", "length", "variables"])?;
             for (i, c) in outs.iter().enumerate() {
                 let names: Vec<&str> = c.hops.iter().map(|h| h.hop.cause_label.as_str()).collect();

@@ -128,9 +128,11 @@ pub fn run(g: &Global, a: &GraphArgs) -> Result<ExitCode> {
             let Some(p) = &a.output else {
                 anyhow::bail!("--format csv writes an edge list and a node list: give -o FILE (the nodes go beside it: -o edges.csv also writes edges.nodes.csv)");
             };
-            let mut nodes = Vec::new();
-            export::write_edges_csv(&mut buf, &e)?;
+            let (mut edges, mut nodes) = (Vec::new(), Vec::new());
+            export::write_edges_csv(&mut edges, &e)?;
             export::write_nodes_csv(&mut nodes, &e)?;
+            buf = super::output::neutralise_csv(&edges)?;
+            let nodes = super::output::neutralise_csv(&nodes)?;
             let np = nodes_path(p);
             std::fs::write(&np, &nodes)
                 .with_context(|| format!("cannot write {}", np.display()))?;

@@ -59,7 +59,7 @@ pub fn run(g: &Global, a: &MatrixArgs) -> Result<ExitCode> {
     let m = graph::matrix(&loaded.graph, &spec, &keys, cell);
     let mut buf = Vec::new();
     {
-        let mut w = csv::Writer::from_writer(&mut buf);
+        let mut w = super::output::csv_writer(&mut buf);
         let mut header = vec!["cause \\ effect".to_string()];
         header.extend(vars.iter().map(|v| v.0.clone()));
         w.write_record(&header)?;

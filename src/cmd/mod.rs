@@ -330,7 +330,8 @@ pub struct ReadArgs {
     /// [default: 4G].
     #[arg(long, value_parser = parse_size, value_name = "SIZE")]
     pub max_decompressed: Option<u64>,
-    /// JSON Lines: longest record read; longer records are skipped with a warning [default: 64M].
+    /// Longest JSON Lines record read (longer records are skipped with a warning), and longest
+    /// line of a plain text file (a longer line fails its file) [default: 64M].
     #[arg(long, value_parser = parse_size, value_name = "SIZE")]
     pub max_record: Option<u64>,
     /// PDF: keep the text after a "References" or "Bibliography" heading.

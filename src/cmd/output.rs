@@ -16,17 +16,97 @@ pub fn count(n: usize, noun: &str) -> String {
     }
 }
 
-/// Replace control characters so that text from the input cannot drive the terminal.
+/// Replace control characters so that text from the input cannot drive the terminal: ESC (and
+/// with it every colour, cursor and OSC 8 hyperlink sequence), BEL, CR, the other C0 and C1
+/// controls, and the bidirectional overrides and isolates that reorder what a terminal shows
+/// (the "Trojan Source" trick). Each becomes U+FFFD, visibly; line breaks and tabs are kept for
+/// the callers that lay them out.
 pub fn escape(s: &str) -> String {
     s.chars()
         .map(|c| {
-            if c.is_control() && c != '\n' && c != '\t' {
+            if (c.is_control() && c != '\n' && c != '\t') || is_bidi_control(c) {
                 '\u{FFFD}'
             } else {
                 c
             }
         })
         .collect()
+}
+
+/// The Unicode bidirectional embedding, override and isolate controls (U+202A–U+202E,
+/// U+2066–U+2069).
+fn is_bidi_control(c: char) -> bool {
+    matches!(c, '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}')
+}
+
+/// A CSV cell that a spreadsheet will not run as a formula. Common practice (the OWASP advice on
+/// CSV injection): a cell that begins with `=`, `+`, `-`, `@`, a tab or a carriage return gets
+/// a leading apostrophe, which spreadsheets take as "this is text". Plain numbers ("-0.50",
+/// "+1") are left alone: they are data, and no spreadsheet reads them as anything else.
+pub fn csv_cell(s: &str) -> std::borrow::Cow<'_, str> {
+    match s.chars().next() {
+        Some('=' | '+' | '-' | '@' | '\t' | '\r') if !is_plain_number(s) => {
+            std::borrow::Cow::Owned(format!("'{s}"))
+        }
+        _ => std::borrow::Cow::Borrowed(s),
+    }
+}
+
+/// A decimal number with an optional sign, fraction and exponent, and nothing else.
+fn is_plain_number(s: &str) -> bool {
+    let s = s.strip_prefix(['+', '-']).unwrap_or(s);
+    let (mantissa, exponent) = match s.split_once(['e', 'E']) {
+        Some((m, e)) => (m, Some(e.strip_prefix(['+', '-']).unwrap_or(e))),
+        None => (s, None),
+    };
+    let (int, frac) = mantissa.split_once('.').unwrap_or((mantissa, ""));
+    let digits = |t: &str| t.bytes().all(|b| b.is_ascii_digit());
+    !(int.is_empty() && frac.is_empty())
+        && digits(int)
+        && digits(frac)
+        && exponent.is_none_or(|e| !e.is_empty() && digits(e))
+}
+
+/// A CSV writer every command's CSV goes through: each cell passes [`csv_cell`] on its way out.
+pub struct CsvOut<W: Write>(csv::Writer<W>);
+
+/// Open a [`CsvOut`] on `out`.
+pub fn csv_writer<W: Write>(out: W) -> CsvOut<W> {
+    CsvOut(csv::Writer::from_writer(out))
+}
+
+impl<W: Write> CsvOut<W> {
+    pub fn write_record<I, T>(&mut self, record: I) -> csv::Result<()>
+    where
+        I: IntoIterator<Item = T>,
+        T: AsRef<str>,
+    {
+        self.0
+            .write_record(record.into_iter().map(|c| csv_cell(c.as_ref()).into_owned()))
+    }
+
+    pub fn flush(&mut self) -> std::io::Result<()> {
+        self.0.flush()
+    }
+}
+
+/// CSV written by a library writer (the graph exports), with its cells passed through
+/// [`csv_cell`]: read back with the csv crate and written again.
+pub fn neutralise_csv(bytes: &[u8]) -> Result<Vec<u8>> {
+    let mut r = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(bytes);
+    let mut out = Vec::with_capacity(bytes.len());
+    {
+        let mut w = csv_writer(&mut out);
+        let mut rec = csv::StringRecord::new();
+        while r.read_record(&mut rec)? {
+            w.write_record(rec.iter())?;
+        }
+        w.flush()?;
+    }
+    Ok(out)
 }
 
 /// A simple aligned table for terminals.
@@ -101,7 +181,7 @@ pub fn write_rows<T: serde::Serialize>(
             }
         }
         Format::Csv => {
-            let mut w = csv::Writer::from_writer(&mut *out);
+            let mut w = csv_writer(&mut *out);
             w.write_record(headers)?;
             for r in rows {
                 w.write_record(csv_row(r))?;
@@ -165,5 +245,39 @@ mod tests {
         assert_eq!(count(1, "claim"), "1 claim");
         assert_eq!(count(0, "claim"), "0 claims");
         assert_eq!(count(4, "document"), "4 documents");
+    }
+
+    #[test]
+    fn formula_cells_get_an_apostrophe_and_numbers_do_not() {
+        // The six leading characters of the OWASP CSV-injection advice (common practice).
+        for cell in ["=1+1", "+cmd", "-2+3", "@SUM(A1)", "\tx", "\rx", "-", "+"] {
+            assert_eq!(csv_cell(cell), format!("'{cell}"), "{cell:?}");
+        }
+        for cell in ["-0.50", "+1", "-1e-3", "12", "3.", ".5", "smoke", "", "'quoted"] {
+            assert_eq!(csv_cell(cell), cell, "{cell:?}");
+        }
+        for cell in ["-1e", "-e5", "--1", "-1.2.3", "-inf", "-NaN", "+1+1"] {
+            assert!(csv_cell(cell).starts_with('\''), "{cell:?}");
+        }
+    }
+
+    #[test]
+    fn graph_csv_round_trip_changes_only_formula_cells() {
+        let plain = "id,label,weight\nn1,\"smoke, dust\",-1\nn2,\"say \"\"hi\"\"\",+0.50\n";
+        assert_eq!(neutralise_csv(plain.as_bytes()).unwrap(), plain.as_bytes());
+        let hostile = "id,label\nn1,=HYPERLINK(\"x\")\n";
+        assert_eq!(
+            String::from_utf8(neutralise_csv(hostile.as_bytes()).unwrap()).unwrap(),
+            "id,label\nn1,\"'=HYPERLINK(\"\"x\"\")\"\n"
+        );
+    }
+
+    #[test]
+    fn escape_replaces_terminal_controls_visibly() {
+        let s = "a\x1b[31mb\x07c\rd\u{202E}e\u{9b}f\ng\th";
+        assert_eq!(
+            escape(s),
+            "a\u{FFFD}[31mb\u{FFFD}c\u{FFFD}d\u{FFFD}e\u{FFFD}f\ng\th"
+        );
     }
 }

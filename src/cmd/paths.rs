@@ -87,7 +87,7 @@ pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
         // JSON Lines has no columns: the cells and headers are for CSV and tables only.
         Format::Json => write_rows(&mut out, Format::Json, &outs, |_| Vec::new(), &[])?,
         Format::Csv => {
-            let mut w = csv::Writer::from_writer(&mut out);
+            let mut w = super::output::csv_writer(&mut out);
             w.write_record([
                 "rank", "support", "sign", "hop", "cause", "effect", "weight", "hop_sign",
                 "evidence",

@@ -74,6 +74,7 @@ fn stream_message(label: &str, documents: u64, bytes: u64) -> String {
     } else {
         label.to_string()
     };
+    let name = super::escape(&name);
     let size = match bytes {
         b if b >= 1_000_000_000 => format!("{:.1} GB", b as f64 / 1e9),
         b if b >= 1_000_000 => format!("{:.1} MB", b as f64 / 1e6),

@@ -136,4 +136,4 @@ pub trait Reader: Send + Sync {
 }
 
 /// The largest file hearsay reads whole.
-pub(super) const MAX_FILE_BYTES: u64 = 1 << 30;
+pub(crate) const MAX_FILE_BYTES: u64 = 1 << 30;

@@ -30,6 +30,10 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
                 path: path.clone(),
                 label: p.clone(),
             }),
+            Ok(m) if !m.is_dir() => skipped.push(Skipped {
+                path: p.clone(),
+                reason: not_regular(&m.file_type()),
+            }),
             Ok(_) => {
                 let walker = ignore::WalkBuilder::new(&path)
                     .hidden(true)
@@ -53,8 +57,18 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
                                 });
                                 continue;
                             }
-                            if !e.file_type().is_some_and(|t| t.is_file()) {
-                                continue;
+                            match e.file_type() {
+                                Some(t) if t.is_file() => {}
+                                Some(t) if !t.is_dir() => {
+                                    // Opening a named pipe waits for a writer: it must be
+                                    // passed over, and said so, never opened.
+                                    skipped.push(Skipped {
+                                        path: label,
+                                        reason: not_regular(&t),
+                                    });
+                                    continue;
+                                }
+                                _ => continue,
                             }
                             if is_known_file(e.path()) {
                                 inputs.push(Input {
@@ -74,4 +88,31 @@ pub fn discover(paths: &[String]) -> (Vec<Input>, Vec<Skipped>) {
         }
     }
     (inputs, skipped)
+}
+
+/// Why a path that is neither a regular file nor a folder is not read: a named pipe would block
+/// the scan until something writes to it, and a device or socket holds no document.
+fn not_regular(t: &std::fs::FileType) -> String {
+    #[cfg(unix)]
+    let (kind, hint) = {
+        use std::os::unix::fs::FileTypeExt;
+        if t.is_fifo() {
+            (
+                "a named pipe",
+                " (to read a stream, pipe it to standard input and pass -)",
+            )
+        } else if t.is_socket() {
+            ("a socket", "")
+        } else if t.is_char_device() || t.is_block_device() {
+            ("a device", "")
+        } else {
+            ("a special file", "")
+        }
+    };
+    #[cfg(not(unix))]
+    let (kind, hint) = {
+        let _ = t;
+        ("a special file", "")
+    };
+    format!("{kind}, not a regular file: not read{hint}")
 }

@@ -1,10 +1,12 @@
 //! The page itself: sections, tables and the inlined style sheet and script.
 //!
 //! maud escapes every string spliced into the markup, so corpus text (labels, sentences, file
-//! names, skip reasons) can only ever become text. The style sheet and script are constants of
+//! names, skip reasons) can only ever become text; `evidence::shown` also replaces the control
+//! characters in it. The style sheet and script are constants of
 //! this crate; the script sorts tables and opens evidence panels, and needs no data of its own.
 
 use super::data::Report;
+use super::evidence::shown;
 use super::{graph_svg, plots};
 use crate::query::{DirectionSummary, PairReport};
 use maud::{html, Markup, PreEscaped, DOCTYPE};
@@ -24,12 +26,12 @@ pub fn render(r: &Report) -> String {
             head {
                 meta charset="utf-8";
                 meta name="viewport" content="width=device-width, initial-scale=1";
-                title { (r.title) }
+                title { (shown(&r.title)) }
                 style { (PreEscaped(STYLE)) }
             }
             body {
                 header {
-                    h1 { (r.title) }
+                    h1 { (shown(&r.title)) }
                     p.caveat role="note" { (CAVEAT) }
                     nav aria-label="Sections" {
                         a href="#summary" { "Summary" } " · "
@@ -107,7 +109,7 @@ fn summary(r: &Report) -> Markup {
                     thead { tr { (th("file", false)) (th("outcome", false)) (th("reason", false)) } }
                     tbody {
                         @for (what, list) in [("skipped", &s.skipped), ("failed", &s.failed)] {
-                            @for f in list { tr { td { (f.path) } td { (what) } td { (f.reason) } } }
+                            @for f in list { tr { td { (shown(&f.path)) } td { (what) } td { (shown(&f.reason)) } } }
                         }
                     }
                 }
@@ -249,14 +251,14 @@ fn direction_row(name: String, d: &DirectionSummary) -> Markup {
 }
 
 fn pair_section(p: &PairReport) -> Markup {
-    let name = |v: &crate::query::VarMatch| v.label.clone().unwrap_or_else(|| v.query.clone());
+    let name = |v: &crate::query::VarMatch| shown(v.label.as_deref().unwrap_or(&v.query));
     let (x, y) = (name(&p.x), name(&p.y));
     html! {
         section #pair {
             h2 { "Pair: " (x) " and " (y) }
             @for v in [&p.x, &p.y] {
                 @if !v.known {
-                    p.note { "No variable \"" (v.query) "\" in the claims."
+                    p.note { "No variable \"" (shown(&v.query)) "\" in the claims."
                         @if !v.suggestions.is_empty() { " Variables containing it: " (v.suggestions.join("; ")) "." } }
                 }
             }
@@ -282,9 +284,9 @@ fn pair_section(p: &PairReport) -> Markup {
                 ol.evidence {
                     @for e in &p.evidence {
                         li {
-                            span.loc { (e.location) } " "
+                            span.loc { (shown(&e.location)) } " "
                             span.tag { "[" (e.relation) "; " (e.polarity) ", " (e.modality) "; cue " (e.cue) "]" }
-                            blockquote { (e.sentence) }
+                            blockquote { (shown(&e.sentence)) }
                         }
                     }
                 }
@@ -316,5 +318,23 @@ mod tests {
         assert!(!html.contains("<img src=x"));
         assert!(html.contains("&lt;img src=x onerror=alert(1)&gt;"));
         assert!(html.contains("a&quot;&lt;b&gt;.txt"));
+    }
+
+    #[test]
+    fn control_characters_in_corpus_text_are_replaced() {
+        let r = Report {
+            title: "t".into(),
+            summary: Summary {
+                failed: vec![crate::corpus::Skipped {
+                    path: "x\u{1b}[2J.txt".into(),
+                    reason: "bell\u{7} and \u{1b}]8;;http://h/\u{7}link".into(),
+                }],
+                ..Summary::default()
+            },
+            ..Report::default()
+        };
+        let html = render(&r);
+        assert!(!html.contains(['\u{1b}', '\u{7}']));
+        assert!(html.contains("x\u{FFFD}[2J.txt"));
     }
 }

@@ -1,8 +1,9 @@
 //! Plain text: UTF-8, UTF-16 with a byte-order mark, and a Latin-1 fallback that is reported.
 
 use super::emit_decoded;
-use crate::corpus::document::{Document, ReadOptions, Reader, Warnings};
+use crate::corpus::document::{Document, ReadOptions, Reader, Warnings, MAX_FILE_BYTES};
 use crate::error::ReadError;
+use std::io::BufRead;
 
 /// Plain text files.
 #[derive(Debug, Default)]
@@ -96,6 +97,48 @@ impl Reader for TextReader {
         emit: &mut dyn FnMut(Document),
     ) -> Result<(), ReadError> {
         emit_decoded(label, bytes, warnings, emit, Ok)
+    }
+
+    /// Reads the file whole, as the default does, but refuses it as soon as one line grows past
+    /// `max_record` bytes (the cap a JSON Lines record has): a line that long is a dump or a
+    /// generated file, not prose, and every later step works line by line and sentence by
+    /// sentence. Refused early, it costs one pass over its bytes and no more memory.
+    fn read_stream(
+        &self,
+        label: &str,
+        src: &mut dyn BufRead,
+        opts: &ReadOptions,
+        warnings: &mut Warnings,
+        emit: &mut dyn FnMut(Document),
+    ) -> Result<(), ReadError> {
+        let mut buf = Vec::new();
+        let (mut line, mut line_len) = (1usize, 0usize);
+        loop {
+            let chunk = src.fill_buf()?;
+            if chunk.is_empty() {
+                break;
+            }
+            let mut from = 0;
+            for nl in memchr::memchr_iter(b'\n', chunk).chain(std::iter::once(chunk.len())) {
+                line_len += nl - from;
+                if line_len > opts.max_record {
+                    return Err(ReadError::TooLarge(format!(
+                        "line {line} is longer than {} bytes (raise the cap with --max-record)",
+                        opts.max_record
+                    )));
+                }
+                if nl < chunk.len() {
+                    (line, line_len, from) = (line + 1, 0, nl + 1);
+                }
+            }
+            if (buf.len() + chunk.len()) as u64 > MAX_FILE_BYTES {
+                return Err(ReadError::TooLarge(format!("over {MAX_FILE_BYTES} bytes")));
+            }
+            buf.extend_from_slice(chunk);
+            let n = chunk.len();
+            src.consume(n);
+        }
+        self.read(label, &buf, opts, warnings, emit)
     }
 }
 
