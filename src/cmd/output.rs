@@ -81,8 +81,11 @@ impl<W: Write> CsvOut<W> {
         I: IntoIterator<Item = T>,
         T: AsRef<str>,
     {
-        self.0
-            .write_record(record.into_iter().map(|c| csv_cell(c.as_ref()).into_owned()))
+        self.0.write_record(
+            record
+                .into_iter()
+                .map(|c| csv_cell(c.as_ref()).into_owned()),
+        )
     }
 
     pub fn flush(&mut self) -> std::io::Result<()> {
@@ -253,7 +256,9 @@ mod tests {
         for cell in ["=1+1", "+cmd", "-2+3", "@SUM(A1)", "\tx", "\rx", "-", "+"] {
             assert_eq!(csv_cell(cell), format!("'{cell}"), "{cell:?}");
         }
-        for cell in ["-0.50", "+1", "-1e-3", "12", "3.", ".5", "smoke", "", "'quoted"] {
+        for cell in [
+            "-0.50", "+1", "-1e-3", "12", "3.", ".5", "smoke", "", "'quoted",
+        ] {
             assert_eq!(csv_cell(cell), cell, "{cell:?}");
         }
         for cell in ["-1e", "-e5", "--1", "-1.2.3", "-inf", "-NaN", "+1+1"] {

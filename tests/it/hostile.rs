@@ -341,3 +341,192 @@ fn mixed_folder_keeps_good_files_and_shows_pages_and_record_ids() {
         "{p}"
     );
 }
+
+/// Run a scan to its end or fail the test after `limit`: a scan that waits on a named pipe, or
+/// works on a long line for ever, must not hang the suite.
+fn scan_within(
+    args: &[&std::ffi::OsStr],
+    limit: std::time::Duration,
+) -> (Option<i32>, String, String) {
+    use std::io::Read;
+    let mut child = std::process::Command::new(assert_cmd::cargo::cargo_bin("hearsay"))
+        .current_dir(root())
+        .env_remove("HEARSAY_STORE")
+        .args(args)
+        .stdin(std::process::Stdio::null())
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let (mut out, mut err) = (child.stdout.take().unwrap(), child.stderr.take().unwrap());
+    let reader = std::thread::spawn(move || {
+        let mut s = String::new();
+        out.read_to_string(&mut s).unwrap();
+        s
+    });
+    let mut stderr = String::new();
+    let started = std::time::Instant::now();
+    let status = loop {
+        if let Some(s) = child.try_wait().unwrap() {
+            break s;
+        }
+        if started.elapsed() > limit {
+            let _ = child.kill();
+            let _ = child.wait();
+            err.read_to_string(&mut stderr).unwrap();
+            panic!("the scan did not finish within {limit:?}; stderr:\n{stderr}");
+        }
+        std::thread::sleep(std::time::Duration::from_millis(50));
+    };
+    err.read_to_string(&mut stderr).unwrap();
+    (status.code(), reader.join().unwrap(), stderr)
+}
+
+/// The bad files the corpus above leaves out, each next to good ones: a 200 MB line, text that
+/// is not UTF-8, NUL bytes, a real paper's PDF cut short, a zstd bomb, and named pipes (in the
+/// folder and given by name). Each bad file gets a warning naming it and the reason, the good
+/// files' claims are stored, nothing panics and nothing hangs.
+#[test]
+fn more_bad_files_are_each_named_with_their_reason_and_none_hangs() {
+    // A real paper (../shared/data/real-documents, see its SOURCE.txt), cut at 60%.
+    let Some(pdf) = shared_data("real-documents/pdf/bmc-hsr_quality-improvement-malawi.pdf") else {
+        return;
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path().join("corpus");
+    std::fs::create_dir_all(&dir).unwrap();
+    let w = |name: &str, data: &[u8]| std::fs::write(dir.join(name), data).unwrap();
+    w("good.txt", b"Heavy rain causes flooding in the valley.\n");
+    // windows-1252 bytes that are not UTF-8: read as Latin-1, with a warning.
+    w("latin1.txt", b"Caf\xe9 cr\xe8me causes weight gain.\n");
+    // Valid UTF-8 beside invalid bytes: read with replacement characters, with a warning.
+    w(
+        "bad-utf8.txt",
+        "Drought reduces crop yields in Br\u{fc}nn \u{2014} ".as_bytes(),
+    );
+    std::fs::OpenOptions::new()
+        .append(true)
+        .open(dir.join("bad-utf8.txt"))
+        .unwrap()
+        .write_all(b"\xff\xfe and more.\n")
+        .unwrap();
+    w("nul.txt", b"Smoke causes\x00 coughing.\n");
+    let paper = std::fs::read(&pdf).unwrap();
+    w("cut.pdf", &paper[..paper.len() * 6 / 10]);
+    // 1 GiB of one byte is about 32 KB of zstd; the cap below is 64 MiB.
+    {
+        let f = std::fs::File::create(dir.join("bomb.txt.zst")).unwrap();
+        let mut z = zstd::stream::write::Encoder::new(f, 3).unwrap();
+        let block = vec![b'a'; 1 << 20];
+        for _ in 0..1024 {
+            z.write_all(&block).unwrap();
+        }
+        z.finish().unwrap();
+    }
+    assert!(std::fs::metadata(dir.join("bomb.txt.zst")).unwrap().len() < 1 << 20);
+    // 200 MB on one line, generated here: longer than the 64 MiB line cap (--max-record).
+    {
+        let mut f =
+            std::io::BufWriter::new(std::fs::File::create(dir.join("one-line.txt")).unwrap());
+        let chunk = b"word ".repeat(1 << 18);
+        for _ in 0..160 {
+            f.write_all(&chunk).unwrap();
+        }
+        f.write_all(b"Late frost causes shoot dieback.\n").unwrap();
+    }
+    assert!(std::fs::metadata(dir.join("one-line.txt")).unwrap().len() > 200_000_000);
+    for fifo in ["pipe.txt", "named-pipe"] {
+        let st = std::process::Command::new("mkfifo")
+            .arg(dir.join(fifo))
+            .status()
+            .unwrap();
+        assert!(st.success());
+    }
+    let store = tmp.path().join("store");
+    let named_pipe = dir.join("named-pipe");
+    let (code, stdout, stderr) = scan_within(
+        &[
+            "--store".as_ref(),
+            store.as_os_str(),
+            "--format".as_ref(),
+            "json".as_ref(),
+            "scan".as_ref(),
+            "--max-decompressed".as_ref(),
+            "64M".as_ref(),
+            dir.as_os_str(),
+            named_pipe.as_os_str(),
+        ],
+        std::time::Duration::from_secs(300),
+    );
+    assert_eq!(code, Some(0), "{stderr}");
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    let warned = |file: &str, reason: &str| {
+        assert!(
+            stderr.lines().any(|l| l.starts_with("hearsay: warning: ")
+                && l.contains(&format!("{file}: "))
+                && l.contains(reason)),
+            "no warning for {file} ({reason}) in:\n{stderr}"
+        )
+    };
+    warned("latin1.txt", "not UTF-8, decoded as Latin-1 (windows-1252)");
+    warned(
+        "bad-utf8.txt",
+        "invalid UTF-8, decoded with replacement characters",
+    );
+    warned("nul.txt", "binary file (skipped)");
+    warned("nul.txt", "holds NUL or control bytes");
+    warned("cut.pdf", "cannot read this PDF");
+    warned(
+        "bomb.txt.zst",
+        "too large: decompresses to more than 67108864 bytes (raise the cap with --max-decompressed)",
+    );
+    warned(
+        "one-line.txt",
+        "too large: line 1 is longer than 67108864 bytes (raise the cap with --max-record)",
+    );
+    let pipe_reason = "a named pipe, not a regular file: not read (to read a stream, pipe it to standard input and pass -)";
+    warned("pipe.txt", pipe_reason);
+    warned("named-pipe", pipe_reason);
+
+    let summary: serde_json::Value = serde_json::from_str(stdout.lines().next().unwrap()).unwrap();
+    let listed = |key: &str| -> Vec<(String, String)> {
+        summary[key]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|f| {
+                let p = f["path"].as_str().unwrap();
+                let name = Path::new(p).file_name().unwrap().to_string_lossy();
+                (name.into_owned(), f["reason"].as_str().unwrap().to_string())
+            })
+            .collect()
+    };
+    let failed: Vec<String> = listed("failed").into_iter().map(|(n, _)| n).collect();
+    let mut expected = vec!["bomb.txt.zst", "cut.pdf", "nul.txt", "one-line.txt"];
+    expected.sort();
+    let mut got = failed.clone();
+    got.sort();
+    assert_eq!(got, expected, "{summary}");
+    let skipped = listed("skipped");
+    for fifo in ["pipe.txt", "named-pipe"] {
+        assert!(
+            skipped.iter().any(|(n, r)| n == fifo && r == pipe_reason),
+            "{fifo} not skipped: {summary}"
+        );
+    }
+    let claims = json_lines(&["claims"], &store);
+    for (file, cause) in [
+        ("good.txt", "heavy rain"),
+        ("latin1.txt", "café crème"),
+        ("bad-utf8.txt", "drought"),
+    ] {
+        assert!(
+            claims
+                .iter()
+                .any(|c| c["source"]["path"].as_str().unwrap().ends_with(file)
+                    && c["cause"]["text"].as_str().unwrap().to_lowercase() == cause),
+            "no claim with cause {cause:?} from {file}: {claims:?}"
+        );
+    }
+    assert_eq!(claims.len(), 3, "{claims:?}");
+}
