@@ -141,9 +141,9 @@ fn top_table(r: &Report) -> Markup {
                 tbody {
                     @for t in &r.top {
                         tr {
-                            td { (t.kind) } td { (t.cause) } td { (t.effect) }
+                            td { (t.kind) } td { (shown(&t.cause)) } td { (shown(&t.effect)) }
                             td.num { (t.documents) } td.num { (t.claims) } td.num { (t.asserted) }
-                            td.num { (t.hedged) } td.num { (t.negated) } td { (t.sign) } td.loc { (t.first) }
+                            td.num { (t.hedged) } td.num { (t.negated) } td { (t.sign) } td.loc { (shown(&t.first)) }
                         }
                     }
                 }
@@ -170,10 +170,10 @@ fn conflicts_table(r: &Report) -> Markup {
                     tbody {
                         @for c in &r.conflicts {
                             tr {
-                                td { (c.kind.as_str()) } td { (c.x_label) } td { (c.y_label) }
+                                td { (c.kind.as_str()) } td { (shown(&c.x_label)) } td { (shown(&c.y_label)) }
                                 @for s in &c.sides {
                                     @let (from, to) = if s.cause == c.x { (&c.x_label, &c.y_label) } else { (&c.y_label, &c.x_label) };
-                                    td { (s.reading) " (" (from) " → " (to) ")" }
+                                    td { (s.reading) " (" (shown(from)) " → " (shown(to)) ")" }
                                     td.num { (s.claims) } td.num { (s.documents) }
                                 }
                                 td.num { (c.support) }
@@ -259,7 +259,7 @@ fn pair_section(p: &PairReport) -> Markup {
             @for v in [&p.x, &p.y] {
                 @if !v.known {
                     p.note { "No variable \"" (shown(&v.query)) "\" in the claims."
-                        @if !v.suggestions.is_empty() { " Variables containing it: " (v.suggestions.join("; ")) "." } }
+                        @if !v.suggestions.is_empty() { " Variables containing it: " (shown(&v.suggestions.join("; "))) "." } }
                 }
             }
             table {

@@ -530,3 +530,366 @@ fn more_bad_files_are_each_named_with_their_reason_and_none_hangs() {
     }
     assert_eq!(claims.len(), 3, "{claims:?}");
 }
+
+/// Sentences, file names, record ids and model names that carry markup, terminal control
+/// sequences and spreadsheet formulas. Returns the corpus folder and the files to scan, named
+/// from inside it (so a file name opens its location cell).
+fn injection_corpus(dir: &Path) -> Vec<String> {
+    let sentences = [
+        "<script>alert(1)</script> smoke causes coughing in the town.",
+        "Dust from <img src=x onerror=alert(2)> quarries causes sneezing.",
+        // Colour (CSI) sequences.
+        "Red dye causes staining of the river bed \u{1b}[31mtoday\u{1b}[0m.",
+        // An OSC 8 hyperlink, terminated by BEL.
+        "Loud noise causes stress in workers \u{1b}]8;;http://evil.example/\u{7}here\u{1b}]8;;\u{7}.",
+        "Heat causes drought\u{7}\u{7} in the south.",
+        // A carriage return that would overwrite the start of the line.
+        "Calm water\rSewage spills cause algae blooms.",
+        // A C1 control (CSI as one character) and a right-to-left override.
+        "Warm \u{9b}2J winters cause tick \u{202e}outbreaks\u{202c} in the hills.",
+        "=HYPERLINK(\"http://evil.example\",\"x\") fertiliser causes algae blooms.",
+        "+1+1 runoff causes turbidity.",
+        "-2+3 cmd salt causes corrosion.",
+        "@SUM(1+1) heat causes drought.",
+        "Heat raises water temperature.",
+        "Heat lowers water temperature.",
+    ];
+    std::fs::write(dir.join("notes.txt"), sentences.join("\n\n") + "\n").unwrap();
+    let records = [
+        serde_json::json!({"id": "=HYPERLINK(\"http://evil.example\")", "text": "Frost causes crop losses."}),
+        serde_json::json!({"id": "\u{1b}[2Jwipe", "text": "Hail causes roof damage."}),
+    ];
+    std::fs::write(
+        dir.join("records.jsonl"),
+        records
+            .iter()
+            .map(|r| r.to_string() + "\n")
+            .collect::<String>(),
+    )
+    .unwrap();
+    let mut names = vec!["notes.txt".to_string(), "records.jsonl".to_string()];
+    for (name, text) in [
+        ("=calc.txt", "Wind causes erosion."),
+        ("@home.txt", "Rain causes mud."),
+        ("+plus.txt", "Snow causes delays."),
+        ("esc\u{1b}[2J.txt", "Ice causes falls."),
+        ("-minus.txt", "Fog causes collisions."),
+    ] {
+        std::fs::write(dir.join(name), format!("{text}\n")).unwrap();
+        names.push(name.to_string());
+    }
+    names
+}
+
+/// Control characters that must not reach a terminal from the input: C0 except line feed and
+/// tab, DEL, C1, and the bidirectional overrides and isolates.
+fn raw_controls(s: &str) -> Vec<char> {
+    s.chars()
+        .filter(|&c| {
+            (c.is_control() && c != '\n' && c != '\t')
+                || matches!(c, '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}')
+        })
+        .collect()
+}
+
+/// Parse CSV with Python's csv module (the reference reader), returning its rows.
+fn python_csv(path: &Path) -> Vec<Vec<String>> {
+    let out = std::process::Command::new("python3")
+        .args([
+            "-c",
+            "import csv, json, sys\nprint(json.dumps(list(csv.reader(open(sys.argv[1], newline='', encoding='utf-8'), strict=True))))",
+        ])
+        .arg(path)
+        .output()
+        .expect("python3 runs");
+    assert!(
+        out.status.success(),
+        "{} is not valid CSV: {}",
+        path.display(),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+/// A cell a spreadsheet would run as a formula: it opens with = + - @ tab or CR (the OWASP
+/// CSV-injection list, common practice) and is not a plain number.
+fn formula_cell(c: &str) -> bool {
+    c.starts_with(['=', '+', '-', '@', '\t', '\r']) && c.parse::<f64>().is_err()
+}
+
+#[test]
+fn markup_escapes_and_formulas_in_the_text_stay_inert_in_every_output() {
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    let names = injection_corpus(&corpus);
+    let store = tmp.path().join("store");
+    let run = |args: &[&str]| -> std::process::Output {
+        let out = hearsay()
+            .current_dir(&corpus)
+            .arg("--store")
+            .arg(&store)
+            .args(args)
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        out
+    };
+    // "-minus.txt" goes after "--", or it would read as an option.
+    let mut scan = vec!["-q", "scan"];
+    scan.extend(names[..names.len() - 1].iter().map(String::as_str));
+    scan.extend(["--", names.last().unwrap()]);
+    run(&scan);
+    let claims = json_lines(&["claims"], &store);
+    let sentences: Vec<String> = claims
+        .iter()
+        .map(|c| c["sentence"].as_str().unwrap().to_string())
+        .collect();
+    for needle in [
+        "<script>alert(1)</script>",
+        "\u{1b}[31mtoday",
+        "\u{1b}]8;;http://evil.example/\u{7}here",
+        "drought\u{7}",
+        "=HYPERLINK(",
+        "@SUM(",
+        "-2+3",
+    ] {
+        assert!(
+            sentences.iter().any(|s| s.contains(needle)),
+            "no stored sentence holds {needle:?}: {sentences:?}"
+        );
+    }
+
+    // An answers file for compare, with hostile model names and a hostile variable name.
+    let answers = tmp.path().join("answers.csv");
+    std::fs::write(
+        &answers,
+        "x,y,family,model,answer\n\
+         heat,drought,directed,\"=HYPERLINK(\"\"http://evil.example\"\")\",yes\n\
+         smoke,coughing,directed,\u{1b}[31mred\u{1b}[0m,no\n\
+         =1+1 frost,crop losses,directed,@model,yes\n",
+    )
+    .unwrap();
+    let ans = answers.to_str().unwrap();
+    let question = json_lines(&["compare", ans, "--view", "questions"], &store)[0]["id"]
+        .as_str()
+        .unwrap()
+        .to_string();
+
+    // Terminal tables: no control character from the text reaches stdout, and the text is still
+    // shown (the controls replaced visibly).
+    let explained = "<script>x</script> Red dye causes staining \u{1b}]8;;http://evil.example/\u{7}now\u{1b}]8;;\u{7}\r\u{7}.";
+    let table_runs: Vec<Vec<&str>> = vec![
+        vec!["claims"],
+        vec!["top"],
+        vec!["pair", "red dye", "staining of the river bed"],
+        vec!["pair", "loud noise", "stress in workers"],
+        vec!["pair", "heat", "drought"],
+        vec!["pair", "warm winters", "tick outbreaks"],
+        vec!["conflicts"],
+        vec!["graph"],
+        vec!["explain", explained],
+        vec!["compare", ans],
+        vec!["compare", ans, "--view", "questions"],
+        vec!["compare", ans, "--explain", &question],
+    ];
+    let mut shown = String::new();
+    for args in &table_runs {
+        let mut a = vec!["--format", "table"];
+        a.extend(args);
+        let out = run(&a);
+        let text = String::from_utf8(out.stdout).unwrap();
+        assert!(
+            raw_controls(&text).is_empty(),
+            "{args:?} printed control characters {:?}:\n{text}",
+            raw_controls(&text)
+        );
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(raw_controls(&err).is_empty(), "{args:?} stderr: {err}");
+        shown += &text;
+    }
+    for visible in [
+        "<script>alert(1)</script> smoke",
+        "river bed \u{FFFD}[31mtoday\u{FFFD}[0m.",
+        "workers \u{FFFD}]8;;http://evil.example/\u{FFFD}here",
+        "drought\u{FFFD}\u{FFFD} in the south",
+        "\u{FFFD}[2J.txt:1",
+        "[\u{FFFD}[2Jwipe]",
+        "\u{FFFD}[31mred\u{FFFD}[0m",
+    ] {
+        assert!(
+            shown.contains(visible),
+            "{visible:?} not shown in:\n{shown}"
+        );
+    }
+
+    // CSV: valid (Python's csv reader, strict), every row as wide as its header, no cell that a
+    // spreadsheet would run as a formula, and the neutralised cells keep their text after the
+    // apostrophe.
+    let graph_csv = tmp.path().join("edges.csv");
+    run(&[
+        "--format",
+        "csv",
+        "graph",
+        "-o",
+        graph_csv.to_str().unwrap(),
+    ]);
+    let mut tables = vec![
+        python_csv(&graph_csv),
+        python_csv(&tmp.path().join("edges.nodes.csv")),
+    ];
+    let csv_runs: Vec<Vec<&str>> = vec![
+        vec!["claims"],
+        vec!["top"],
+        vec!["conflicts"],
+        vec!["pair", "heat", "drought"],
+        vec!["compare", ans],
+        vec!["compare", ans, "--view", "questions"],
+        vec!["compare", ans, "--view", "pairs"],
+    ];
+    for (i, args) in csv_runs.iter().enumerate() {
+        let mut a = vec!["--format", "csv"];
+        a.extend(args);
+        let file = tmp.path().join(format!("out{i}.csv"));
+        std::fs::write(&file, run(&a).stdout).unwrap();
+        tables.push(python_csv(&file));
+    }
+    let mut cells = Vec::new();
+    for t in &tables {
+        let width = t[0].len();
+        for row in t {
+            assert_eq!(row.len(), width, "{row:?} in {t:?}");
+            for c in row {
+                assert!(!formula_cell(c), "formula cell {c:?} in {t:?}");
+                cells.push(c.clone());
+            }
+        }
+    }
+    let claims_csv = &tables[2];
+    let sentence_col = claims_csv[0].iter().position(|h| h == "sentence").unwrap();
+    let csv_sentences: Vec<&str> = claims_csv[1..]
+        .iter()
+        .map(|r| r[sentence_col].as_str())
+        .collect();
+    for s in &sentences {
+        let expected = if formula_cell(s) {
+            format!("'{s}")
+        } else {
+            s.clone()
+        };
+        assert!(
+            csv_sentences.contains(&expected.as_str()),
+            "{expected:?} not in the claims CSV: {csv_sentences:?}"
+        );
+    }
+    for neutralised in [
+        "'=HYPERLINK(\"http://evil.example\",\"x\") fertiliser causes algae blooms.",
+        "'+1+1 runoff causes turbidity.",
+        "'-2+3 cmd salt causes corrosion.",
+        "'@SUM(1+1) heat causes drought.",
+        "'=calc.txt:1",
+        "'@home.txt:1",
+        "'+plus.txt:1",
+        "'-minus.txt:1",
+        "'=HYPERLINK(\"http://evil.example\")",
+        "'@model",
+        "'=1+1 frost",
+    ] {
+        assert!(
+            cells.iter().any(|c| c == neutralised),
+            "no cell {neutralised:?}"
+        );
+    }
+}
+
+/// The report, parsed with Python's html.parser (the reference parser): the page's own script is
+/// its only script, no element carries an event handler or comes from the text, no control
+/// character is left, and the hostile sentences are there as text.
+#[test]
+fn the_report_shows_hostile_text_as_text() {
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = tmp.path().join("corpus");
+    std::fs::create_dir_all(&corpus).unwrap();
+    let names = injection_corpus(&corpus);
+    let store = tmp.path().join("store");
+    let mut scan = hearsay();
+    scan.current_dir(&corpus)
+        .arg("--store")
+        .arg(&store)
+        .args(["-q", "scan"])
+        .args(&names[..names.len() - 1])
+        .arg("--")
+        .arg(names.last().unwrap());
+    succeeded(&mut scan);
+    let page = tmp.path().join("report.html");
+    succeeded(
+        hearsay()
+            .arg("--store")
+            .arg(&store)
+            .args([
+                "report",
+                "--title",
+                "<script>alert(3)</script>\u{1b}[2J",
+                "--pair",
+                "smoke",
+                "coughing",
+                "-o",
+            ])
+            .arg(&page),
+    );
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(raw_controls(&html).is_empty(), "{:?}", raw_controls(&html));
+    const CHECK: &str = r#"
+import json, sys
+from html.parser import HTMLParser
+class Page(HTMLParser):
+    def __init__(self):
+        super().__init__(convert_charrefs=True)
+        self.open, self.tags, self.handlers, self.scripts, self.text = [], [], [], [], []
+    def handle_starttag(self, tag, attrs):
+        self.tags.append(tag)
+        self.handlers += [(tag, k) for k, _ in attrs if k.lower().startswith("on")]
+        self.open.append(tag)
+    def handle_endtag(self, tag):
+        while self.open and self.open.pop() != tag:
+            pass
+    def handle_data(self, data):
+        if self.open and self.open[-1] == "script":
+            self.scripts.append(data)
+        else:
+            self.text.append(data)
+p = Page()
+p.feed(open(sys.argv[1], encoding="utf-8").read())
+print(json.dumps({"scripts": p.tags.count("script"), "img": p.tags.count("img"),
+                  "handlers": p.handlers, "script_text": "".join(p.scripts),
+                  "text": " ".join(p.text)}))
+"#;
+    let out = std::process::Command::new("python3")
+        .args(["-c", CHECK])
+        .arg(&page)
+        .output()
+        .expect("python3 runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["scripts"], 1, "{v}");
+    assert_eq!(v["img"], 0, "{v}");
+    assert_eq!(v["handlers"], serde_json::json!([]), "{v}");
+    assert!(!v["script_text"].as_str().unwrap().contains("alert("));
+    let text = v["text"].as_str().unwrap();
+    for shown in [
+        "<script>alert(1)</script> smoke causes coughing in the town.",
+        "Dust from <img src=x onerror=alert(2)> quarries causes sneezing.",
+        "<script>alert(3)</script>\u{FFFD}[2J",
+        "river bed \u{FFFD}[31mtoday\u{FFFD}[0m.",
+    ] {
+        assert!(text.contains(shown), "{shown:?} not shown as text");
+    }
+}
