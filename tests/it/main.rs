@@ -5,6 +5,7 @@ mod common;
 mod compare;
 mod compare_stats;
 mod confidence;
+mod crash;
 mod external;
 mod first_use;
 mod graph;
