@@ -39,13 +39,14 @@ fn is_bidi_control(c: char) -> bool {
     matches!(c, '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}')
 }
 
-/// A CSV cell that a spreadsheet will not run as a formula. Common practice (the OWASP advice on
-/// CSV injection): a cell that begins with `=`, `+`, `-`, `@`, a tab or a carriage return gets
-/// a leading apostrophe, which spreadsheets take as "this is text". Plain numbers ("-0.50",
+/// A CSV cell that a spreadsheet will not run as a formula. Common practice (OWASP's CSV
+/// injection advice, and requirement 1.2.10 of its Application Security Verification Standard):
+/// a cell that begins with `=`, `+`, `-`, `@`, a tab, a carriage return or NUL gets a leading
+/// apostrophe, which spreadsheets take as "this is text". Plain numbers ("-0.50",
 /// "+1") are left alone: they are data, and no spreadsheet reads them as anything else.
 pub fn csv_cell(s: &str) -> std::borrow::Cow<'_, str> {
     match s.chars().next() {
-        Some('=' | '+' | '-' | '@' | '\t' | '\r') if !is_plain_number(s) => {
+        Some('=' | '+' | '-' | '@' | '\t' | '\r' | '\0') if !is_plain_number(s) => {
             std::borrow::Cow::Owned(format!("'{s}"))
         }
         _ => std::borrow::Cow::Borrowed(s),
@@ -252,8 +253,10 @@ mod tests {
 
     #[test]
     fn formula_cells_get_an_apostrophe_and_numbers_do_not() {
-        // The six leading characters of the OWASP CSV-injection advice (common practice).
-        for cell in ["=1+1", "+cmd", "-2+3", "@SUM(A1)", "\tx", "\rx", "-", "+"] {
+        // The leading characters of OWASP's CSV-injection advice (common practice).
+        for cell in [
+            "=1+1", "+cmd", "-2+3", "@SUM(A1)", "\tx", "\rx", "\0x", "-", "+",
+        ] {
             assert_eq!(csv_cell(cell), format!("'{cell}"), "{cell:?}");
         }
         for cell in [

@@ -611,10 +611,10 @@ fn python_csv(path: &Path) -> Vec<Vec<String>> {
     serde_json::from_slice(&out.stdout).unwrap()
 }
 
-/// A cell a spreadsheet would run as a formula: it opens with = + - @ tab or CR (the OWASP
-/// CSV-injection list, common practice) and is not a plain number.
+/// A cell a spreadsheet would run as a formula: it opens with = + - @ tab CR or NUL (common
+/// practice: OWASP's CSV-injection advice and its ASVS requirement 1.2.10) and is not a number.
 fn formula_cell(c: &str) -> bool {
-    c.starts_with(['=', '+', '-', '@', '\t', '\r']) && c.parse::<f64>().is_err()
+    c.starts_with(['=', '+', '-', '@', '\t', '\r', '\0']) && c.parse::<f64>().is_err()
 }
 
 #[test]

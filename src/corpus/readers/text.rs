@@ -165,6 +165,34 @@ mod tests {
     }
 
     #[test]
+    fn a_line_over_the_record_cap_fails_the_file() {
+        let opts = ReadOptions {
+            max_record: 10,
+            ..ReadOptions::default()
+        };
+        let read = |bytes: &[u8]| {
+            let mut docs = Vec::new();
+            let r = TextReader.read_stream(
+                "t.txt",
+                &mut std::io::BufReader::with_capacity(4, bytes),
+                &opts,
+                &mut Vec::new(),
+                &mut |d| docs.push(d),
+            );
+            (r, docs.len())
+        };
+        // Lines of exactly the cap are read, whatever the buffer boundaries.
+        let (r, n) = read(b"0123456789\nabcdefghij\n0123456789");
+        assert!(r.is_ok() && n == 1, "{r:?}");
+        let (r, n) = read(b"short\n0123456789a\nmore");
+        assert_eq!(n, 0);
+        assert_eq!(
+            r.unwrap_err().to_string(),
+            "too large: line 2 is longer than 10 bytes (raise the cap with --max-record)"
+        );
+    }
+
+    #[test]
     fn latin1_is_decoded_and_reported() {
         let mut w = Vec::new();
         let s = decode_text("l.txt", b"caf\xe9 causes joy", &mut w).unwrap();
