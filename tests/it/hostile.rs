@@ -567,7 +567,13 @@ fn injection_corpus(dir: &Path) -> Vec<String> {
             .collect::<String>(),
     )
     .unwrap();
-    let mut names = vec!["notes.txt".to_string(), "records.jsonl".to_string()];
+    // A file that fails, named with an escape sequence: the warning and summary name it.
+    std::fs::write(dir.join("bin\u{1b}[2J.txt"), b"\0\0\0 binary").unwrap();
+    let mut names = vec![
+        "notes.txt".to_string(),
+        "records.jsonl".to_string(),
+        "bin\u{1b}[2J.txt".to_string(),
+    ];
     for (name, text) in [
         ("=calc.txt", "Wind causes erosion."),
         ("@home.txt", "Rain causes mud."),
@@ -640,10 +646,21 @@ fn markup_escapes_and_formulas_in_the_text_stay_inert_in_every_output() {
         out
     };
     // "-minus.txt" goes after "--", or it would read as an option.
-    let mut scan = vec!["-q", "scan"];
+    let mut scan = vec!["--format", "table", "scan"];
     scan.extend(names[..names.len() - 1].iter().map(String::as_str));
     scan.extend(["--", names.last().unwrap()]);
-    run(&scan);
+    let out = run(&scan);
+    let (stdout, stderr) = (
+        String::from_utf8(out.stdout).unwrap(),
+        String::from_utf8(out.stderr).unwrap(),
+    );
+    assert!(raw_controls(&stdout).is_empty(), "{stdout:?}");
+    assert!(raw_controls(&stderr).is_empty(), "{stderr:?}");
+    assert!(
+        stderr.contains("hearsay: warning: bin\u{FFFD}[2J.txt: binary file")
+            && stdout.contains("failed: bin\u{FFFD}[2J.txt: binary file"),
+        "{stdout}\n{stderr}"
+    );
     let claims = json_lines(&["claims"], &store);
     let sentences: Vec<String> = claims
         .iter()
@@ -888,6 +905,7 @@ print(json.dumps({"scripts": p.tags.count("script"), "img": p.tags.count("img"),
         "<script>alert(1)</script> smoke causes coughing in the town.",
         "Dust from <img src=x onerror=alert(2)> quarries causes sneezing.",
         "<script>alert(3)</script>\u{FFFD}[2J",
+        "bin\u{FFFD}[2J.txt",
         "river bed \u{FFFD}[31mtoday\u{FFFD}[0m.",
     ] {
         assert!(text.contains(shown), "{shown:?} not shown as text");
