@@ -443,7 +443,10 @@ mod tests {
     /// as correct when both its short and long forms equal the labelled ones exactly.
     #[test]
     fn elife_sample_precision_and_recall() {
-        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/abbrev/elife-sample.tsv");
+        let path = concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/tests/data/abbrev/elife-sample.tsv"
+        );
         let text = std::fs::read_to_string(path).expect("labelled sample");
         let (mut gold, mut found, mut correct) = (0usize, 0usize, 0usize);
         let mut rows = 0;
@@ -452,7 +455,11 @@ mod tests {
             assert_eq!(cols.len(), 6, "malformed row: {line}");
             let at: usize = cols[1].parse().expect("byte offset");
             let sentence = cols[5];
-            assert_eq!(&sentence[at..at + 1], "(", "offset must point at a parenthesis");
+            assert_eq!(
+                &sentence[at..at + 1],
+                "(",
+                "offset must point at a parenthesis"
+            );
             rows += 1;
             let is_def = cols[2] == "yes";
             gold += usize::from(is_def);
@@ -477,7 +484,10 @@ mod tests {
             "abbreviations, eLife sample: {rows} parentheses, {gold} definitions, {found} found, \
              {correct} correct: precision {precision:.3}, recall {recall:.3}"
         );
-        assert!(rows >= 500 && gold >= 100, "the sample holds at least 100 definitions");
+        assert!(
+            rows >= 500 && gold >= 100,
+            "the sample holds at least 100 definitions"
+        );
         // Floors: the measured values less a small margin, so a regression fails here.
         assert!(precision >= PRECISION_FLOOR, "precision {precision:.3}");
         assert!(recall >= RECALL_FLOOR, "recall {recall:.3}");

@@ -11,6 +11,7 @@
 //! and [`dropped_words`] (the words keys leave out, which the index leaves out too).
 
 pub mod abbrev;
+pub mod heads;
 
 use crate::patterns::Lexicon;
 use compact_str::CompactString;
