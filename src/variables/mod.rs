@@ -12,6 +12,7 @@
 
 pub mod abbrev;
 pub mod heads;
+pub mod merge;
 
 use crate::patterns::Lexicon;
 use compact_str::CompactString;
