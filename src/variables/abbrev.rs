@@ -268,7 +268,7 @@ pub struct Abbreviations {
 }
 
 /// One short form's pooled meaning.
-#[derive(Debug, Clone, PartialEq, Eq)]
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
 pub struct AbbreviationUse {
     pub short: String,
     /// (long form as first seen, number of documents) for each distinct long-form key, most
