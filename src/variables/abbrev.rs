@@ -287,7 +287,10 @@ impl Abbreviations {
     /// Record a definition seen in `doc`; `long_key` is the long form's variable key, so that
     /// "carbon dioxide" and "Carbon Dioxide" count as one meaning.
     pub fn add(&mut self, doc: &str, def: &Definition, long_key: &str) {
-        if long_key.is_empty() {
+        // Latin connectives pass the published short-form test ("(i.e., the interaction …)")
+        // but never abbreviate the words beside them.
+        let latin = ["i.e.", "e.g.", "cf.", "etc.", "viz.", "vs.", "ie", "eg"];
+        if long_key.is_empty() || latin.contains(&def.short.to_lowercase().as_str()) {
             return;
         }
         let entry = self

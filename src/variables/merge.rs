@@ -6,13 +6,14 @@
 //! the reason, and an evidence count a reviewer can weigh:
 //! - **abbreviation**: the corpus defines one as the short form of the other ("soil organic
 //!   carbon (SOC)"); evidence is the number of documents that define it so. Short forms defined
-//!   two ways are never suggested (see [`super::abbrev::Abbreviations`]);
-//! - **spelling**: the keys are equal once British spellings are folded to American ones
+//!   two ways are never suggested (see [`super::abbrev::Abbreviations`]), nor long forms whose key
+//!   loses one of their one-letter words ("protein kinase A" keys as "protein kinase");
+//! - **spelling**: the labels are equal once British spellings are folded to American ones
 //!   ("fertilised" / "fertilized", "colour" / "color", "centre" / "center", "haem" / "hem");
 //! - **hyphen**: the labels are equal once spaces and hyphens are removed ("ground water" /
 //!   "ground-water" / "groundwater");
-//! - **plural**: the labels are equal once an irregular plural that the stemmer leaves apart is
-//!   made singular ("mice" / "mouse", "bacteria" / "bacterium", "analyses" / "analysis");
+//! - **plural**: the labels are equal once a plural that the stemmer leaves apart is made
+//!   singular ("mice" / "mouse", "bacteria" / "bacterium", "analyses" / "analysis", "RNAs" / "RNA");
 //! - **same head**: one is the other with qualifiers ("nitrogen runoff from fertilised fields" →
 //!   "nitrogen runoff", see [`super::heads`]);
 //! - **near duplicate**: their key words overlap by at least [`NEAR_DUPLICATE_JACCARD`].
@@ -129,6 +130,12 @@ pub fn suggest(
 
     // Abbreviations defined in the corpus, unambiguous ones only.
     for u in abbreviations.uses().filter(|u| u.is_unambiguous()) {
+        if u.longs
+            .first()
+            .is_some_and(|(l, _)| key_drops_a_letter(l, normalizer))
+        {
+            continue;
+        }
         let (Some(short), Some((long, docs))) = (
             by_key.get(normalizer.key(&u.short).as_str()),
             u.longs
@@ -156,7 +163,7 @@ pub fn suggest(
         let mut groups: BTreeMap<String, Vec<&VariableInfo>> = BTreeMap::new();
         for v in vars {
             let f = match reason {
-                MergeReason::Spelling => fold_spelling(v, normalizer),
+                MergeReason::Spelling => fold_spelling(v),
                 MergeReason::Hyphen => fold_hyphens(v),
                 _ => fold_plural(v),
             };
@@ -231,6 +238,16 @@ pub fn suggest(
     out
 }
 
+/// Does the key of `long` drop a one-letter word of it? "protein kinase A (PKA)" has the key of
+/// "protein kinase" (the "A" reads as an article), and merging PKA into every protein kinase
+/// would join two concepts.
+fn key_drops_a_letter(long: &str, normalizer: &Normalizer) -> bool {
+    let kept: Vec<String> = normalizer.content_words(long).collect();
+    long.split(|c: char| !c.is_alphanumeric())
+        .filter(|w| w.chars().count() == 1)
+        .any(|w| !kept.contains(&w.to_lowercase()))
+}
+
 /// Should `a` be kept over `b`? More claims, then the shorter key, then the smaller key.
 fn keeps(a: &VariableInfo, b: &VariableInfo) -> bool {
     (std::cmp::Reverse(a.claims), a.key.len(), &a.key)
@@ -285,18 +302,19 @@ pub fn american(word: &str) -> String {
     w
 }
 
-/// The key of the label with every word spelled the American way.
-fn fold_spelling(v: &VariableInfo, normalizer: &Normalizer) -> String {
-    let words: Vec<String> = v
-        .label
+/// The label's words spelled the American way. Labels, not keys, are compared: stems can meet by
+/// chance ("organisation" and "organisms" share the stem "organ"), spellings of one word do not.
+fn fold_spelling(v: &VariableInfo) -> String {
+    v.label
         .to_lowercase()
         .split(|c: char| !c.is_alphanumeric())
         .filter(|w| !w.is_empty())
         .map(american)
-        .collect();
-    normalizer.key(&words.join(" "))
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
+/// The label without case, spaces, hyphens or other punctuation.
 fn fold_hyphens(v: &VariableInfo) -> String {
     v.label
         .to_lowercase()
@@ -332,7 +350,9 @@ const IRREGULAR_PLURALS: &[(&str, &str)] = &[
     ("algae", "alga"),
 ];
 
-/// The label with its last word in the singular, for the plurals listed above.
+/// The label with its last word in the singular: the irregular plurals above, and a final "s"
+/// after at least three characters not ending in "s", "u" or "i" (the plurals of short forms,
+/// "RNAs" / "RNA", which the stemmer keeps apart).
 fn fold_plural(v: &VariableInfo) -> String {
     let l = v.label.to_lowercase();
     let l = l.trim();
@@ -340,11 +360,16 @@ fn fold_plural(v: &VariableInfo) -> String {
         Some(i) => (&l[..=i], &l[i + 1..]),
         None => ("", l),
     };
-    let last = IRREGULAR_PLURALS
+    let singular = IRREGULAR_PLURALS
         .iter()
         .find(|(pl, _)| *pl == last)
-        .map_or(last, |(_, sg)| *sg);
-    format!("{rest}{last}")
+        .map(|(_, sg)| *sg)
+        .or_else(|| {
+            last.strip_suffix('s')
+                .filter(|s| s.chars().count() >= 3 && !s.ends_with(['s', 'u', 'i']))
+        })
+        .unwrap_or(last);
+    format!("{rest}{singular}")
 }
 
 /// A readable, file-safe id for a label: lower case, runs of anything but letters and digits
@@ -444,6 +469,8 @@ mod tests {
             var(&n, "ground water", 3),
             var(&n, "gut bacteria", 2),
             var(&n, "gut bacterium", 1),
+            var(&n, "RNAs", 2),
+            var(&n, "RNA", 6),
             var(&n, "groundwater", 7),
             var(&n, "nitrogen runoff", 6),
             var(&n, "nitrogen runoff from fertilised fields", 1),
@@ -511,6 +538,25 @@ mod tests {
         assert!(suggest(&vars, &abbr, &n)
             .iter()
             .all(|m| m.reason != MergeReason::Abbreviation));
+    }
+
+    #[test]
+    fn chance_stem_matches_are_no_spelling_variant() {
+        let n = norm();
+        // Porter2 stems both to "organ": a spelling fold over keys would join them.
+        let vars = vec![var(&n, "organisation", 4), var(&n, "organisms", 4)];
+        assert!(suggest(&vars, &Abbreviations::default(), &n).is_empty());
+    }
+
+    #[test]
+    fn a_letter_dropped_by_the_key_blocks_an_abbreviation() {
+        let n = norm();
+        let vars = vec![var(&n, "PKA", 4), var(&n, "protein kinase", 4)];
+        let mut abbr = Abbreviations::default();
+        let d = &definitions("Activation of protein kinase A (PKA) follows.")[0];
+        assert_eq!(d.long, "protein kinase A");
+        abbr.add("doc1", d, &n.key(&d.long));
+        assert!(suggest(&vars, &abbr, &n).is_empty());
     }
 
     #[test]
