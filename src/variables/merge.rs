@@ -7,7 +7,9 @@
 //! - **abbreviation**: the corpus defines one as the short form of the other ("soil organic
 //!   carbon (SOC)"); evidence is the number of documents that define it so. Short forms defined
 //!   two ways are never suggested (see [`super::abbrev::Abbreviations`]), nor long forms whose key
-//!   loses one of their one-letter words ("protein kinase A" keys as "protein kinase");
+//!   loses one of their one-letter words ("protein kinase A" keys as "protein kinase"), nor a
+//!   one-word long form defined in a single document (the letters of "PTEN" are all found in
+//!   "protein", so one "protein (PTEN)" would fold PTEN into every protein);
 //! - **spelling**: the labels are equal once British spellings are folded to American ones
 //!   ("fertilised" / "fertilized", "colour" / "color", "centre" / "center", "haem" / "hem");
 //! - **hyphen**: the labels are equal once spaces and hyphens are removed ("ground water" /
@@ -173,7 +175,13 @@ pub fn suggest(
         }
         for group in groups.values().filter(|g| g.len() > 1) {
             let keep = best(group);
-            for v in group.iter().filter(|v| v.key != keep.key) {
+            // Labels that are equal already are no spelling variant (the hyphen fold, which
+            // compares labels without punctuation, takes them).
+            let same = |v: &VariableInfo| v.label.to_lowercase() == keep.label.to_lowercase();
+            for v in group
+                .iter()
+                .filter(|v| v.key != keep.key && !(reason == MergeReason::Spelling && same(v)))
+            {
                 push(&mut out, v, keep, reason, None, true);
             }
         }
@@ -557,6 +565,19 @@ mod tests {
         assert_eq!(d.long, "protein kinase A");
         abbr.add("doc1", d, &n.key(&d.long));
         assert!(suggest(&vars, &abbr, &n).is_empty());
+    }
+
+    #[test]
+    fn a_one_word_long_form_needs_two_documents() {
+        let n = norm();
+        let vars = vec![var(&n, "PTEN", 4), var(&n, "protein", 40)];
+        let mut abbr = Abbreviations::default();
+        let d = &definitions("Loss of the protein (PTEN) follows.")[0];
+        assert_eq!(d.long, "protein");
+        abbr.add("doc1", d, &n.key(&d.long));
+        assert!(suggest(&vars, &abbr, &n).is_empty());
+        abbr.add("doc2", d, &n.key(&d.long));
+        assert_eq!(suggest(&vars, &abbr, &n).len(), 1);
     }
 
     #[test]
