@@ -1,6 +1,6 @@
 //! `hearsay claims`: every stored claim that matches the filters.
 
-use super::output::find_var;
+use super::variables::{no_variable_note, EXIT_NO_VARIABLE};
 use super::{write_rows, ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::Args;
@@ -11,8 +11,10 @@ use std::process::ExitCode;
 #[command(
     after_help = "JSON output is the claim record itself (see the README's \"Output \
 schema\"), one per line, as `extract` prints it. A name given to --cause, --effect or --var \
-that is no variable of the store is noted on stderr, with the variables that contain it; the \
-output is then empty.\n\nExit status: 0 (also when no claim matches), 2 on an error.\n\nA \
+that is no variable of the store is noted on stderr, with the nearest variables (by spelling \
+and shared words) and their claim counts; the output is then empty.\n\nExit status: 0 (also \
+when no claim matches), 3 when a name given to --cause, --effect or --var is no variable, 2 on an \
+error.\n\nA \
 claim is a statement found in text, not evidence that the causation is real."
 )]
 pub struct ClaimsArgs {
@@ -50,16 +52,22 @@ pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
             .map(|s| loaded.aliases.resolve(&norm.key(s)).to_string())
     };
     let (cause, effect, var) = (key(&a.cause), key(&a.effect), key(&a.var));
-    // A misspelt name gives an empty table; say why on stderr, where the data is not.
+    // A misspelt name gives an empty table; say why on stderr, where the data is not, with the
+    // nearest variables, and exit with the status that says so.
+    let mut missed = false;
     for (flag, name) in [
         ("--cause", &a.cause),
         ("--effect", &a.effect),
         ("--var", &a.var),
     ] {
         if let Some(name) = name {
-            if let Err(e) = find_var(&loaded, name) {
+            if loaded.lookup(name).1.is_none() {
+                missed = true;
                 if !g.quiet {
-                    eprintln!("hearsay: note: {flag}: {e}; no claim can match");
+                    eprintln!(
+                        "hearsay: note: {flag}: {}; no claim can match",
+                        no_variable_note(&loaded, name)
+                    );
                 }
             }
         }
@@ -90,6 +98,9 @@ pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
     }
     let mut out = std::io::stdout().lock();
     write_rows(&mut out, g.format(), &picked, cells, HEADERS)?;
+    if missed {
+        return Ok(ExitCode::from(EXIT_NO_VARIABLE));
+    }
     Ok(ExitCode::SUCCESS)
 }
 

@@ -26,6 +26,7 @@ mod score;
 mod top;
 mod train_confidence;
 mod train_tagger;
+mod variables;
 
 use anyhow::{Context, Result};
 use clap::{ArgMatches, Args, FromArgMatches, Parser, Subcommand, ValueEnum};
@@ -53,7 +54,8 @@ hearsay prints is advice. Check the primary literature and ask qualified practit
 
 const AFTER: &str =
     "Exit status: 0 on success (warnings about single files included), 1 when a check fails
-(scan or extract --strict with an unreadable file, a failing `patterns check`), 2 on an error.
+(scan or extract --strict with an unreadable file, a failing `patterns check`), 2 on an error,
+3 when `pair` or `claims` is given a name that is no variable (the nearest ones are suggested).
 Output: a table on a terminal, JSON Lines otherwise; choose with --format.
 Typical use:  hearsay scan corpora-demo  &&  hearsay pair \"fertiliser runoff\" \"algae blooms\"";
 
@@ -141,6 +143,8 @@ pub enum Command {
     Compare(compare::CompareArgs),
     /// Write one self-contained HTML page: summary, claim graph, plots, tables and evidence.
     Report(report::ReportArgs),
+    /// The variables: surface forms, heads and qualifiers, abbreviations, merge suggestions.
+    Variables(variables::VariablesArgs),
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -202,6 +206,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Score(a) => score::run(g, a),
         Command::Compare(a) => compare::run(g, a),
         Command::Report(a) => report::run(g, a),
+        Command::Variables(a) => variables::run(g, a),
     }
 }
 

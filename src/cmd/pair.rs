@@ -1,6 +1,7 @@
 //! `hearsay pair X Y`: what the corpus says about two variables, in each direction.
 
 use super::output::count;
+use super::variables::{no_variable_note, EXIT_NO_VARIABLE};
 use super::{escape, ClaimFilter, Format, Global};
 use anyhow::{Context, Result};
 use clap::Args;
@@ -17,8 +18,9 @@ and Y → X by modality and polarity, distinct documents, association claims (ei
 co-mentions: sentences naming both with no claim between them. The direction ratio is the share \
 of non-negated causal claims that go X → Y. When a relation has more claims than --evidence \
 shows, a line under the evidence says how many are left out (the table only; JSON has the \
-counts and the evidence list).\n\nExit status: 0 (also when a name is no variable: the table \
-notes it), 2 on an error.\n\nThese are counts of statements in text, not \
+counts and the evidence list).\n\nExit status: 0 on an answer (also when no claim links the \
+two), 3 when a name is no variable (the table notes it, and stderr lists the nearest variables \
+with their claim counts), 2 on an error.\n\nThese are counts of statements in text, not \
 evidence that either causation is real."
 )]
 pub struct PairArgs {
@@ -84,6 +86,18 @@ fn answer(g: &Global, a: &PairArgs, q: &mut PairQuery, print: bool) -> Result<Ex
         }
         Format::Csv => print_csv(&mut out, &rep)?,
         Format::Table => print_table(&mut out, &rep)?,
+    }
+    // A name that is no variable: the nearest ones, from the whole graph, on stderr (where the
+    // data is not), and the exit status that says so.
+    let unknown: Vec<&VarMatch> = [&rep.x, &rep.y].into_iter().filter(|v| !v.known).collect();
+    if !unknown.is_empty() {
+        if !g.quiet {
+            let loaded = g.graph(&a.filter.to_filter())?;
+            for v in unknown {
+                eprintln!("hearsay: note: {}", no_variable_note(&loaded, &v.query));
+            }
+        }
+        return Ok(ExitCode::from(EXIT_NO_VARIABLE));
     }
     Ok(ExitCode::SUCCESS)
 }

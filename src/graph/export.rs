@@ -2,7 +2,14 @@
 //! `node_link_graph` reads), GraphML, GEXF 1.2, Graphviz DOT, and CSV edge and node lists.
 //!
 //! The export is a wire type ([`Export`]) built from the internal [`ClaimGraph`], so the
-//! aggregation can change without changing the files. XML is written with quick-xml, which
+//! aggregation can change without changing the files.
+//!
+//! Node ids in every file are readable: the slug of the variable's label ("fertiliser runoff" →
+//! `fertiliser-runoff`), made unique over the whole graph (not only the exported part) by
+//! [`crate::variables::merge::unique_slugs`], so a variable has the same id in every export of
+//! one store. The variable key is kept as the node attribute `key`. Inside the program, nodes and
+//! edge ends are still named by key ([`ExportNode::id`], [`ExportEdge::source`]); the writers
+//! translate. XML is written with quick-xml, which
 //! escapes every attribute value and text node; DOT with petgraph's `dot` module, which escapes
 //! labels, plus [`dot_quote`] for the other string attributes; CSV with the csv crate.
 
@@ -13,13 +20,16 @@ use petgraph::graph::NodeIndex;
 use quick_xml::events::{BytesDecl, BytesText, Event};
 use quick_xml::Writer;
 use serde::Serialize;
-use std::collections::{BTreeSet, HashSet, VecDeque};
+use std::collections::{BTreeSet, HashMap, HashSet, VecDeque};
 use std::io::Write;
 
 /// One variable in an export.
 #[derive(Debug, Clone, Serialize)]
 pub struct ExportNode {
+    /// The variable key, which edges name their ends by.
     pub id: String,
+    /// The readable id files use.
+    pub slug: String,
     pub label: String,
     pub mentions: usize,
     pub documents: usize,
@@ -216,11 +226,13 @@ pub fn select(g: &ClaimGraph, s: &Selection) -> Export {
         .flat_map(|e| [e.source.as_str(), e.target.as_str()])
         .chain(s.around.as_deref().filter(|k| g.index.contains_key(*k)))
         .collect();
+    let slugs = node_slugs(g);
     let nodes = keys
         .into_iter()
-        .filter_map(|k| g.index.get(k).map(|&n| &g.graph[n]))
-        .map(|v| ExportNode {
+        .filter_map(|k| g.index.get(k).map(|&n| (n, &g.graph[n])))
+        .map(|(n, v)| ExportNode {
             id: v.key.clone(),
+            slug: slugs[n.index()].clone(),
             label: v.label.clone(),
             mentions: v.mentions,
             documents: v.docs,
@@ -234,12 +246,53 @@ pub fn select(g: &ClaimGraph, s: &Selection) -> Export {
     }
 }
 
+/// The readable id of every node of the graph, by node index: the slugs of the labels, unique.
+pub fn node_slugs(g: &ClaimGraph) -> Vec<String> {
+    let vars: Vec<(&str, &str)> = g
+        .graph
+        .node_weights()
+        .map(|v| (v.key.as_str(), v.label.as_str()))
+        .collect();
+    crate::variables::merge::unique_slugs(&vars)
+}
+
+/// Key → readable id, for the edge ends of an export.
+fn file_ids(e: &Export) -> HashMap<&str, &str> {
+    e.nodes
+        .iter()
+        .map(|n| (n.id.as_str(), n.slug.as_str()))
+        .collect()
+}
+
+/// The readable id of the node keyed `key` (the key itself if the export lacks the node).
+fn file_id<'a>(ids: &HashMap<&str, &'a str>, key: &'a str) -> &'a str {
+    ids.get(key).copied().unwrap_or(key)
+}
+
 /// Node-link JSON as networkx's `node_link_graph(data, edges="edges")` reads it.
 pub fn write_json(out: &mut impl Write, e: &Export) -> std::io::Result<()> {
+    let ids = file_ids(e);
+    let nodes: Vec<serde_json::Value> = e
+        .nodes
+        .iter()
+        .map(|n| {
+            serde_json::json!({
+                "id": n.slug, "key": n.id, "label": n.label,
+                "mentions": n.mentions, "documents": n.documents,
+            })
+        })
+        .collect();
+    let mut edges: Vec<serde_json::Value> = Vec::with_capacity(e.edges.len());
+    for ed in &e.edges {
+        let mut v = serde_json::to_value(ed)?;
+        v["source"] = file_id(&ids, &ed.source).into();
+        v["target"] = file_id(&ids, &ed.target).into();
+        edges.push(v);
+    }
     let v = serde_json::json!({
         "directed": true, "multigraph": false,
         "graph": {"weight_rule": e.weight_rule, "duplicates_removed": e.duplicates_removed},
-        "nodes": e.nodes, "edges": e.edges,
+        "nodes": nodes, "edges": edges,
     });
     serde_json::to_writer_pretty(&mut *out, &v)?;
     out.write_all(b"\n")
@@ -305,13 +358,15 @@ const NODE_ATTRS: &[(&str, AttrType)] = &[
     ("label", AttrType::Text),
     ("mentions", AttrType::Int),
     ("documents", AttrType::Int),
+    ("key", AttrType::Text),
 ];
 
-fn node_values(n: &ExportNode) -> [String; 3] {
+fn node_values(n: &ExportNode) -> [String; 4] {
     [
         n.label.clone(),
         n.mentions.to_string(),
         n.documents.to_string(),
+        n.id.clone(),
     ]
 }
 
@@ -319,6 +374,7 @@ type XmlResult = quick_xml::Result<()>;
 
 /// GraphML, with one `<key>` per attribute and the weight rule as graph data.
 pub fn write_graphml(out: &mut impl Write, e: &Export) -> XmlResult {
+    let ids = file_ids(e);
     let mut w = Writer::new_with_indent(out, b' ', 2);
     w.write_event(Event::Decl(BytesDecl::new("1.0", Some("UTF-8"), None)))?;
     let sample = e.edges.first().map(edge_attrs).unwrap_or_default();
@@ -359,7 +415,7 @@ pub fn write_graphml(out: &mut impl Write, e: &Export) -> XmlResult {
                     for n in &e.nodes {
                         let vals = node_values(n);
                         w.create_element("node")
-                            .with_attribute(("id", n.id.as_str()))
+                            .with_attribute(("id", n.slug.as_str()))
                             .write_inner_content(|w| {
                                 for ((name, _), v) in NODE_ATTRS.iter().zip(vals.iter()) {
                                     data(w, &format!("node_{name}"), v)?;
@@ -370,8 +426,8 @@ pub fn write_graphml(out: &mut impl Write, e: &Export) -> XmlResult {
                     for ed in &e.edges {
                         w.create_element("edge")
                             .with_attributes([
-                                ("source", ed.source.as_str()),
-                                ("target", ed.target.as_str()),
+                                ("source", file_id(&ids, &ed.source)),
+                                ("target", file_id(&ids, &ed.target)),
                             ])
                             .write_inner_content(|w| {
                                 for (name, _, v) in edge_attrs(ed) {
@@ -398,6 +454,7 @@ fn data<W: Write>(w: &mut Writer<W>, key: &str, v: &str) -> std::io::Result<()> 
 /// `weight` attribute; the other counts are declared attributes; the weight rule is the
 /// `<meta><description>`.
 pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
+    let ids = file_ids(e);
     let mut w = Writer::new_with_indent(out, b' ', 2);
     w.write_event(Event::Decl(BytesDecl::new("1.0", Some("UTF-8"), None)))?;
     let sample: Vec<(String, AttrType)> = e
@@ -457,7 +514,7 @@ pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
                             let vals = node_values(n);
                             w.create_element("node")
                                 .with_attributes([
-                                    ("id", n.id.as_str()),
+                                    ("id", n.slug.as_str()),
                                     ("label", n.label.as_str()),
                                 ])
                                 .write_inner_content(|w| {
@@ -479,8 +536,8 @@ pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
                             w.create_element("edge")
                                 .with_attributes([
                                     ("id", id.as_str()),
-                                    ("source", ed.source.as_str()),
-                                    ("target", ed.target.as_str()),
+                                    ("source", file_id(&ids, &ed.source)),
+                                    ("target", file_id(&ids, &ed.target)),
                                     ("weight", weight.as_str()),
                                 ])
                                 .write_inner_content(|w| {
@@ -528,58 +585,11 @@ pub fn dot_quote(s: &str) -> String {
     out
 }
 
-struct DotNode<'a>(&'a ExportNode);
-
-impl std::fmt::Display for DotNode<'_> {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&self.0.label)
-    }
-}
-
-struct DotEdge<'a>(&'a ExportEdge);
-
-impl std::fmt::Display for DotEdge<'_> {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "{}", self.0.weight)
-    }
-}
-
-/// Graphviz DOT, written by petgraph's `dot` module: node labels are the variable labels, edge
-/// labels the weights; the key and every count are attributes; the weight rule is the graph's
-/// `comment`. Nodes are numbered; their `key` attribute is the variable key.
+/// Graphviz DOT: node ids are the readable ids, node labels the variable labels, edge labels
+/// the weights; the key and every count are attributes; the weight rule is the graph's `comment`.
+/// Every id and text value is a quoted DOT string ([`dot_quote`]).
 pub fn write_dot(out: &mut impl Write, e: &Export) -> std::io::Result<()> {
-    use petgraph::dot::{Config, Dot};
-    let mut g: petgraph::graph::DiGraph<DotNode, DotEdge> = Default::default();
-    let mut at = std::collections::HashMap::new();
-    for n in &e.nodes {
-        at.insert(n.id.as_str(), g.add_node(DotNode(n)));
-    }
-    for ed in &e.edges {
-        if let (Some(&a), Some(&b)) = (at.get(ed.source.as_str()), at.get(ed.target.as_str())) {
-            g.add_edge(a, b, DotEdge(ed));
-        }
-    }
-    let node_attrs = |_, (_, n): (NodeIndex, &DotNode)| {
-        format!(
-            "key = {} mentions = {} documents = {} ",
-            dot_quote(&n.0.id),
-            n.0.mentions,
-            n.0.documents
-        )
-    };
-    let edge_attrs_fn = |_, er: petgraph::graph::EdgeReference<DotEdge>| {
-        let mut s = String::new();
-        for (name, ty, v) in edge_attrs(er.weight().0) {
-            let v = if ty == AttrType::Text {
-                dot_quote(&v)
-            } else {
-                v
-            };
-            s.push_str(&format!("{name} = {v} "));
-        }
-        s
-    };
-    let dot = Dot::with_attr_getters(&g, &[Config::GraphContentOnly], &edge_attrs_fn, &node_attrs);
+    let ids = file_ids(e);
     writeln!(out, "digraph claims {{")?;
     writeln!(
         out,
@@ -589,7 +599,34 @@ pub fn write_dot(out: &mut impl Write, e: &Export) -> std::io::Result<()> {
             e.weight_rule, e.duplicates_removed
         ))
     )?;
-    write!(out, "{dot}")?;
+    for n in &e.nodes {
+        writeln!(
+            out,
+            "    {} [ label = {} key = {} mentions = {} documents = {} ]",
+            dot_quote(&n.slug),
+            dot_quote(&n.label),
+            dot_quote(&n.id),
+            n.mentions,
+            n.documents
+        )?;
+    }
+    for ed in &e.edges {
+        let mut attrs = format!("label = {} ", dot_quote(&ed.weight.to_string()));
+        for (name, ty, v) in edge_attrs(ed) {
+            let v = if ty == AttrType::Text {
+                dot_quote(&v)
+            } else {
+                v
+            };
+            attrs.push_str(&format!("{name} = {v} "));
+        }
+        writeln!(
+            out,
+            "    {} -> {} [ {attrs}]",
+            dot_quote(file_id(&ids, &ed.source)),
+            dot_quote(file_id(&ids, &ed.target))
+        )?;
+    }
     writeln!(out, "}}")
 }
 
@@ -604,8 +641,12 @@ pub fn write_edges_csv(out: &mut impl Write, e: &Export) -> Result<(), csv::Erro
     let mut header = vec!["source".to_string(), "target".to_string()];
     header.extend(names);
     w.write_record(&header)?;
+    let ids = file_ids(e);
     for ed in &e.edges {
-        let mut row = vec![ed.source.clone(), ed.target.clone()];
+        let mut row = vec![
+            file_id(&ids, &ed.source).to_string(),
+            file_id(&ids, &ed.target).to_string(),
+        ];
         row.extend(edge_attrs(ed).into_iter().map(|a| a.2));
         w.write_record(&row)?;
     }
@@ -613,13 +654,13 @@ pub fn write_edges_csv(out: &mut impl Write, e: &Export) -> Result<(), csv::Erro
     Ok(())
 }
 
-/// The CSV node list: `id,label,mentions,documents`.
+/// The CSV node list: `id,label,mentions,documents,key`.
 pub fn write_nodes_csv(out: &mut impl Write, e: &Export) -> Result<(), csv::Error> {
     let mut w = csv::Writer::from_writer(out);
-    w.write_record(["id", "label", "mentions", "documents"])?;
+    w.write_record(["id", "label", "mentions", "documents", "key"])?;
     for n in &e.nodes {
-        let [label, m, d] = node_values(n);
-        w.write_record([n.id.clone(), label, m, d])?;
+        let [label, m, d, key] = node_values(n);
+        w.write_record([n.slug.clone(), label, m, d, key])?;
     }
     w.flush()?;
     Ok(())

@@ -25,6 +25,7 @@ mod lookup;
 mod overview;
 mod pair;
 mod top;
+mod variables;
 
 pub use crate::graph::{conflicts, Conflict, ConflictKind};
 pub use comention::{claim_sentences, co_mention_pairs, CoMention, MentionIndex};
@@ -34,3 +35,4 @@ pub use lookup::{lookup, Looked, VarMatch};
 pub use overview::{corpus_summary, heaviest_edges, CorpusSummary};
 pub use pair::{pair_report, DirectionSummary, Evidence, PairGraph, PairQuery, PairReport};
 pub use top::{top_relations, TopRelation};
+pub use variables::{abbreviation_list, alias_file, Nearby, SortBy, VariableRow};

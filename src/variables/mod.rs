@@ -10,6 +10,10 @@
 //! graph is built), [`stem`] and [`StemCache`] (the one stemmer, shared with the sentence index)
 //! and [`dropped_words`] (the words keys leave out, which the index leaves out too).
 
+pub mod abbrev;
+pub mod heads;
+pub mod merge;
+
 use crate::patterns::Lexicon;
 use compact_str::CompactString;
 use rust_stemmers::{Algorithm, Stemmer};

@@ -56,8 +56,11 @@ pub fn json_lines(args: &[&str], store: &Path) -> Vec<serde_json::Value> {
         .args(args)
         .output()
         .expect("runs");
+    // `pair` exits 3 when a name is no variable of the store; its report is printed all the same
+    // (co-mentions need no claim), so tests of co-mentions read it like any other.
+    let pair_unknown = args.contains(&"pair") && out.status.code() == Some(3);
     assert!(
-        out.status.success(),
+        out.status.success() || pair_unknown,
         "hearsay {args:?} failed: {}",
         String::from_utf8_lossy(&out.stderr)
     );

@@ -97,17 +97,22 @@ fn pair_says_how_many_claims_its_evidence_leaves_out() {
 fn claims_notes_a_name_that_is_no_variable() {
     let tmp = tempfile::tempdir().unwrap();
     let store = demo_store_in(tmp.path());
-    let out = succeeded(hearsay().arg("--store").arg(&store).args([
-        "--format",
-        "json",
-        "claims",
-        "--var",
-        "fish stoks",
-    ]));
+    let out = hearsay()
+        .arg("--store")
+        .arg(&store)
+        .args(["--format", "json", "claims", "--var", "fish stoks"])
+        .output()
+        .unwrap();
+    // A name that is no variable has its own exit status (3), so a script can tell it apart.
+    assert_eq!(out.status.code(), Some(3));
     assert!(stdout(&out).is_empty(), "JSON output stays data only");
     let err = stderr(&out);
     assert!(err.contains("no variable \"fish stoks\""), "{err}");
-    assert!(err.contains("did you mean: fish stocks"), "{err}");
+    // The nearest variable, with its counts.
+    assert!(
+        err.contains("did you mean: fish stocks (9 claims, 5 documents)"),
+        "{err}"
+    );
     // A name that is a variable gives no note.
     let out = table(&store, &["claims", "--var", "fish stocks"]);
     assert!(stderr(&out).is_empty(), "{}", stderr(&out));

@@ -23,3 +23,4 @@ mod report_html;
 mod spark;
 mod store;
 mod subcommands;
+mod variables;

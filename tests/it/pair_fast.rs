@@ -12,8 +12,9 @@ fn pair_output(store: &Path, args: &[&str]) -> Vec<u8> {
         .args(args)
         .output()
         .expect("runs");
+    // 3 is the answer for a name that is no variable (one of the pairs below has one).
     assert!(
-        out.status.success(),
+        matches!(out.status.code(), Some(0 | 3)),
         "hearsay {args:?}: {}",
         String::from_utf8_lossy(&out.stderr)
     );

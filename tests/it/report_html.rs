@@ -136,7 +136,7 @@ fn report_graph_keeps_the_heaviest_edges_of_the_graph_export() {
         .as_array()
         .unwrap()
         .iter()
-        .map(|n| n["id"].as_str().unwrap())
+        .map(|n| n["key"].as_str().unwrap())
         .collect();
     assert_eq!(count(&doc, "svg#claim-graph g.edge"), 5);
     let sel = Selector::parse("svg#claim-graph g.node").unwrap();
