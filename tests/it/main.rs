@@ -22,3 +22,4 @@ mod report_html;
 mod spark;
 mod store;
 mod subcommands;
+mod usable;
