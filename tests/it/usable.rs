@@ -21,9 +21,9 @@ use hearsay::variables::Normalizer;
 
 /// Floors a little under the figures measured on this sample (see docs/confidence.md), so that
 /// a change that loses usable claims or ranks them worse fails here.
-const PRECISION_FLOOR: f64 = 0.33;
-const RECALL_FLOOR: f64 = 0.44;
-const AUC_FLOOR: f64 = 0.64;
+const PRECISION_FLOOR: f64 = 0.37;
+const RECALL_FLOOR: f64 = 0.45;
+const AUC_FLOOR: f64 = 0.70;
 
 #[test]
 fn usable_claims_and_confidence_ranking_on_labelled_elife_sentences() {
@@ -34,7 +34,12 @@ fn usable_claims_and_confidence_ranking_on_labelled_elife_sentences() {
     )
     .unwrap();
     assert!(items.len() >= 120, "{} sentences", items.len());
-    let set = PatternSet::builtin().unwrap();
+    // HEARSAY_USABLE_PATTERNS=DIR measures a pattern folder (a retrained confidence.toml, say)
+    // before it is shipped; the floors hold for the built-in set.
+    let set = match std::env::var_os("HEARSAY_USABLE_PATTERNS") {
+        Some(dir) => PatternSet::load_dir(std::path::Path::new(&dir)).unwrap(),
+        None => PatternSet::builtin().unwrap(),
+    };
     let ex = Extractor::new(&set).unwrap();
     let norm = Normalizer::new(&set.lexicon);
     let (s, judged) = score_usable(&ex, &norm, &items);
