@@ -5,6 +5,7 @@ use super::eval::{load_gold, print_reliability, Gold, GoldFormat};
 use super::Global;
 use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
+use hearsay::evaluate::usable::{parse_usable, score_usable};
 use hearsay::evaluate::{self, Judged, Reliability};
 use hearsay::extract::{
     confidence_features, is_held_out, train_confidence, unit_key, ConfidenceExample as Example,
@@ -17,7 +18,9 @@ use std::process::ExitCode;
 #[command(
     after_help = "Defaults reproduce patterns/confidence.toml from the shared training data: \
 SemEval-2010 Task 8 train, BECAUSE CongressionalHearings and the Causal News Corpus subtask 2 \
-train split, under ../shared/data. Each claim the extractor finds is labelled right or wrong by \
+train split, under ../shared/data, and the hand-labelled eLife training sample in \
+tests/data/usable/train.jsonl (every claim found in a labelled sentence is right when it matches a \
+usable claim of the label, wrong otherwise). Each claim the extractor finds is labelled right or wrong by \
 the matching rule of `hearsay eval`; sentences whose hash falls in the held-out share are left \
 out of training and used to print the reliability table. Training is Newton's method on the \
 L2-penalised log loss; the same data and options give the same file, byte for byte.
@@ -40,11 +43,23 @@ pub struct TrainConfidenceArgs {
         ]
     )]
     pub gold: Vec<(GoldFormat, PathBuf)>,
+    /// Sentences labelled with their usable claims (the format of tests/data/usable/); every
+    /// claim found there is judged, right when it matches a labelled claim. Repeatable.
+    #[arg(
+        long = "usable",
+        value_name = "FILE",
+        default_values = ["tests/data/usable/train.jsonl"]
+    )]
+    pub usable: Vec<PathBuf>,
+    /// Each claim of a --usable file counts this many times in training (those sentences are
+    /// few but of the genre the model is used on).
+    #[arg(long, default_value_t = 3, value_name = "N")]
+    pub usable_weight: usize,
     /// One sentence in N is held out (chosen by a hash of document and sentence offset).
     #[arg(long, default_value_t = 5, value_name = "N")]
     pub hold_out: u8,
     /// The L2 penalty on the weights.
-    #[arg(long, default_value_t = 1.0)]
+    #[arg(long, default_value_t = 5.0)]
     pub l2: f64,
     /// Features seen in fewer training claims than this get no weight.
     #[arg(long, default_value_t = 5, value_name = "N")]
@@ -66,8 +81,26 @@ fn format_name(f: GoldFormat) -> String {
 
 pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
     let ex = g.extractor()?;
-    let (judged, sources) = judge_all(&ex, &a.gold)?;
-    let (train, dev, dev_names) = examples(&ex, &judged, a.hold_out);
+    let (mut judged, mut sources) = judge_all(&ex, &a.gold)?;
+    for path in &a.usable {
+        let text = std::fs::read_to_string(path)
+            .with_context(|| format!("cannot read {}", path.display()))?;
+        let items = parse_usable(&path.display().to_string(), &text)?;
+        let found = score_usable(&ex, &ex.normalizer, &items).1;
+        let right = found.iter().filter(|j| j.correct).count();
+        let file = path.file_name().map_or_else(
+            || path.display().to_string(),
+            |f| f.to_string_lossy().into_owned(),
+        );
+        let line = format!(
+            "usable {file}: {} judged claims, {right} right",
+            found.len()
+        );
+        eprintln!("{line}");
+        sources.push(line);
+        judged.extend(found.into_iter().map(|j| ("usable".to_string(), j)));
+    }
+    let (train, dev, dev_names) = examples(&ex, &judged, a.hold_out, a.usable_weight);
     if train.is_empty() {
         anyhow::bail!("no judged claims to train on");
     }
@@ -84,7 +117,8 @@ pub fn run(g: &Global, a: &TrainConfidenceArgs) -> Result<ExitCode> {
     let base = train.iter().filter(|e| e.correct).count() as f64 / train.len() as f64;
     let baseline = Reliability::from_outcomes(dev.iter().map(|e| (base, e.correct)));
     let mut per_set = Vec::new();
-    for s in a.gold.iter().map(|(f, _)| format_name(*f)) {
+    let names = a.gold.iter().map(|(f, _)| format_name(*f));
+    for s in names.chain((!a.usable.is_empty()).then(|| "usable".to_string())) {
         if per_set.iter().any(|(n, _)| n == &s) {
             continue;
         }
@@ -167,6 +201,7 @@ fn examples<'j>(
     ex: &Extractor,
     judged: &'j [Named],
     hold_out: u8,
+    usable_weight: usize,
 ) -> (Vec<Example>, Vec<Example>, Vec<&'j str>) {
     let (mut train, mut dev) = (Vec::new(), Vec::new());
     let mut dev_names: Vec<&str> = Vec::new();
@@ -182,7 +217,12 @@ fn examples<'j>(
             dev.push(e);
             dev_names.push(name);
         } else {
-            train.push(e);
+            let copies = if name == "usable" {
+                usable_weight.max(1)
+            } else {
+                1
+            };
+            train.extend(std::iter::repeat_n(e, copies));
         }
     }
     (train, dev, dev_names)
@@ -217,8 +257,8 @@ fn file_header(
     ];
     header.extend(sources.iter().map(|s| format!("  {s}")));
     header.push(format!(
-        "Options: hold-out 1 in {}, l2 {}, min-count {}. {} training claims, {} held out.",
-        a.hold_out, a.l2, a.min_count, trained, held_out
+        "Options: hold-out 1 in {}, l2 {}, min-count {}, usable weight {}. {} training claims, {} held out.",
+        a.hold_out, a.l2, a.min_count, a.usable_weight, trained, held_out
     ));
     let (rel, baseline) = (&h.rel, &h.baseline);
     header.push(format!(

@@ -15,10 +15,13 @@
 //! `_judged` variants also return every claim judged right or wrong ([`Judged`]), which the
 //! [`Reliability`] table and confidence training use. [`reference`](mod@reference) scores a claim graph against
 //! a reference diagram; it stays a module of its own, as its `Scores` and `Prf` are not these.
+//! [`usable`](mod@usable) scores claims found in real text against sentences labelled with the
+//! claims a reader would accept, and ranks confidence by ROC AUC.
 
 mod gold;
 pub mod reference;
 mod spans;
+pub mod usable;
 
 pub use gold::{parse_because, parse_cnc, parse_jsonl, GoldClaim, GoldDoc, Sign};
 pub use spans::{

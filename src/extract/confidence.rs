@@ -208,6 +208,19 @@ fn coarse(t: Tag) -> &'static str {
     }
 }
 
+/// The class of the token next to a span: a conjunction, a comma, "of", other punctuation, or
+/// the coarse word class.
+fn neighbour(s: &TaggedSentence<'_>, i: usize) -> &'static str {
+    let t = &s.tokens[i];
+    match t.lower.as_str() {
+        "and" | "or" | "nor" => "conj",
+        "," => "comma",
+        "of" => "of",
+        _ if !t.word => "punct",
+        _ => coarse(s.tags[i]),
+    }
+}
+
 /// Bucket `n` by inclusive upper bounds `edges`, naming each bucket as a range ("0-1", "2",
 /// "4-5", "6+"). Every edge list the features use has its names written out once, so scoring
 /// allocates nothing.
@@ -288,6 +301,12 @@ struct SideKeys {
     finite_verb: &'static str,
     comma: &'static str,
     paren: &'static str,
+    no_noun: &'static str,
+    clause_word: &'static str,
+    auxiliary: &'static str,
+    hyphen_head: &'static str,
+    before: &'static str,
+    after: &'static str,
 }
 
 const CAUSE: SideKeys = SideKeys {
@@ -300,6 +319,12 @@ const CAUSE: SideKeys = SideKeys {
     finite_verb: "cause_finite_verb",
     comma: "cause_comma",
     paren: "cause_paren",
+    no_noun: "cause_no_noun",
+    clause_word: "cause_clause_word",
+    auxiliary: "cause_auxiliary",
+    hyphen_head: "cause_hyphen_head",
+    before: "cause_before",
+    after: "cause_after",
 };
 
 const EFFECT: SideKeys = SideKeys {
@@ -312,7 +337,80 @@ const EFFECT: SideKeys = SideKeys {
     finite_verb: "effect_finite_verb",
     comma: "effect_comma",
     paren: "effect_paren",
+    no_noun: "effect_no_noun",
+    clause_word: "effect_clause_word",
+    auxiliary: "effect_auxiliary",
+    hyphen_head: "effect_hyphen_head",
+    before: "effect_before",
+    after: "effect_after",
 };
+
+/// Words that start or mark a clause: a span holding one has run past its noun phrase into a
+/// clause ("it remains unclear how", "we set out to examine whether").
+const CLAUSE_WORDS: &[&str] = &[
+    "that",
+    "which",
+    "whether",
+    "how",
+    "what",
+    "we",
+    "it",
+    "there",
+    "when",
+    "if",
+    "although",
+    "because",
+    "since",
+    "while",
+    "whereas",
+    "thus",
+    "therefore",
+    "hence",
+    "suggesting",
+    "indicating",
+    "showing",
+];
+
+/// Auxiliaries and copulas: a span holding one is a clause, or a fragment around one ("is",
+/// "were able to", "could").
+const AUXILIARIES: &[&str] = &[
+    "is", "are", "was", "were", "be", "been", "being", "has", "have", "had", "do", "does", "did",
+    "can", "could", "may", "might", "must", "should", "would", "will",
+];
+
+/// Words of a methods section: a sentence with one describes a procedure more often than it
+/// states a finding ("cells were plated ... to induce", "determined by one-way ANOVA").
+const METHOD_WORDS: &[&str] = &[
+    "incubated",
+    "plated",
+    "stained",
+    "transfected",
+    "harvested",
+    "centrifuged",
+    "washed",
+    "resuspended",
+    "eluted",
+    "dissolved",
+    "diluted",
+    "anova",
+    "t-test",
+    "performed",
+    "measured",
+    "analyzed",
+    "analysed",
+    "quantified",
+    "protocol",
+    "assay",
+    "buffer",
+    "medium",
+    "media",
+    "using",
+    "µm",
+    "mm",
+    "ml",
+    "µl",
+    "nm",
+];
 
 /// Visit the features of one claim: each is a key with an optional value, named `key=value` (or
 /// `key`) in the model file. `family` is the claim's cue family; `claims_here` how many claims
@@ -348,9 +446,22 @@ pub fn visit_features(
             f(name, None);
         }
     }
+    if s.tokens
+        .iter()
+        .any(|t| t.word && METHOD_WORDS.contains(&t.lower.as_str()))
+    {
+        f("sentence_method_word", None);
+    }
+    if s.tokens.iter().any(|t| t.lower == "we" || t.lower == "our") {
+        f("sentence_we", None);
+    }
+    if s.text.contains("Figure") || s.text.contains("Fig.") {
+        f("sentence_figure", None);
+    }
     let last_word = s.tokens.iter().rposition(|t| t.word);
     let mut inside = 0;
     let mut ranges = [None, None];
+    let cause_first = c.cause.start <= c.effect.start;
     for (i, (k, slot)) in [(&CAUSE, &c.cause), (&EFFECT, &c.effect)]
         .into_iter()
         .enumerate()
@@ -376,6 +487,35 @@ pub fn visit_features(
         }
         if r.clone().any(|i| s.tags[i].is_finite_verb()) {
             f(k.finite_verb, None);
+        }
+        if !r
+            .clone()
+            .any(|i| s.tokens[i].word && matches!(coarse(s.tags[i]), "noun" | "proper" | "number"))
+        {
+            f(k.no_noun, None);
+        }
+        let lowers = || s.tokens[r.clone()].iter().map(|t| t.lower.as_str());
+        if lowers().any(|w| CLAUSE_WORDS.contains(&w)) {
+            f(k.clause_word, None);
+        }
+        if lowers().any(|w| AUXILIARIES.contains(&w)) {
+            f(k.auxiliary, None);
+        }
+        if let Some(b) = last {
+            if s.tokens[b].lower.contains('-') {
+                f(k.hyphen_head, None);
+            }
+        }
+        // The token just outside the claim on this span's outer side (the inner side is the
+        // cue, whose tag says little): a span that starts after "of X and" or a preposition is
+        // often a piece of a longer noun phrase ("Msl2" of "knockdown of Msl1 and Msl2", "mice"
+        // of "the response in mice").
+        if (i == 0) == cause_first {
+            let j = r.start.checked_sub(1);
+            f(k.before, Some(j.map_or("edge", |j| neighbour(s, j))));
+        } else {
+            let j = (r.end < s.tokens.len()).then_some(r.end);
+            f(k.after, Some(j.map_or("edge", |j| neighbour(s, j))));
         }
         let text = &s.text[s.tokens[r.start].start..s.tokens[r.end - 1].end];
         if text.contains(',') {

@@ -23,4 +23,5 @@ mod report_html;
 mod spark;
 mod store;
 mod subcommands;
+mod usable;
 mod variables;
