@@ -3,6 +3,7 @@
 
 use super::index::SentenceIndex;
 use super::manifest::{load, seg_name, Manifest};
+use super::postings::Postings;
 use super::rows::{ClaimRef, ClaimRow};
 use crate::claim::Claim;
 use crate::error::StoreError;
@@ -142,6 +143,76 @@ impl Store {
         Ok(out)
     }
 
+    /// The postings of every live segment (their directories read, their lists not), for any
+    /// number of [`Store::rows_naming`] look-ups.
+    pub fn postings(&self) -> Result<PostingIndex, StoreError> {
+        let mut segs = Vec::new();
+        for seg in self.manifest.segments() {
+            segs.push((seg, Postings::open(&self.dir.join(seg_name(seg, "post")))?));
+        }
+        Ok(PostingIndex { segs })
+    }
+
+    /// The live rows whose raw cause or effect key `wanted` accepts, in the order of
+    /// [`Store::rows`]: the postings say which rows they are, and only those rows are read.
+    pub fn rows_naming(
+        &self,
+        post: &PostingIndex,
+        mut wanted: impl FnMut(&str) -> bool,
+    ) -> Result<Vec<ClaimRow>, StoreError> {
+        let mut by_seg: HashMap<u32, Vec<(usize, ClaimRow)>> = HashMap::new();
+        for (seg, p) in &post.segs {
+            let at = p.rows(&mut wanted)?;
+            let path = self.dir.join(seg_name(*seg, "rows"));
+            let mut kept = Vec::with_capacity(at.len());
+            if !at.is_empty() {
+                let f = File::open(&path).map_err(|e| StoreError::io(&path, e))?;
+                let size = f.metadata().map_err(|e| StoreError::io(&path, e))?.len();
+                let mut buf = Vec::new();
+                for a in at {
+                    if a.offset.saturating_add(a.len as u64) > size {
+                        return Err(StoreError::Corrupt {
+                            path: path.clone(),
+                            message: format!(
+                                "row {} at {}+{} past the end ({size} bytes)",
+                                a.row, a.offset, a.len
+                            ),
+                        });
+                    }
+                    buf.resize(a.len as usize, 0);
+                    std::os::unix::fs::FileExt::read_exact_at(&f, &mut buf, a.offset)
+                        .map_err(|e| StoreError::io(&path, e))?;
+                    let row: ClaimRow =
+                        postcard::from_bytes(&buf).map_err(|e| StoreError::Corrupt {
+                            path: path.clone(),
+                            message: format!("row {}: {e}", a.row),
+                        })?;
+                    kept.push((a.row as usize, row));
+                }
+            }
+            by_seg.insert(*seg, kept);
+        }
+        let mut out = Vec::new();
+        for f in &self.manifest.files {
+            if f.claims == 0 {
+                continue;
+            }
+            let Some(rows) = by_seg.get(&f.segment) else {
+                return Err(StoreError::Corrupt {
+                    path: self.dir.clone(),
+                    message: format!("segment {} missing", f.segment),
+                });
+            };
+            for (a, b) in f.row_ranges() {
+                let (a, b) = (a as usize, b as usize);
+                let from = rows.partition_point(|(i, _)| *i < a);
+                let to = rows.partition_point(|(i, _)| *i < b);
+                out.extend(rows[from..to.max(from)].iter().map(|(_, r)| r.clone()));
+            }
+        }
+        Ok(out)
+    }
+
     /// The full claim record a row points at.
     pub fn claim(&self, at: ClaimRef) -> Result<Claim, StoreError> {
         let p = self.dir.join(seg_name(at.segment, "jsonl"));
@@ -178,6 +249,19 @@ impl Store {
             None => self.index.insert(SentenceIndex::open(&self.dir)?),
         };
         index.sentence_ids_with(groups)
+    }
+}
+
+/// The postings of a store's live segments (see [`Store::postings`]).
+#[derive(Debug)]
+pub struct PostingIndex {
+    segs: Vec<(u32, Postings)>,
+}
+
+impl PostingIndex {
+    /// Every raw variable key of the live segments (a key of removed claims may be among them).
+    pub fn keys(&self) -> BTreeSet<&str> {
+        self.segs.iter().flat_map(|(_, p)| p.keys()).collect()
     }
 }
 

@@ -5,6 +5,7 @@ use super::index::{open_index, Fields};
 use super::manifest::{
     load, seg_name, segment_number, write_atomic, FileEntry, Manifest, STORE_VERSION,
 };
+use super::postings::{PostingsBuilder, RowAt};
 use super::result::{FileResult, Spilled, SpilledRecord};
 use super::rows::{ClaimRef, ClaimRow};
 use crate::claim::Claim;
@@ -29,6 +30,10 @@ pub struct StoreWriter {
     rows_out: Option<BufWriter<File>>,
     /// Rows written to the new segment so far.
     rows: u64,
+    /// Bytes of rows written to the new segment so far.
+    row_bytes: u64,
+    /// The new segment's postings (key to rows), written at commit.
+    postings: PostingsBuilder,
     offset: u64,
     index_writer: IndexWriter,
     fields: Fields,
@@ -88,6 +93,8 @@ impl StoreWriter {
             jsonl: None,
             rows_out: None,
             rows: 0,
+            row_bytes: 0,
+            postings: PostingsBuilder::default(),
             offset: 0,
             index_writer,
             fields,
@@ -178,8 +185,26 @@ impl StoreWriter {
                 len: (line.len() - 1) as u32,
             };
             self.offset += line.len() as u64;
-            postcard::to_io(&ClaimRow::from_claim(c, at), &mut *rw)
+            let row = postcard::to_stdvec(&ClaimRow::from_claim(c, at))
                 .map_err(|e| corrupt(&self.dir, e))?;
+            rw.write_all(&row)
+                .map_err(|e| StoreError::io(&self.dir, e))?;
+            let (Ok(number), Ok(len)) = (u32::try_from(self.rows), u32::try_from(row.len())) else {
+                return Err(StoreError::Corrupt {
+                    path: self.dir.clone(),
+                    message: "a segment holds at most 2^32 rows of at most 4 GB each".into(),
+                });
+            };
+            self.postings.add(
+                &c.cause.key,
+                &c.effect.key,
+                RowAt {
+                    row: number,
+                    offset: self.row_bytes,
+                    len,
+                },
+            );
+            self.row_bytes += row.len() as u64;
             self.rows += 1;
         }
         let (segment, rows) = (self.segment, self.rows);
@@ -254,6 +279,11 @@ impl StoreWriter {
                 .into_inner()
                 .map_err(|e| StoreError::io(&self.dir, e.into_error()))?;
             f.sync_all().map_err(|e| StoreError::io(&self.dir, e))?;
+        }
+        if !self.postings.is_empty() {
+            let p = self.dir.join(seg_name(self.segment, "post"));
+            let f = self.postings.write(&p)?;
+            f.sync_all().map_err(|e| StoreError::io(&p, e))?;
         }
         let generation = self.old.generation + 1;
         let mut prepared = self.index_writer.prepare_commit()?;
