@@ -429,12 +429,10 @@ fn every_store_file_damaged_in_turn_gives_an_error_naming_it() {
         }
     }
     files.sort();
-    for ext in ["post", "rows", "jsonl"] {
+    for ext in [".post", ".rows", ".jsonl.zst", "manifest.json"] {
         assert!(
-            files
-                .iter()
-                .any(|f| f.extension().is_some_and(|e| e == ext)),
-            "no .{ext} file in {files:?}"
+            files.iter().any(|f| f.to_string_lossy().ends_with(ext)),
+            "no {ext} file in {files:?}"
         );
     }
     let commands: [&[&str]; 4] = [
@@ -509,7 +507,10 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     text = text.replacen(&x, "the weather", 1);
     text.push_str(&format!("\n\nIn this account {x} does not reduce {y}.\n"));
     std::fs::write(&changed, text).unwrap();
-    let files = sorted_files(&corpus);
+    let files: Vec<_> = sorted_files(&corpus.join("faq"))
+        .into_iter()
+        .filter(|f| f.is_file())
+        .collect();
     let gone = files.last().unwrap();
     assert_ne!(gone, &changed);
     std::fs::remove_file(gone).unwrap();
