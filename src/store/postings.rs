@@ -127,7 +127,7 @@ impl Postings {
         let dir_at = u64::from_le_bytes(foot);
         if dir_at < MAGIC.len() as u64
             || dir_at > len - 8
-            || (dir_at - MAGIC.len() as u64) % ENTRY as u64 != 0
+            || !(dir_at - MAGIC.len() as u64).is_multiple_of(ENTRY as u64)
         {
             return Err(corrupt(format!("directory offset {dir_at} out of range")));
         }
