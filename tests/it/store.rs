@@ -559,3 +559,34 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
         );
     }
 }
+
+/// A store of an older layout (version 4: no postings, uncompressed claim records) is refused by
+/// every query with its version named and a request to scan again; never read in part.
+#[test]
+fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
+    let tmp = tempfile::tempdir().unwrap();
+    let store = demo_store_in(tmp.path());
+    let mpath = store.join("manifest.json");
+    let mut m: serde_json::Value = serde_json::from_slice(&std::fs::read(&mpath).unwrap()).unwrap();
+    assert_eq!(m["store_version"], 5);
+    m["store_version"] = json!(4);
+    std::fs::write(&mpath, serde_json::to_vec(&m).unwrap()).unwrap();
+    for args in [
+        &["top"][..],
+        &["pair", "a", "b"],
+        &["claims", "--cause", "a"],
+    ] {
+        let out = hearsay()
+            .arg("--store")
+            .arg(&store)
+            .args(args)
+            .output()
+            .unwrap();
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+        assert!(
+            err.contains("schema 4") && err.contains("reads 5") && err.contains("rescan"),
+            "{args:?}: {err}"
+        );
+    }
+}
