@@ -272,6 +272,8 @@ def parse_args():
     ap.add_argument("--runs", type=int, default=3, help="cold runs per query (median)")
     ap.add_argument("--repeat", type=int, default=20, help="queries of the warm pair run")
     ap.add_argument("--corpus", default=CORPUS, help="folder of plain-text articles")
+    ap.add_argument("--bin", help="the hearsay binary to measure (default: the release build), "
+                    "to measure an older build side by side")
     a = ap.parse_args()
     try:
         a.rungs = sorted({int(r) for r in a.rungs.split(",")})
@@ -283,7 +285,10 @@ def parse_args():
 
 
 def main():
+    global HEARSAY
     a = parse_args()
+    if a.bin:
+        HEARSAY = os.path.abspath(a.bin)
     files = article_files(a.corpus)
     if a.keep:
         os.makedirs(a.keep, exist_ok=True)

@@ -4,6 +4,7 @@ use super::variables::{no_variable_note, EXIT_NO_VARIABLE};
 use super::{write_rows, ClaimFilter, Global};
 use anyhow::{Context, Result};
 use clap::Args;
+use hearsay::query;
 use hearsay::Claim;
 use std::process::ExitCode;
 
@@ -45,15 +46,30 @@ const HEADERS: &[&str] = &[
 ];
 
 pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
-    let loaded = g.graph(&a.filter.to_filter())?;
-    let norm = &loaded.normalizer;
+    let filter = a.filter.to_filter();
+    let (store, normalizer, aliases) = g.query_parts()?;
     let key = |s: &Option<String>| {
         s.as_ref()
-            .map(|s| loaded.aliases.resolve(&norm.key(s)).to_string())
+            .map(|s| aliases.resolve(&normalizer.key(s)).to_string())
     };
     let (cause, effect, var) = (key(&a.cause), key(&a.effect), key(&a.var));
-    // A misspelt name gives an empty table; say why on stderr, where the data is not, with the
-    // nearest variables, and exit with the status that says so.
+    // A claim printed names one of the variables asked for: only their rows are read (through
+    // the store's postings), in the same order as the whole graph's rows.
+    let named: Vec<String> = [&cause, &effect, &var]
+        .into_iter()
+        .flatten()
+        .cloned()
+        .collect();
+    let loaded = if named.is_empty() {
+        query::load(store, normalizer, aliases, &filter, false)
+    } else {
+        query::load_naming(store, normalizer, aliases, &filter, &named)
+    }
+    .context("cannot read the store's claims")?;
+    // A misspelt name gives an empty table; say why on stderr, where the data is not, with
+    // the nearest variables (from the whole graph, built only then), and exit with the status
+    // that says so.
+    let mut whole = None;
     let mut missed = false;
     for (flag, name) in [
         ("--cause", &a.cause),
@@ -61,12 +77,18 @@ pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
         ("--var", &a.var),
     ] {
         if let Some(name) = name {
-            if loaded.lookup(name).1.is_none() {
+            if loaded.lookup(name).1.is_some() {
+                continue;
+            }
+            if whole.is_none() {
+                whole = Some(g.graph(&filter)?);
+            }
+            if let Some(w) = whole.as_ref().filter(|w| w.lookup(name).1.is_none()) {
                 missed = true;
                 if !g.quiet {
                     eprintln!(
                         "hearsay: note: {flag}: {}; no claim can match",
-                        no_variable_note(&loaded, name)
+                        no_variable_note(w, name)
                     );
                 }
             }

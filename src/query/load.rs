@@ -41,3 +41,31 @@ pub fn load(
         duplicates_removed,
     })
 }
+
+/// The graph of the stored rows that name one of `keys` (alias-resolved keys) as cause or
+/// effect and that the filter accepts, read through the store's postings: the rows of any
+/// other variable are never read. Its rows are exactly the rows of the whole graph
+/// ([`load`] without dedupe) that name one of `keys`, in the same order, so a query that only
+/// looks at those rows answers as it would from the whole graph. Variables other than `keys`
+/// appear only as the other end of those rows, with their counts over those rows alone.
+pub fn load_naming(
+    store: Store,
+    normalizer: Normalizer,
+    aliases: Aliases,
+    filter: &Filter,
+    keys: &[String],
+) -> Result<Loaded, StoreError> {
+    let postings = store.postings()?;
+    let rows = store.rows_naming(&postings, |k| {
+        let k = aliases.resolve(k);
+        keys.iter().any(|w| w == k)
+    })?;
+    let graph = ClaimGraph::build(rows, &aliases, filter);
+    Ok(Loaded {
+        store,
+        normalizer,
+        aliases,
+        graph,
+        duplicates_removed: 0,
+    })
+}

@@ -30,7 +30,7 @@ mod variables;
 pub use crate::graph::{conflicts, Conflict, ConflictKind};
 pub use comention::{claim_sentences, co_mention_pairs, CoMention, MentionIndex};
 pub use evidence::{EvidenceLine, HopEvidence};
-pub use load::{load, Loaded};
+pub use load::{load, load_naming, Loaded};
 pub use lookup::{lookup, Looked, VarMatch};
 pub use overview::{corpus_summary, heaviest_edges, CorpusSummary};
 pub use pair::{pair_report, DirectionSummary, Evidence, PairGraph, PairQuery, PairReport};

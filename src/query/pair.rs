@@ -1,8 +1,8 @@
 //! `pair`: everything the corpus says about two variables, and the plan that answers it fast.
 //!
 //! [`pair_report`] is a pure function of a graph. [`PairQuery`] is the latency-sensitive path
-//! of `hearsay pair`: it keeps the store's compact rows in memory and builds each query's graph
-//! from the rows that name X or Y only, which gives the same report as the whole graph (every
+//! of `hearsay pair`: it keeps the store's postings directories in memory, reads only the rows
+//! that name X or Y (after aliases) and builds each query's graph from them, which gives the same report as the whole graph (every
 //! count, label and evidence row of the report depends on those rows alone) in a fraction of
 //! the time. Only when a name is unknown (the report then suggests known variables containing
 //! its words) is the whole graph built.
@@ -14,7 +14,7 @@ use super::lookup::{lookup, Looked, VarMatch};
 use crate::claim::{Modality, Polarity};
 use crate::error::StoreError;
 use crate::graph::{ClaimGraph, Filter, Relation};
-use crate::store::{RowBytes, Store};
+use crate::store::{PostingIndex, Store};
 use crate::variables::{Aliases, Normalizer};
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -174,12 +174,12 @@ impl Loaded {
 }
 
 /// What every `pair` query needs, loaded once: the store (its search index opens on first use),
-/// the normaliser and aliases, and the raw compact rows.
+/// the normaliser and aliases, and the postings' directories.
 pub struct PairQuery {
     store: Store,
     normalizer: Normalizer,
     aliases: Aliases,
-    bytes: RowBytes,
+    postings: PostingIndex,
 }
 
 /// The graph that answers one pair, with the two names looked up in it.
@@ -190,18 +190,18 @@ pub struct PairGraph {
 }
 
 impl PairQuery {
-    /// Read the store's compact rows once, for any number of queries.
+    /// Read the store's postings directories once, for any number of queries.
     pub fn open(
         store: Store,
         normalizer: Normalizer,
         aliases: Aliases,
     ) -> Result<PairQuery, StoreError> {
-        let bytes = store.row_bytes()?;
+        let postings = store.postings()?;
         Ok(PairQuery {
             store,
             normalizer,
             aliases,
-            bytes,
+            postings,
         })
     }
 
@@ -217,15 +217,9 @@ impl PairQuery {
         let key = |q: &str| self.aliases.resolve(&self.normalizer.key(q)).to_string();
         let (kx, ky) = (key(x), key(y));
         let aliases = &self.aliases;
-        let rows = self.store.rows_where(&self.bytes, |c, e| {
-            let wanted = |k: &[u8]| k == kx.as_bytes() || k == ky.as_bytes();
-            if aliases.is_empty() {
-                return wanted(c) || wanted(e);
-            }
-            let resolved_wanted = |k: &[u8]| {
-                std::str::from_utf8(k).is_ok_and(|k| wanted(aliases.resolve(k).as_bytes()))
-            };
-            resolved_wanted(c) || resolved_wanted(e)
+        let rows = self.store.rows_naming(&self.postings, |k| {
+            let k = aliases.resolve(k);
+            k == kx || k == ky
         })?;
         let mut graph = ClaimGraph::build(rows, aliases, filter);
         let look = |graph: &ClaimGraph, q: &str| lookup(graph, &self.normalizer, aliases, q);

@@ -18,8 +18,11 @@ use std::path::Path;
 /// back to back, no count first), a file may have several row ranges (`merge` of a path that
 /// recurs), and every sentence carries its file as a term, so replacing a file drops all its
 /// sentences (version 3 deleted by the new content's document ids, which kept the sentences of
-/// records a changed file no longer has).
-pub(super) const STORE_VERSION: u32 = 4;
+/// records a changed file no longer has). 5: every segment has postings (`seg-NNNNNN.post`,
+/// variable key to rows), which `pair` and `claims --cause/--effect/--var` read instead of every
+/// row; claim records are zstd-compressed in blocks (`seg-NNNNNN.jsonl.zst`, a claim's place is
+/// its block and its bytes within); a version 4 store has neither.
+pub(super) const STORE_VERSION: u32 = 5;
 
 /// One input file as the store knows it.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]

@@ -4,9 +4,14 @@
 //!
 //! ```text
 //! manifest.json      the one file that says what the store holds (written last, atomically)
-//! seg-NNNNNN.jsonl   full claim records, one JSON object a line (the documented schema)
+//! seg-NNNNNN.jsonl.zst  full claim records, one JSON object a line (the documented schema),
+//!                    zstd-compressed in blocks of about 64 KiB (one frame a block), so that
+//!                    `zstdcat` gives the JSON Lines and a claim is read by decompressing its
+//!                    block only
 //! seg-NNNNNN.rows    the same claims in compact form (postcard records back to back), for
 //!                    rebuilding the graph fast
+//! seg-NNNNNN.post    postings: each variable key of the segment and the rows naming it, so a
+//!                    query about a few variables reads only their rows (see `postings`)
 //! index/             a tantivy index with one entry per sentence, for search and co-mentions
 //! aliases.tsv        the alias file given to `scan --aliases`, if any
 //! lock               held while a scan writes
@@ -34,6 +39,7 @@
 mod index;
 mod manifest;
 mod merge;
+mod postings;
 mod read;
 mod result;
 mod rows;
@@ -46,7 +52,7 @@ mod tests;
 pub use index::key_terms;
 pub use manifest::{FileEntry, Manifest};
 pub use merge::{FileRecord, FileStart, Merge, SentenceRecord};
-pub use read::{RowBytes, Store};
+pub use read::{PostingIndex, Store};
 #[cfg(test)]
 pub(crate) use rows::test_row;
 pub use rows::{doc_id, ClaimRef, ClaimRow};

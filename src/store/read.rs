@@ -3,7 +3,9 @@
 
 use super::index::SentenceIndex;
 use super::manifest::{load, seg_name, Manifest};
+use super::postings::Postings;
 use super::rows::{ClaimRef, ClaimRow};
+use super::writer::CLAIMS_EXT;
 use crate::claim::Claim;
 use crate::error::StoreError;
 use serde::Deserialize;
@@ -11,6 +13,7 @@ use std::collections::{BTreeSet, HashMap};
 use std::fs::{self, File};
 use std::io::{Read, Seek, SeekFrom};
 use std::path::{Path, PathBuf};
+use std::sync::Mutex;
 
 /// A store opened for reading.
 pub struct Store {
@@ -18,7 +21,18 @@ pub struct Store {
     pub manifest: Manifest,
     /// The sentence index, once a query needed it.
     index: Option<SentenceIndex>,
+    /// The claim blocks read last (segment, offset, decompressed bytes), at most
+    /// [`CACHED_BLOCKS`]: claims are mostly read in store order, so neighbours come from the same
+    /// block, and files a parallel scan wrote out of path order come from a few blocks apart.
+    blocks: Mutex<Vec<(u32, u64, Vec<u8>)>>,
 }
+
+/// How many decompressed claim blocks a store keeps (at most 64 KiB and a record each).
+const CACHED_BLOCKS: usize = 16;
+
+/// A decompressed claim block may be at most this large (blocks are written at 64 KiB and end
+/// after the record that crosses it; a record is at most a sentence and its spans).
+const MAX_BLOCK: u64 = 64 << 20;
 
 /// A segment's rows: postcard records back to back.
 fn decode_rows<'a, T: Deserialize<'a>>(
@@ -45,6 +59,7 @@ impl Store {
             dir: dir.to_path_buf(),
             manifest,
             index: None,
+            blocks: Mutex::new(Vec::new()),
         })
     }
 
@@ -77,50 +92,61 @@ impl Store {
         Ok(out)
     }
 
-    /// The raw compact rows of every live segment, read once so that many queries can select
-    /// from them (see [`Store::rows_where`]).
-    pub fn row_bytes(&self) -> Result<RowBytes, StoreError> {
-        let mut segs = HashMap::new();
+    /// The postings of every live segment (their directories read, their lists not), for any
+    /// number of [`Store::rows_naming`] look-ups.
+    pub fn postings(&self) -> Result<PostingIndex, StoreError> {
+        let mut segs = Vec::new();
         for seg in self.manifest.segments() {
-            let p = self.dir.join(seg_name(seg, "rows"));
-            let bytes = fs::read(&p).map_err(|e| StoreError::io(&p, e))?;
-            segs.insert(seg, bytes);
+            segs.push((seg, Postings::open(&self.dir.join(seg_name(seg, "post")))?));
         }
-        Ok(RowBytes { segs })
+        Ok(PostingIndex { segs })
     }
 
-    /// The live rows whose (cause key, effect key), as UTF-8 bytes, `keep` accepts, in the order
-    /// of [`Store::rows`]. Rows are decoded without copying their text; only kept rows are
-    /// copied, so selecting a few rows costs one pass over the bytes instead of building every row.
-    pub fn rows_where(
+    /// The live rows whose raw cause or effect key `wanted` accepts, in the order of
+    /// [`Store::rows`]: the postings say which rows they are, and only those rows are read.
+    pub fn rows_naming(
         &self,
-        bytes: &RowBytes,
-        mut keep: impl FnMut(&[u8], &[u8]) -> bool,
+        post: &PostingIndex,
+        mut wanted: impl FnMut(&str) -> bool,
     ) -> Result<Vec<ClaimRow>, StoreError> {
         let mut by_seg: HashMap<u32, Vec<(usize, ClaimRow)>> = HashMap::new();
-        let mut lens: HashMap<u32, usize> = HashMap::new();
-        for (&seg, b) in &bytes.segs {
-            let p = self.dir.join(seg_name(seg, "rows"));
-            let corrupt = |message: String| StoreError::Corrupt {
-                path: p.clone(),
-                message,
-            };
-            let rows: Vec<RowView> = decode_rows(&p, b)?;
-            lens.insert(seg, rows.len());
-            let mut kept = Vec::new();
-            for (i, r) in rows.iter().enumerate() {
-                if keep(r.cause, r.effect) {
-                    kept.push((i, r.to_row().map_err(|e| corrupt(e.to_string()))?));
+        for (seg, p) in &post.segs {
+            let at = p.rows(&mut wanted)?;
+            let path = self.dir.join(seg_name(*seg, "rows"));
+            let mut kept = Vec::with_capacity(at.len());
+            if !at.is_empty() {
+                let f = File::open(&path).map_err(|e| StoreError::io(&path, e))?;
+                let size = f.metadata().map_err(|e| StoreError::io(&path, e))?.len();
+                let mut buf = Vec::new();
+                for a in at {
+                    if a.offset.saturating_add(a.len as u64) > size {
+                        return Err(StoreError::Corrupt {
+                            path: path.clone(),
+                            message: format!(
+                                "row {} at {}+{} past the end ({size} bytes)",
+                                a.row, a.offset, a.len
+                            ),
+                        });
+                    }
+                    buf.resize(a.len as usize, 0);
+                    std::os::unix::fs::FileExt::read_exact_at(&f, &mut buf, a.offset)
+                        .map_err(|e| StoreError::io(&path, e))?;
+                    let row: ClaimRow =
+                        postcard::from_bytes(&buf).map_err(|e| StoreError::Corrupt {
+                            path: path.clone(),
+                            message: format!("row {}: {e}", a.row),
+                        })?;
+                    kept.push((a.row as usize, row));
                 }
             }
-            by_seg.insert(seg, kept);
+            by_seg.insert(*seg, kept);
         }
         let mut out = Vec::new();
         for f in &self.manifest.files {
             if f.claims == 0 {
                 continue;
             }
-            let (Some(rows), Some(&len)) = (by_seg.get(&f.segment), lens.get(&f.segment)) else {
+            let Some(rows) = by_seg.get(&f.segment) else {
                 return Err(StoreError::Corrupt {
                     path: self.dir.clone(),
                     message: format!("segment {} missing", f.segment),
@@ -128,15 +154,9 @@ impl Store {
             };
             for (a, b) in f.row_ranges() {
                 let (a, b) = (a as usize, b as usize);
-                if a > b || b > len {
-                    return Err(StoreError::Corrupt {
-                        path: self.dir.clone(),
-                        message: format!("rows {a}..{b} out of range for {}", f.path),
-                    });
-                }
                 let from = rows.partition_point(|(i, _)| *i < a);
                 let to = rows.partition_point(|(i, _)| *i < b);
-                out.extend(rows[from..to].iter().map(|(_, r)| r.clone()));
+                out.extend(rows[from..to.max(from)].iter().map(|(_, r)| r.clone()));
             }
         }
         Ok(out)
@@ -144,13 +164,42 @@ impl Store {
 
     /// The full claim record a row points at.
     pub fn claim(&self, at: ClaimRef) -> Result<Claim, StoreError> {
-        let p = self.dir.join(seg_name(at.segment, "jsonl"));
-        let mut f = File::open(&p).map_err(|e| StoreError::io(&p, e))?;
-        f.seek(SeekFrom::Start(at.offset))
-            .map_err(|e| StoreError::io(&p, e))?;
-        let mut buf = vec![0; at.len as usize];
-        f.read_exact(&mut buf).map_err(|e| StoreError::io(&p, e))?;
-        serde_json::from_slice(&buf).map_err(|e| StoreError::Corrupt {
+        let p = self.dir.join(seg_name(at.segment, CLAIMS_EXT));
+        let mut cached = self.blocks.lock().unwrap_or_else(|e| e.into_inner());
+        let hit = cached
+            .iter()
+            .position(|(s, o, _)| *s == at.segment && *o == at.offset);
+        let i = match hit {
+            Some(i) => i,
+            None => {
+                let mut f = File::open(&p).map_err(|e| StoreError::io(&p, e))?;
+                f.seek(SeekFrom::Start(at.offset))
+                    .map_err(|e| StoreError::io(&p, e))?;
+                let mut block = Vec::new();
+                zstd::stream::read::Decoder::new(f)
+                    .map(|d| d.single_frame())
+                    .and_then(|d| d.take(MAX_BLOCK).read_to_end(&mut block))
+                    .map_err(|e| StoreError::Corrupt {
+                        path: p.clone(),
+                        message: format!("claim block at byte {}: {e}", at.offset),
+                    })?;
+                if cached.len() >= CACHED_BLOCKS {
+                    cached.remove(0);
+                }
+                cached.push((at.segment, at.offset, block));
+                cached.len() - 1
+            }
+        };
+        let block = cached[i].2.as_slice();
+        let (a, b) = (at.within as usize, at.within as usize + at.len as usize);
+        let bytes = block.get(a..b).ok_or_else(|| StoreError::Corrupt {
+            path: p.clone(),
+            message: format!(
+                "claim at {a}..{b} past the end of its block at byte {}",
+                at.offset
+            ),
+        })?;
+        serde_json::from_slice(bytes).map_err(|e| StoreError::Corrupt {
             path: p,
             message: e.to_string(),
         })
@@ -181,49 +230,15 @@ impl Store {
     }
 }
 
-/// The compact rows of a store's live segments, as read from disk (see [`Store::row_bytes`]).
-#[derive(Debug, Default)]
-pub struct RowBytes {
-    segs: HashMap<u32, Vec<u8>>,
+/// The postings of a store's live segments (see [`Store::postings`]).
+#[derive(Debug)]
+pub struct PostingIndex {
+    segs: Vec<(u32, Postings)>,
 }
 
-/// A [`ClaimRow`] decoded in place: the same fields in the same order (postcard has no field
-/// names, and encodes a string and a byte string alike), with the text borrowed from the row
-/// bytes as bytes, so that only the rows kept pay for the UTF-8 check.
-#[derive(Debug, Deserialize)]
-pub(super) struct RowView<'a> {
-    cause: &'a [u8],
-    effect: &'a [u8],
-    cause_text: &'a [u8],
-    effect_text: &'a [u8],
-    kind: crate::claim::Kind,
-    polarity: crate::claim::Polarity,
-    modality: crate::claim::Modality,
-    cue: &'a [u8],
-    doc: &'a [u8],
-    line: u32,
-    sentence: u64,
-    at: ClaimRef,
-    confidence: f32,
-}
-
-impl RowView<'_> {
-    pub(super) fn to_row(&self) -> Result<ClaimRow, std::string::FromUtf8Error> {
-        let s = |b: &[u8]| String::from_utf8(b.to_vec());
-        Ok(ClaimRow {
-            cause: s(self.cause)?,
-            effect: s(self.effect)?,
-            cause_text: s(self.cause_text)?,
-            effect_text: s(self.effect_text)?,
-            kind: self.kind,
-            polarity: self.polarity,
-            modality: self.modality,
-            cue: s(self.cue)?,
-            doc: s(self.doc)?,
-            line: self.line,
-            sentence: self.sentence,
-            at: self.at,
-            confidence: self.confidence,
-        })
+impl PostingIndex {
+    /// Every raw variable key of the live segments (a key of removed claims may be among them).
+    pub fn keys(&self) -> BTreeSet<&str> {
+        self.segs.iter().flat_map(|(_, p)| p.keys()).collect()
     }
 }

@@ -4,11 +4,14 @@
 use crate::claim::{Claim, Kind, Modality, Polarity};
 use serde::{Deserialize, Serialize};
 
-/// Where a full claim record lives in the store.
+/// Where a full claim record lives in the store: in segment `segment`'s compressed claim file,
+/// the block (one zstd frame) that starts at byte `offset`, at bytes `within..within + len` of
+/// the block once decompressed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 pub struct ClaimRef {
     pub segment: u32,
     pub offset: u64,
+    pub within: u32,
     pub len: u32,
 }
 
@@ -80,6 +83,7 @@ pub(crate) fn test_row(cause: &str, effect: &str, p: Polarity, m: Modality, doc:
         at: ClaimRef {
             segment: 0,
             offset: 0,
+            within: 0,
             len: 0,
         },
         confidence: 1.0,

@@ -5,6 +5,7 @@ use super::index::{open_index, Fields};
 use super::manifest::{
     load, seg_name, segment_number, write_atomic, FileEntry, Manifest, STORE_VERSION,
 };
+use super::postings::{PostingsBuilder, RowAt};
 use super::result::{FileResult, Spilled, SpilledRecord};
 use super::rows::{ClaimRef, ClaimRow};
 use crate::claim::Claim;
@@ -16,6 +17,28 @@ use std::fs::{self, File};
 use std::io::{BufWriter, Write};
 use std::path::{Path, PathBuf};
 use tantivy::{doc, IndexWriter, Term};
+
+/// The extension of a segment's compressed claim records.
+pub(super) const CLAIMS_EXT: &str = "jsonl.zst";
+
+/// Compress the block of claim records and write it as one zstd frame; returns its length.
+fn flush_block(w: &mut impl Write, block: &mut Vec<u8>, dir: &Path) -> Result<u64, StoreError> {
+    if block.is_empty() {
+        return Ok(0);
+    }
+    let frame = zstd::bulk::compress(block, CLAIM_LEVEL).map_err(|e| StoreError::io(dir, e))?;
+    w.write_all(&frame).map_err(|e| StoreError::io(dir, e))?;
+    block.clear();
+    Ok(frame.len() as u64)
+}
+
+/// Claims are compressed in blocks of about this many bytes of JSON Lines (one zstd frame a
+/// block): small enough that fetching one claim decompresses little, large enough that the
+/// sentences and keys that recur between neighbouring claims compress well.
+const CLAIM_BLOCK: usize = 64 * 1024;
+
+/// zstd level of the claim blocks (the library's default trade of speed for size).
+const CLAIM_LEVEL: i32 = 3;
 
 /// A scan's writer: holds the lock, writes a new segment and index entries as files come, and
 /// switches the store to them at commit. Claims and rows go to disk as they are added, so its
@@ -29,6 +52,13 @@ pub struct StoreWriter {
     rows_out: Option<BufWriter<File>>,
     /// Rows written to the new segment so far.
     rows: u64,
+    /// Claim records (JSON Lines) of the block not yet compressed, and where it will start in
+    /// the claim file.
+    block: Vec<u8>,
+    /// Bytes of rows written to the new segment so far.
+    row_bytes: u64,
+    /// The new segment's postings (key to rows), written at commit.
+    postings: PostingsBuilder,
     offset: u64,
     index_writer: IndexWriter,
     fields: Fields,
@@ -88,6 +118,9 @@ impl StoreWriter {
             jsonl: None,
             rows_out: None,
             rows: 0,
+            block: Vec::new(),
+            row_bytes: 0,
+            postings: PostingsBuilder::default(),
             offset: 0,
             index_writer,
             fields,
@@ -149,7 +182,7 @@ impl StoreWriter {
             message: e.to_string(),
         };
         if self.jsonl.is_none() {
-            let p = self.dir.join(seg_name(self.segment, "jsonl"));
+            let p = self.dir.join(seg_name(self.segment, CLAIMS_EXT));
             self.jsonl = Some(BufWriter::new(
                 File::create(&p).map_err(|e| StoreError::io(&p, e))?,
             ));
@@ -162,24 +195,42 @@ impl StoreWriter {
         let (Some(w), Some(rw)) = (self.jsonl.as_mut(), self.rows_out.as_mut()) else {
             return Ok(());
         };
-        let mut line = Vec::new();
         for c in claims {
-            line.clear();
-            serde_json::to_writer(&mut line, c).map_err(|e| StoreError::Corrupt {
+            let within = self.block.len();
+            serde_json::to_writer(&mut self.block, c).map_err(|e| StoreError::Corrupt {
                 path: self.dir.clone(),
                 message: e.to_string(),
             })?;
-            line.push(b'\n');
-            w.write_all(&line)
-                .map_err(|e| StoreError::io(&self.dir, e))?;
             let at = ClaimRef {
                 segment: self.segment,
                 offset: self.offset,
-                len: (line.len() - 1) as u32,
+                within: within as u32,
+                len: (self.block.len() - within) as u32,
             };
-            self.offset += line.len() as u64;
-            postcard::to_io(&ClaimRow::from_claim(c, at), &mut *rw)
+            self.block.push(b'\n');
+            if self.block.len() >= CLAIM_BLOCK {
+                self.offset += flush_block(w, &mut self.block, &self.dir)?;
+            }
+            let row = postcard::to_stdvec(&ClaimRow::from_claim(c, at))
                 .map_err(|e| corrupt(&self.dir, e))?;
+            rw.write_all(&row)
+                .map_err(|e| StoreError::io(&self.dir, e))?;
+            let (Ok(number), Ok(len)) = (u32::try_from(self.rows), u32::try_from(row.len())) else {
+                return Err(StoreError::Corrupt {
+                    path: self.dir.clone(),
+                    message: "a segment holds at most 2^32 rows of at most 4 GB each".into(),
+                });
+            };
+            self.postings.add(
+                &c.cause.key,
+                &c.effect.key,
+                RowAt {
+                    row: number,
+                    offset: self.row_bytes,
+                    len,
+                },
+            );
+            self.row_bytes += row.len() as u64;
             self.rows += 1;
         }
         let (segment, rows) = (self.segment, self.rows);
@@ -246,6 +297,9 @@ impl StoreWriter {
         skipped: Vec<Skipped>,
         failed: Vec<Skipped>,
     ) -> Result<Manifest, StoreError> {
+        if let Some(w) = self.jsonl.as_mut() {
+            flush_block(w, &mut self.block, &self.dir)?;
+        }
         for w in [self.jsonl.take(), self.rows_out.take()]
             .into_iter()
             .flatten()
@@ -254,6 +308,11 @@ impl StoreWriter {
                 .into_inner()
                 .map_err(|e| StoreError::io(&self.dir, e.into_error()))?;
             f.sync_all().map_err(|e| StoreError::io(&self.dir, e))?;
+        }
+        if !self.postings.is_empty() {
+            let p = self.dir.join(seg_name(self.segment, "post"));
+            let f = self.postings.write(&p)?;
+            f.sync_all().map_err(|e| StoreError::io(&p, e))?;
         }
         let generation = self.old.generation + 1;
         let mut prepared = self.index_writer.prepare_commit()?;
