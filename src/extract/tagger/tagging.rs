@@ -1,5 +1,5 @@
-//! Tagging a sentence: greedy decoding left to right over per-word score vectors that a
-//! per-thread cache keeps, and the last sentence tagged remembered for the built-in model.
+//! Tagging a sentence (or a cue's window of it): greedy decoding left to right over per-word
+//! score vectors that a per-thread cache keeps.
 
 use super::features::{add, feature_hash, Prepared};
 use super::{argmax, FastMap, Tag, Tagger, NT, ROLES};
