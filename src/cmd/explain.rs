@@ -3,7 +3,9 @@
 use super::{escape, Format, Global};
 use anyhow::Result;
 use clap::Args;
-use hearsay::extract::{explain_confidence, sentence_attempts, tokenize, Contribution, Extractor};
+use hearsay::extract::{
+    explain_confidence, sentence_attempts, Contribution, Extractor, TaggedSentence,
+};
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -76,7 +78,13 @@ fn explained(ex: &Extractor, text: &str) -> Vec<Explained> {
             // Attempts are recorded before scoring: score each claim as the pipeline does.
             let mut confidence_features = Vec::new();
             if let Some(c) = claim.as_mut() {
-                let (p, why) = explain_confidence(&ex.confidence, &ex.cues, c, text, &claims);
+                let sentence = text.get(c.source.start..c.source.end).unwrap_or("");
+                let tagged = TaggedSentence::from_tokens(
+                    sentence,
+                    c.source.start,
+                    ex.sentence_tokens(sentence),
+                );
+                let (p, why) = explain_confidence(&ex.confidence, &ex.cues, c, &tagged, &claims);
                 c.confidence = p;
                 confidence_features = why;
             }
@@ -92,12 +100,12 @@ fn explained(ex: &Extractor, text: &str) -> Vec<Explained> {
         .collect()
 }
 
-/// `--tags`: each sentence's words with the part-of-speech tags the span finder sees.
+/// `--tags`: each sentence's words with the part-of-speech tags the span finder sees ("?" for a
+/// word outside every cue's tagging window).
 fn write_tags(out: &mut impl Write, ex: &Extractor, text: &str) -> Result<()> {
     for s in hearsay::sentences::split(text) {
         let sentence = &text[s.start..s.end];
-        let mut toks = tokenize(sentence);
-        ex.tag_tokens(sentence, &mut toks);
+        let toks = ex.sentence_tokens(sentence);
         let tagged: Vec<String> = toks
             .iter()
             .map(|t| {

@@ -206,7 +206,12 @@ fn examples<'j>(
     let (mut train, mut dev) = (Vec::new(), Vec::new());
     let mut dev_names: Vec<&str> = Vec::new();
     for (name, j) in judged {
-        let s = TaggedSentence::new(&j.sentence, j.claim.source.start);
+        // The tags the pipeline gives this sentence (its cue matches' windows).
+        let s = TaggedSentence::from_tokens(
+            &j.sentence,
+            j.claim.source.start,
+            ex.sentence_tokens(&j.sentence),
+        );
         let features =
             confidence_features(&j.claim, ex.cues.family(&j.claim.cue), &s, j.claims_here);
         let e = Example {

@@ -10,8 +10,8 @@
 //!
 //! Features are computed from the claim and the raw text of its sentence only, so the model is
 //! trained (`hearsay train-confidence`, see [`train`]) on exactly what the pipeline sees. The
-//! sentence is tagged once with the built-in tagger ([`crate::extract::Tagger::load_builtin`]) and
-//! only when it gave a claim, which keeps the cost to a small share of extraction.
+//! tags are those the span finder saw (the words of each cue match's tagging window), passed in
+//! by the caller ([`TaggedSentence::from_tokens`]), so nothing is tagged twice.
 //!
 //! The model is a value: each extractor owns the one of its pattern set
 //! ([`ConfidenceModel::of`]: the folder's own `confidence.toml`, else the built-in one), and the
@@ -266,6 +266,23 @@ impl<'a> TaggedSentence<'a> {
         let tokens = tokenize(text);
         let words: Vec<&str> = tokens.iter().map(|t| &text[t.start..t.end]).collect();
         let tags = Tagger::load_builtin().tag(&words);
+        TaggedSentence {
+            text,
+            offset,
+            tokens,
+            tags,
+        }
+    }
+
+    /// The sentence that starts at `offset` in its document, with the tokens and tags the
+    /// extractor gave it (`Extractor::extract`, `Extractor::sentence_tokens`): the confidence
+    /// features read the span finder's tags instead of tagging again. A word left untagged (outside
+    /// every cue's tagging window) reads as the unknown tag.
+    pub fn from_tokens(text: &'a str, offset: usize, tokens: Vec<Token>) -> Self {
+        let tags = tokens
+            .iter()
+            .map(|t| t.tag.unwrap_or(Tag::UNKNOWN))
+            .collect();
         TaggedSentence {
             text,
             offset,
@@ -579,22 +596,20 @@ pub fn features(
     out
 }
 
-/// Set the confidence of the claims of one sentence with model `m`; `cues` is the cue set that
-/// found them (for each cue's family).
+/// Set the confidence of the claims of one sentence `s` with model `m`; `cues` is the cue set
+/// that found them (for each cue's family).
 pub fn score_sentence(
     m: &ConfidenceModel,
     cues: &CueSet,
     claims: &mut [Claim],
-    sentence: &str,
-    offset: usize,
+    s: &TaggedSentence<'_>,
 ) {
     if claims.is_empty() {
         return;
     }
-    let s = TaggedSentence::new(sentence, offset);
     let n = claims.len();
     for c in claims.iter_mut() {
-        let p = m.score(c, cues.family(&c.cue), &s, n);
+        let p = m.score(c, cues.family(&c.cue), s, n);
         c.confidence = (p * 1000.0).round() / 1000.0;
     }
 }
@@ -607,21 +622,19 @@ pub struct Contribution {
 }
 
 /// How model `m` scored one claim, for `explain`: the confidence the pipeline gives it and the
-/// features that carry a weight, largest effect first. `cues` is the cue set that found it,
-/// `doc_text` the text the claim's offsets point into, `all` the claims found in it (for the
-/// claims-per-sentence feature).
+/// features that carry a weight, largest effect first. `cues` is the cue set that found it, `s`
+/// its sentence as the extractor tagged it ([`TaggedSentence::from_tokens`]), `all` the claims
+/// found in the text (for the claims-per-sentence feature).
 pub fn explain(
     m: &ConfidenceModel,
     cues: &CueSet,
     c: &Claim,
-    doc_text: &str,
+    s: &TaggedSentence<'_>,
     all: &[Claim],
 ) -> (f64, Vec<Contribution>) {
-    let (a, b) = (c.source.start, c.source.end);
-    let sentence = doc_text.get(a..b).unwrap_or("");
-    let s = TaggedSentence::new(sentence, a);
+    let a = c.source.start;
     let here = all.iter().filter(|o| o.source.start == a).count().max(1);
-    let names = features(c, cues.family(&c.cue), &s, here);
+    let names = features(c, cues.family(&c.cue), s, here);
     let p = (m.probability(&names) * 1000.0).round() / 1000.0;
     let mut out: Vec<Contribution> = names
         .into_iter()

@@ -110,14 +110,12 @@ fn run_capped(
                 record: doc.record.as_deref(),
             };
             let before = out.len();
-            ex.extract(sent, prev, &origin, &candidates, out, trace.as_deref_mut());
-            confidence::score_sentence(
-                &ex.confidence,
-                &ex.cues,
-                &mut out[before..],
-                sent.text,
-                sent.offset,
-            );
+            let toks = ex.extract(sent, prev, &origin, &candidates, out, trace.as_deref_mut());
+            if out.len() > before {
+                // The confidence features read the tags the span finder saw.
+                let tagged = confidence::TaggedSentence::from_tokens(sent.text, sent.offset, toks);
+                confidence::score_sentence(&ex.confidence, &ex.cues, &mut out[before..], &tagged);
+            }
             k = k2;
         }
         h = h_end.max(h + 1);

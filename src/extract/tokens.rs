@@ -17,7 +17,7 @@ pub struct Token {
     pub word: bool,
     /// The token starts with an upper-case letter.
     pub capital: bool,
-    /// Part of speech, filled in by `Extractor::tag_tokens` for sentences where a cue fired.
+    /// Part of speech, filled in for the words of a cue's tagging window (`claims/window.rs`).
     pub tag: Option<Tag>,
 }
 

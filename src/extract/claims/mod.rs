@@ -11,7 +11,8 @@
 //! The work is split by question: [`spans`] walks out from the cue to the cause and effect spans,
 //! [`senses`] decides whether a cue word is used in another sense (a noun, a name, a time), and
 //! [`modality`] reads negation, hedges, conditions and sign words; [`assemble`] puts one cue
-//! match's slots together into claims.
+//! match's slots together into claims; [`window`] says which words are tagged (the clause
+//! around each cue match, not the whole sentence).
 
 mod assemble;
 mod modality;
@@ -19,6 +20,7 @@ mod senses;
 mod spans;
 #[cfg(test)]
 mod tests;
+mod window;
 
 use crate::claim::{Claim, Polarity};
 use crate::extract::confidence::{ConfidenceError, ConfidenceModel};
@@ -191,7 +193,8 @@ impl Extractor {
         })
     }
 
-    /// Tag the words of a tokenised sentence (only sentences where a cue fired get here).
+    /// Tag every word of a tokenised sentence (the sentence before a cue's, when a pronoun
+    /// slot looks back to it for an antecedent).
     pub fn tag_tokens(&self, sentence: &str, toks: &mut [Token]) {
         let words: Vec<&str> = toks.iter().map(|t| &sentence[t.start..t.end]).collect();
         for (t, tag) in toks.iter_mut().zip(self.tagger.tag(&words)) {
@@ -204,7 +207,9 @@ impl Extractor {
     }
 
     /// Extract the claims of one sentence. `prev` is the sentence before it in the same block, for
-    /// connectives that open a sentence. Candidates come from the prefilter.
+    /// connectives that open a sentence. Candidates come from the prefilter. Returns the
+    /// sentence's tokens as tagged for the span finder (empty when no cue matched), for the
+    /// confidence model to read the same tags.
     pub fn extract(
         &self,
         sent: SentenceRef<'_>,
@@ -213,20 +218,14 @@ impl Extractor {
         candidates: &[Candidate],
         out: &mut Vec<Claim>,
         mut trace: Option<&mut Vec<Attempt>>,
-    ) {
-        let mut matches = self.cues.match_sentence(sent.text, candidates);
-        self.drop_outcome_misses(&mut matches, sent.text, trace.as_deref_mut());
-        if matches.is_empty() {
-            return;
-        }
-        let mut toks = tokenize(sent.text);
-        self.tag_tokens(sent.text, &mut toks);
-        let toks = toks;
+    ) -> Vec<Token> {
+        let before = out.len();
+        let Some((matches, mut toks, cue_tokens)) =
+            self.matched_tokens(sent.text, candidates, trace.as_deref_mut())
+        else {
+            return Vec::new();
+        };
         let mut blocked = vec![false; toks.len()];
-        let cue_tokens: Vec<(usize, usize)> = matches
-            .iter()
-            .map(|m| token_range(&toks, m.start, m.end))
-            .collect();
         let noun_uses: Vec<Option<String>> = matches
             .iter()
             .zip(&cue_tokens)
@@ -295,6 +294,60 @@ impl Extractor {
             if let Some(t) = trace.as_deref_mut() {
                 self.record(t, m, sent.text, result, notes);
             }
+        }
+        self.tag_claim_spans(sent, &mut toks, &out[before..]);
+        toks
+    }
+
+    /// The cue matches of a sentence that survive the first checks, its tokens with the words
+    /// of each match's tagging window tagged ([`window`]), and each match's token range; `None`
+    /// when no cue matches.
+    #[allow(clippy::type_complexity)]
+    fn matched_tokens(
+        &self,
+        sentence: &str,
+        candidates: &[Candidate],
+        trace: Option<&mut Vec<Attempt>>,
+    ) -> Option<(Vec<CueMatch>, Vec<Token>, Vec<(usize, usize)>)> {
+        let mut matches = self.cues.match_sentence(sentence, candidates);
+        self.drop_outcome_misses(&mut matches, sentence, trace);
+        if matches.is_empty() {
+            return None;
+        }
+        let mut toks = tokenize(sentence);
+        let cue_tokens: Vec<(usize, usize)> = matches
+            .iter()
+            .map(|m| token_range(&toks, m.start, m.end))
+            .collect();
+        self.tag_clauses(sentence, &mut toks, &cue_tokens);
+        Some((matches, toks, cue_tokens))
+    }
+
+    /// The tokens of one sentence with the tags extraction gives them: the words of each cue
+    /// match's window tagged, and any word of a claim's span outside them (no tag at all when no
+    /// cue matches; a claim whose cause comes from the sentence before is not seen here). The pipeline
+    /// keeps the tokens it tagged ([`Extractor::extract`] returns them); this is for callers that
+    /// start from a sentence's text (`explain`, `train-confidence`), so that they see the same
+    /// tags as the pipeline.
+    pub fn sentence_tokens(&self, sentence: &str) -> Vec<Token> {
+        let hits = self.cues.hits(sentence);
+        let candidates = self.cues.candidates(&hits, 0);
+        let origin = Origin {
+            path: "",
+            line: 1,
+            column: 1,
+            page: None,
+            record: None,
+        };
+        let sent = SentenceRef {
+            text: sentence,
+            offset: 0,
+        };
+        let toks = self.extract(sent, None, &origin, &candidates, &mut Vec::new(), None);
+        if toks.is_empty() {
+            tokenize(sentence)
+        } else {
+            toks
         }
     }
 

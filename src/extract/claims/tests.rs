@@ -435,3 +435,68 @@ fn capitalised_cue_after_a_comma_is_a_name_on_elife_text() {
         "{glued_claims} of {glued}"
     );
 }
+
+/// Over eLife text (elife-articles/SOURCE.txt): only part of a sentence is tagged, yet every word
+/// of every claim's span inside its sentence carries a tag (the confidence features read them),
+/// and a caller that starts from the sentence's text (`explain`, `train-confidence`) gets the
+/// tags the pipeline used.
+#[test]
+fn claim_spans_are_tagged_and_sentence_tokens_agree() {
+    let e = ex();
+    let lines = crate::testdata::elife_lines(60);
+    let origin = Origin {
+        path: "t",
+        line: 1,
+        column: 1,
+        page: None,
+        record: None,
+    };
+    let (mut claims, mut untagged_words, mut tagged_words) = (0, 0, 0);
+    for (path, prev, sent) in sentences_of(&lines) {
+        let hits = e.cues.hits(sent.text);
+        let mut out = Vec::new();
+        let toks = e.extract(
+            sent,
+            prev,
+            &origin,
+            &e.cues.candidates(&hits, 0),
+            &mut out,
+            None,
+        );
+        if out.is_empty() {
+            continue;
+        }
+        let end = sent.offset + sent.text.len();
+        for c in &out {
+            claims += 1;
+            for slot in [&c.cause, &c.effect] {
+                if slot.start < sent.offset || slot.end > end {
+                    continue;
+                }
+                let (a, b) = token_range(&toks, slot.start - sent.offset, slot.end - sent.offset);
+                assert!(
+                    toks[a..b].iter().all(|t| t.tag.is_some()),
+                    "{}: {:?} in {:?}",
+                    path.display(),
+                    slot.text,
+                    sent.text
+                );
+            }
+        }
+        tagged_words += toks.iter().filter(|t| t.tag.is_some()).count();
+        untagged_words += toks.iter().filter(|t| t.tag.is_none()).count();
+        if out.iter().all(|c| !c.cross_sentence) {
+            let again: Vec<_> = e.sentence_tokens(sent.text).iter().map(|t| t.tag).collect();
+            let here: Vec<_> = toks.iter().map(|t| t.tag).collect();
+            assert_eq!(again, here, "{}: {:?}", path.display(), sent.text);
+        }
+    }
+    if !lines.is_empty() {
+        // The window leaves a real share of the words of sentences with claims untagged.
+        assert!(claims > 1000, "{claims} claims");
+        assert!(
+            untagged_words * 10 > tagged_words,
+            "{untagged_words} of {tagged_words}"
+        );
+    }
+}

@@ -48,6 +48,9 @@ const TAGS: &[&str] = &[
 pub struct Tag(u8);
 
 impl Tag {
+    /// The unknown tag ("XX"): what a word no tagging window covered reads as where a tag is
+    /// required.
+    pub const UNKNOWN: Tag = Tag(TAGS.len() as u8 - 1);
     /// The tag as written in treebanks ("NN", "VBZ").
     pub fn as_str(self) -> &'static str {
         TAGS[self.0 as usize]

@@ -1,5 +1,5 @@
-//! Tagging a sentence: greedy decoding left to right over per-word score vectors that a
-//! per-thread cache keeps, and the last sentence tagged remembered for the built-in model.
+//! Tagging a sentence (or a cue's window of it): greedy decoding left to right over per-word
+//! score vectors that a per-thread cache keeps.
 
 use super::features::{add, feature_hash, Prepared};
 use super::{argmax, FastMap, Tag, Tagger, NT, ROLES};
@@ -81,37 +81,9 @@ impl WordCache {
 }
 
 impl Tagger {
-    /// Tag a tokenised sentence. For the built-in model the last sentence tagged on each thread
-    /// is remembered, so the span finder and the confidence model, which both need the tags of a
-    /// sentence with a claim, tag it once.
+    /// Tag a tokenised sentence (or a run of its words: a cue's tagging window).
     pub fn tag(&self, words: &[&str]) -> Vec<Tag> {
-        thread_local! {
-            static LAST: std::cell::RefCell<(Vec<u8>, Vec<Tag>)> =
-                const { std::cell::RefCell::new((Vec::new(), Vec::new())) };
-        }
-        if !std::ptr::eq(self, Tagger::load_builtin()) {
-            return self.tag_uncached(words);
-        }
-        // The sentence's words, each after its length: one buffer to compare, unambiguously.
-        let mut key = Vec::with_capacity(words.iter().map(|w| w.len() + 4).sum());
-        for w in words {
-            key.extend_from_slice(&(w.len() as u32).to_le_bytes());
-            key.extend_from_slice(w.as_bytes());
-        }
-        let hit = LAST.with(|l| {
-            let l = l.borrow();
-            (l.0 == key).then(|| l.1.clone())
-        });
-        if let Some(tags) = hit {
-            return tags;
-        }
-        let tags = self.tag_uncached(words);
-        LAST.with(|l| {
-            let mut l = l.borrow_mut();
-            l.0 = key;
-            l.1.clone_from(&tags);
-        });
-        tags
+        self.tag_uncached(words)
     }
 
     pub(super) fn tag_uncached(&self, words: &[&str]) -> Vec<Tag> {
