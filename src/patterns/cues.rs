@@ -63,6 +63,9 @@ pub struct CueSpec {
     /// The connective also has a time sense ("since"): a perfect-tense effect clause beside a
     /// past-tense or verbless cause clause reads as time, not reason, and gives no claim.
     pub time_sense: bool,
+    /// A denied claim of this cue states that there is no effect ("does not affect Y"): its
+    /// polarity becomes `none`, as for "has no effect on" (the no-effect convention).
+    pub negated_none: bool,
     pub examples: Vec<Example>,
     pub counter_examples: Vec<String>,
     /// Where the entry was defined, for messages.
@@ -91,6 +94,8 @@ struct RawCue {
     outcome_effect: bool,
     #[serde(default)]
     time_sense: bool,
+    #[serde(default)]
+    negated_none: bool,
     #[serde(default)]
     examples: Vec<RawExample>,
     #[serde(default)]
@@ -193,6 +198,7 @@ pub fn parse_cue_file(
             reject_before: raw.reject_before,
             outcome_effect: raw.outcome_effect,
             time_sense: raw.time_sense,
+            negated_none: raw.negated_none,
             examples,
             counter_examples: raw.counter_examples,
             origin: (path.to_path_buf(), line),

@@ -14,6 +14,7 @@
 //! match's slots together into claims.
 
 mod assemble;
+mod attribution;
 mod modality;
 mod senses;
 mod spans;
@@ -22,7 +23,7 @@ mod tests;
 
 use crate::claim::{Claim, Polarity};
 use crate::extract::confidence::{ConfidenceError, ConfidenceModel};
-use crate::extract::cues::{Candidate, CueMatch, CueSet};
+use crate::extract::cues::{Candidate, CueMatch, CueSet, SlotPlace};
 use crate::extract::tagger::Tagger;
 use crate::extract::tokens::{collapse, token_range, tokenize, Token};
 use crate::patterns::{Lexicon, PatternSet};
@@ -262,6 +263,7 @@ impl Extractor {
                                 prev,
                                 origin,
                                 sentence_text: &sentence_text,
+                                inherited_cause: None,
                             };
                             self.claim_for(&cx, &mut notes)
                         }
@@ -287,6 +289,60 @@ impl Extractor {
                 blocked[a..b].iter_mut().for_each(|x| *x = false);
             }
             results = run(&blocked, &mut notes);
+        }
+        // "The levy raises bus fares and lowers car use": a verb cue with no cause of its own,
+        // coordinated with an earlier verb cue that has one, takes that cause.
+        for i in 0..matches.len() {
+            if results[i].is_ok() || noun_uses[i].is_some() || matches[i].cause != SlotPlace::Before
+            {
+                continue;
+            }
+            let (ca, cb) = cue_tokens[i];
+            let mut k = ca;
+            while k > 0 && (self.adverb(&toks[k - 1].lower) || toks[k - 1].lower == "also") {
+                k -= 1;
+            }
+            if k == 0 || !matches!(toks[k - 1].lower.as_str(), "and" | "but" | "yet") {
+                continue;
+            }
+            let earlier = (0..matches.len())
+                .filter(|&j| {
+                    cue_tokens[j].1 < k
+                        && matches[j].cause == SlotPlace::Before
+                        && results[j].as_ref().is_ok_and(|cs| !cs.is_empty())
+                })
+                .max_by_key(|&j| cue_tokens[j].1);
+            let Some(j) = earlier else { continue };
+            let Some(first) = results[j].as_ref().ok().and_then(|cs| cs.first()) else {
+                continue;
+            };
+            let inherited = Chosen {
+                start: first.cause.start,
+                end: first.cause.end,
+                text: first.cause.text.clone(),
+                key_text: first.cause.text.clone(),
+                sign: None,
+                negated: false,
+                pronoun: first.cause.pronoun.clone(),
+            };
+            let cx = MatchCtx {
+                m: &matches[i],
+                ca,
+                cb,
+                toks: &toks,
+                blocked: &blocked,
+                sent,
+                prev,
+                origin,
+                sentence_text: &sentence_text,
+                inherited_cause: Some(&inherited),
+            };
+            let mut n = Vec::new();
+            let r = self.claim_for(&cx, &mut n);
+            if r.is_ok() {
+                results[i] = r;
+                notes[i] = n;
+            }
         }
         for ((m, result), notes) in matches.iter().zip(results).zip(notes) {
             if let Ok(cs) = &result {

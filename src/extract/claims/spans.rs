@@ -18,7 +18,8 @@ impl Extractor {
     /// A word that ends a noun-phrase span in either direction.
     pub(super) fn np_boundary(&self, t: &Token) -> bool {
         let l = &self.lexicon;
-        !t.word
+        // "40 °C", "20 %": a unit sign stays inside the span with its number.
+        (!t.word && !matches!(t.lower.as_str(), "°" | "%"))
             || l.clause_breaks.contains(t.lower.as_str())
             || l.relatives.contains(t.lower.as_str())
             || l.auxiliaries.contains(t.lower.as_str())
@@ -534,6 +535,10 @@ impl Extractor {
                 k += 1;
             }
             if k == j || blocked[j..k].iter().any(|&b| b) {
+                break;
+            }
+            // "raises A and lowers B": a coordinated verb phrase, not another slot.
+            if k < toks.len() && (blocked[k] || toks[k].tag.is_some_and(Tag::is_finite_verb)) {
                 break;
             }
             // "caused by X or by Y": the cue's preposition may be repeated.
