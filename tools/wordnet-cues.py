@@ -237,6 +237,13 @@ def main():
             continue
         sign, (seed, off, cnt) = next(iter(signs.items()))
         keep.append((verb, sign, seed, off, cnt))
+        # WordNet spells -ize; British -ise ("minimise") is its own cue.
+        head, _, rest = verb.partition(" ")
+        if head.endswith("ize"):
+            brit = (head[:-3] + "ise" + ((" " + rest) if rest else ""))
+            if brit not in have and brit not in found:
+                keep.append((brit, sign, seed, off, cnt))
+    keep.sort()
 
     out = sys.stdout
     out.write(HEADER)

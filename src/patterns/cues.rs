@@ -66,6 +66,9 @@ pub struct CueSpec {
     /// A denied claim of this cue states that there is no effect ("does not affect Y"): its
     /// polarity becomes `none`, as for "has no effect on" (the no-effect convention).
     pub negated_none: bool,
+    /// The verb also names moving or handling a thing ("raised the flag", "cut the rope"): an
+    /// object whose head is in `[senses] handled` (lexicon.toml) gives no claim.
+    pub handling: bool,
     pub examples: Vec<Example>,
     pub counter_examples: Vec<String>,
     /// Where the entry was defined, for messages.
@@ -96,6 +99,8 @@ struct RawCue {
     time_sense: bool,
     #[serde(default)]
     negated_none: bool,
+    #[serde(default)]
+    handling: bool,
     #[serde(default)]
     examples: Vec<RawExample>,
     #[serde(default)]
@@ -199,6 +204,7 @@ pub fn parse_cue_file(
             outcome_effect: raw.outcome_effect,
             time_sense: raw.time_sense,
             negated_none: raw.negated_none,
+            handling: raw.handling,
             examples,
             counter_examples: raw.counter_examples,
             origin: (path.to_path_buf(), line),

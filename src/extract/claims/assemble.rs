@@ -56,6 +56,9 @@ impl Extractor {
         cross_sentence |= self.resolve_pronouns(cx, &mut cause, &mut effect, notes);
         let cause = cause.ok_or("no cause span found")?;
         let effect = effect.ok_or("no effect span found")?;
+        for c in [&cause, &effect] {
+            self.verb_only(cx, c)?;
+        }
         if spec.time_sense
             && !cross_sentence
             && self.reads_as_time(cx.toks, cx.sent, &cause, &effect)
@@ -80,7 +83,11 @@ impl Extractor {
             effects = self.outcome_effects(cx, effects)?;
         }
         self.other_sense(spec, m, &causes, &effects)?;
-        if noun_first(spec) || spec.family == "nominal" {
+        // Only a causal noun that opens its pattern ("the effects of X on Y", "X is a cause of
+        // Y") can be a topic of enquiry; "Y from X" and the passives are statements.
+        let opens_with_noun = noun_first(spec)
+            || matches!(spec.tokens.first(), Some(PatternToken::Word { .. }));
+        if spec.family == "nominal" && opens_with_noun {
             let slots: Vec<&Chosen> = causes.iter().chain(&effects).collect();
             self.enquiry_talk(cx.toks, cx.sent, cx.ca, &slots)?;
         }
@@ -419,6 +426,35 @@ impl Extractor {
             cross_sentence,
             attribution: None,
         })
+    }
+
+    /// A slot that is one verb or adverb ("taken", "were", "interestingly") names no variable.
+    fn verb_only(&self, cx: &MatchCtx<'_>, c: &Chosen) -> Result<(), String> {
+        if c.start < cx.sent.offset {
+            return Ok(());
+        }
+        let (a, b) = c.tokens(cx.toks, cx.sent);
+        let words: Vec<&Token> = cx.toks[a..b.min(cx.toks.len())]
+            .iter()
+            .filter(|t| t.word)
+            .collect();
+        // The tagger is unsure on short clauses ("Drought limits grazing"), so a tag alone
+        // decides only for past participles with a participle's ending.
+        let whole = |t: &Token| cx.sent.offset + t.start == c.start && cx.sent.offset + t.end == c.end;
+        let fragment = matches!(words.as_slice(), [t] if whole(t) && {
+            let w = t.lower.as_str();
+            self.lexicon.auxiliaries.contains(w)
+                || self.adverb(w)
+                || (t.tag.is_some_and(|g| g.is_participle())
+                    && (w.ends_with("ed") || w.ends_with("en")))
+        });
+        if fragment {
+            return Err(format!(
+                "\"{}\" is a lone verb or adverb: it names no variable",
+                c.text
+            ));
+        }
+        Ok(())
     }
 
     /// Who said it: the attribution read before the claim's first slot in this sentence.

@@ -241,6 +241,7 @@ impl Extractor {
         }
         let sentence_text = collapse(sent.text);
         let run = |blocked: &[bool],
+                   inherit: &[Option<Chosen>],
                    notes_out: &mut Vec<Vec<String>>|
          -> Vec<Result<Vec<Claim>, String>> {
             notes_out.clear();
@@ -248,7 +249,8 @@ impl Extractor {
                 .iter()
                 .zip(&cue_tokens)
                 .zip(&noun_uses)
-                .map(|((m, &(ca, cb)), nu)| {
+                .zip(inherit)
+                .map(|(((m, &(ca, cb)), nu), inherited)| {
                     let mut notes = Vec::new();
                     let r = match nu {
                         Some(why) => Err(why.clone()),
@@ -263,7 +265,7 @@ impl Extractor {
                                 prev,
                                 origin,
                                 sentence_text: &sentence_text,
-                                inherited_cause: None,
+                                inherited_cause: inherited.as_ref(),
                             };
                             self.claim_for(&cx, &mut notes)
                         }
@@ -274,7 +276,21 @@ impl Extractor {
                 .collect()
         };
         let mut notes = Vec::new();
-        let mut results = run(&blocked, &mut notes);
+        let mut inherit: Vec<Option<Chosen>> = vec![None; matches.len()];
+        let mut results = run(&blocked, &inherit, &mut notes);
+        // "The levy raises bus fares and lowers car use": a verb cue with no cause of its own,
+        // coordinated with an earlier verb cue that has one, takes that cause.
+        let mut inherited_any = false;
+        for i in 0..matches.len() {
+            if results[i].is_ok() || noun_uses[i].is_some() {
+                continue;
+            }
+            inherit[i] = self.coordinated_cause(&matches, &cue_tokens, &results, &toks, i);
+            inherited_any |= inherit[i].is_some();
+        }
+        if inherited_any {
+            results = run(&blocked, &inherit, &mut notes);
+        }
         // A cue that gave no claim ("exploding fuel." read as the verb "fuel") must not cut the
         // spans of the others: unblock its words and decide again.
         let failed: Vec<usize> = results
@@ -288,61 +304,7 @@ impl Extractor {
                 let (a, b) = cue_tokens[i];
                 blocked[a..b].iter_mut().for_each(|x| *x = false);
             }
-            results = run(&blocked, &mut notes);
-        }
-        // "The levy raises bus fares and lowers car use": a verb cue with no cause of its own,
-        // coordinated with an earlier verb cue that has one, takes that cause.
-        for i in 0..matches.len() {
-            if results[i].is_ok() || noun_uses[i].is_some() || matches[i].cause != SlotPlace::Before
-            {
-                continue;
-            }
-            let (ca, cb) = cue_tokens[i];
-            let mut k = ca;
-            while k > 0 && (self.adverb(&toks[k - 1].lower) || toks[k - 1].lower == "also") {
-                k -= 1;
-            }
-            if k == 0 || !matches!(toks[k - 1].lower.as_str(), "and" | "but" | "yet") {
-                continue;
-            }
-            let earlier = (0..matches.len())
-                .filter(|&j| {
-                    cue_tokens[j].1 < k
-                        && matches[j].cause == SlotPlace::Before
-                        && results[j].as_ref().is_ok_and(|cs| !cs.is_empty())
-                })
-                .max_by_key(|&j| cue_tokens[j].1);
-            let Some(j) = earlier else { continue };
-            let Some(first) = results[j].as_ref().ok().and_then(|cs| cs.first()) else {
-                continue;
-            };
-            let inherited = Chosen {
-                start: first.cause.start,
-                end: first.cause.end,
-                text: first.cause.text.clone(),
-                key_text: first.cause.text.clone(),
-                sign: None,
-                negated: false,
-                pronoun: first.cause.pronoun.clone(),
-            };
-            let cx = MatchCtx {
-                m: &matches[i],
-                ca,
-                cb,
-                toks: &toks,
-                blocked: &blocked,
-                sent,
-                prev,
-                origin,
-                sentence_text: &sentence_text,
-                inherited_cause: Some(&inherited),
-            };
-            let mut n = Vec::new();
-            let r = self.claim_for(&cx, &mut n);
-            if r.is_ok() {
-                results[i] = r;
-                notes[i] = n;
-            }
+            results = run(&blocked, &inherit, &mut notes);
         }
         for ((m, result), notes) in matches.iter().zip(results).zip(notes) {
             if let Ok(cs) = &result {
@@ -352,6 +314,46 @@ impl Extractor {
                 self.record(t, m, sent.text, result, notes);
             }
         }
+    }
+
+    /// The cause a verb cue at match `i` takes from the verb cue it is coordinated with: "X
+    /// raises A and lowers B" gives "lowers" the cause of "raises". Only for a cue whose cause
+    /// comes before it, right after "and", "but" or "yet" (adverbs and "also" between).
+    fn coordinated_cause(
+        &self,
+        matches: &[CueMatch],
+        cue_tokens: &[(usize, usize)],
+        results: &[Result<Vec<Claim>, String>],
+        toks: &[Token],
+        i: usize,
+    ) -> Option<Chosen> {
+        if matches[i].cause != SlotPlace::Before {
+            return None;
+        }
+        let mut k = cue_tokens[i].0;
+        while k > 0 && (self.adverb(&toks[k - 1].lower) || toks[k - 1].lower == "also") {
+            k -= 1;
+        }
+        if k == 0 || !matches!(toks[k - 1].lower.as_str(), "and" | "but" | "yet") {
+            return None;
+        }
+        let j = (0..matches.len())
+            .filter(|&j| {
+                cue_tokens[j].1 < k
+                    && matches[j].cause == SlotPlace::Before
+                    && results[j].as_ref().is_ok_and(|cs| !cs.is_empty())
+            })
+            .max_by_key(|&j| cue_tokens[j].1)?;
+        let first = results[j].as_ref().ok()?.first()?;
+        Some(Chosen {
+            start: first.cause.start,
+            end: first.cause.end,
+            text: first.cause.text.clone(),
+            key_text: first.cause.text.clone(),
+            sign: None,
+            negated: false,
+            pronoun: first.cause.pronoun.clone(),
+        })
     }
 
     /// Before any tagging: an outcome cue whose effect ends right before it ("headaches from")

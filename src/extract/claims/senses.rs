@@ -222,22 +222,25 @@ impl Extractor {
                 ));
             }
         }
-        if let Some(why) = self.tagged_noun_use(toks, ca, cue.left == Some(Role::Cause)) {
-            return Some(why);
-        }
         let before = ca.checked_sub(1).map(|i| toks[i].lower.as_str())?;
-        // "the germ that causes ulcers": a relative pronoun, not a determiner, before a verb.
-        // "This reduced fish numbers.": a demonstrative standing alone is a pronoun.
-        let pronoun = self.bare_demonstrative(toks, ca) == Some(ca - 1);
-        let relative = (self.lexicon.relatives.contains(before) || pronoun)
-            && toks[ca].tag.is_some_and(Tag::is_finite_verb);
-        // "Mulch and compost both reduce weeds": a quantifier floating after its noun phrase.
+        // "Mulch and compost both reduce weeds": a quantifier floating after its noun phrase
+        // stands before a verb.
         let floating = matches!(before, "both" | "all" | "each")
             && ca >= 2
             && toks[ca - 2].word
             && !self.lexicon.determiners.contains(toks[ca - 2].lower.as_str())
             && !self.lexicon.prepositions.contains(toks[ca - 2].lower.as_str())
             && toks[ca - 2].lower != "of";
+        if !floating {
+            if let Some(why) = self.tagged_noun_use(toks, ca, cue.left == Some(Role::Cause)) {
+                return Some(why);
+            }
+        }
+        // "the germ that causes ulcers": a relative pronoun, not a determiner, before a verb.
+        // "This reduced fish numbers.": a demonstrative standing alone is a pronoun.
+        let pronoun = self.bare_demonstrative(toks, ca) == Some(ca - 1);
+        let relative = (self.lexicon.relatives.contains(before) || pronoun)
+            && toks[ca].tag.is_some_and(Tag::is_finite_verb);
         if (self.lexicon.determiners.contains(before) && !relative && !floating)
             || (self.lexicon.prepositions.contains(before) && before != "to")
         {
@@ -389,7 +392,6 @@ impl Extractor {
         let (Some(cause), Some(effect)) = (causes.first(), effects.first()) else {
             return Ok(());
         };
-        let base = spec.id.split(['.', '-']).next().unwrap_or("");
         let cause_head = self.head_of(&cause.text).unwrap_or_default();
         let effect_head = self.head_of(&effect.text).unwrap_or_default();
         if spec.id.starts_with("lead-to") && s.paths.contains(&cause_head) {
@@ -404,10 +406,11 @@ impl Extractor {
             Polarity::Increase | Polarity::Decrease | Polarity::Prevent
         );
         if directional && active && spec.kind == Kind::Causal {
-            if s.handled.contains(&effect_head) {
+            if spec.handling && s.handled.contains(&effect_head) {
                 return Err(format!(
-                    "\"{effect_head}\" is a thing handled: \"{base}\" in its physical sense \
-                     ([senses] handled)"
+                    "\"{effect_head}\" is a thing handled: cue {} in its physical sense \
+                     ([senses] handled)",
+                    spec.id
                 ));
             }
             if spec.polarity == Polarity::Increase && s.reared.contains(&effect_head) {
@@ -463,7 +466,16 @@ impl Extractor {
             .max(b);
         for i in a..b {
             let t = &toks[i];
-            if i == ca || !t.word || inside(i) || !enquiry.contains(t.lower.as_str()) {
+            // A slot word counts when tagged as a finite or base verb: "We examine the causes
+            // of" puts "examine" in the cause slot.
+            let slot_verb = t
+                .tag
+                .is_some_and(|g| matches!(g.as_str(), "VB" | "VBP" | "VBZ" | "VBD"));
+            if i == ca
+                || !t.word
+                || (inside(i) && !slot_verb)
+                || !enquiry.contains(t.lower.as_str())
+            {
                 continue;
             }
             let verbal = t.tag.is_none_or(|g| g.is_verb() || g.is_adjective());
