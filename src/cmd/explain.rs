@@ -74,6 +74,48 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
+/// A cue whose anchor word occurs in the text but whose `reject_before` or `reject_after` rule
+/// fires there ("The sharp increase", "a pay raise"): the cue and the rule that dropped it.
+fn rejected_by_rule(ex: &Extractor, text: &str, hits: &[hearsay::extract::Hit]) -> Option<Explained> {
+    for h in hits {
+        let word: String = text[h.pos..]
+            .split(|c: char| !c.is_alphanumeric() && c != '-')
+            .next()
+            .unwrap_or("")
+            .to_lowercase();
+        let end = h.pos + word.len();
+        for c in &ex.cues.cues {
+            if !c.anchors.iter().any(|a| a.trim_start_matches('-') == word) {
+                continue;
+            }
+            let rules = [
+                ("reject_before", &c.spec.reject_before, &text[..h.pos]),
+                ("reject_after", &c.spec.reject_after, &text[end..]),
+            ];
+            for (name, rule, around) in rules {
+                let Some(rule) = rule else { continue };
+                // The rules compiled when the extractor was built, so this one compiles too.
+                let Ok(re) = regex::Regex::new(rule) else { continue };
+                if re.is_match(around) {
+                    return Some(Explained {
+                        stage: "rejected",
+                        cue: Some(c.spec.id.clone()),
+                        matched: Some(word.clone()),
+                        claim: None,
+                        rejected: Some(format!(
+                            "the cue's {name} rule fired: \"{word}\" is read in another sense \
+                             here (a noun use, a name or a fixed phrase)"
+                        )),
+                        notes: vec![format!("{name} = '{rule}'")],
+                        confidence_features: Vec::new(),
+                    });
+                }
+            }
+        }
+    }
+    None
+}
+
 /// One CSV row per attempt: the stage, the cue, the claim's parts or the reason for none.
 fn write_csv(out: &mut impl Write, rows: &[Explained]) -> Result<()> {
     let mut w = csv::Writer::from_writer(out);
@@ -153,6 +195,9 @@ fn write_tags(out: &mut impl Write, ex: &Extractor, text: &str) -> Result<()> {
 /// `reject_before`/`reject_after` rule, or no slot where the pattern needs one).
 fn no_match(ex: &Extractor, text: &str) -> Explained {
     let hits = ex.cues.hits(text);
+    if let Some(r) = rejected_by_rule(ex, text, &hits) {
+        return r;
+    }
     let (stage, why) = if hits.is_empty() {
         (
             "no-cue",
@@ -175,7 +220,7 @@ fn no_match(ex: &Extractor, text: &str) -> Explained {
             "no-pattern",
             format!(
                 "cue words found ({}), but no cue pattern matched around them: a slot is \
-                 missing, or the cue's reject rule (reject_before/reject_after) fired",
+                 pattern needs is missing",
                 words.join(", ")
             ),
         )

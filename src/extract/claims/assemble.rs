@@ -56,6 +56,7 @@ impl Extractor {
         cross_sentence |= self.resolve_pronouns(cx, &mut cause, &mut effect, notes);
         let cause = cause.ok_or("no cause span found")?;
         let effect = effect.ok_or("no effect span found")?;
+        self.purpose_infinitive(cx)?;
         for c in [&cause, &effect] {
             self.verb_only(cx, c)?;
         }
@@ -426,6 +427,27 @@ impl Extractor {
             cross_sentence,
             attribution: None,
         })
+    }
+
+    /// "initiatives by the sectors to improve arrangements", "steps are taken to improve": a
+    /// verb cue right after "to", with no verb group before it ("is likely to", "has been
+    /// shown to", "helps to"), names an aim, not a stated effect.
+    fn purpose_infinitive(&self, cx: &MatchCtx<'_>) -> Result<(), String> {
+        let spec = &self.cues.cues[cx.m.cue].spec;
+        if cx.m.cause != SlotPlace::Before || spec.clause_spans || noun_first(spec) {
+            return Ok(());
+        }
+        let ca = cx.ca;
+        if ca < 2 || cx.toks[ca - 1].lower != "to" {
+            return Ok(());
+        }
+        let w = cx.toks[ca - 2].lower.as_str();
+        if !cx.toks[ca - 2].word || self.verb_group.contains(w) || self.adverb(w) {
+            return Ok(());
+        }
+        Err(format!(
+            "\"{w} to\" before the cue: an aim (a purpose infinitive), not a stated effect"
+        ))
     }
 
     /// A slot that is one verb or adverb ("taken", "were", "interestingly") names no variable.
