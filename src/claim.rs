@@ -221,7 +221,10 @@ mod tests {
         let json = serde_json::to_string(&c).unwrap();
         assert!(json.starts_with("{\"schema\":2,"), "{json}");
         assert!(!json.contains("page"));
-        assert!(!json.contains("attribution"), "absent attribution is not written");
+        assert!(
+            !json.contains("attribution"),
+            "absent attribution is not written"
+        );
         let back: Claim = serde_json::from_str(&json).unwrap();
         assert_eq!(back, c);
     }

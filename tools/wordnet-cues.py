@@ -253,8 +253,11 @@ def main():
         c, e = EXAMPLES[sign][n % len(EXAMPLES[sign])]
         active = "%s %s %s." % (c[0].upper() + c[1:], third_person(verb), e)
         note = "WordNet 3.0 synset %s (%s); tagged-corpus count %d." % (off, seed, cnt)
+        # A glued compound ("double-stranded", "harm-reduction") is an adjective or a noun.
+        counter = "The %s-related costs were small." % verb.split()[0]
         out.write(CUE.format(id=cid, pattern="CAUSE %s EFFECT" % pattern_verb, sign=sign,
-                             text=active, cause=c, effect=e, note=note, reject_before=REJECT_BEFORE))
+                             text=active, cause=c, effect=e, note=note, counter=counter,
+                             reject_before=REJECT_BEFORE))
     for n, (verb, sign, seed, off, cnt) in enumerate(keep):
         pattern_verb = " ".join([verb.split()[0] + "~"] + verb.split()[1:])
         cid = verb.replace(" ", "-") + "-by"
@@ -328,10 +331,11 @@ pattern = "{pattern}"
 kind = "causal"
 polarity = "{sign}"
 reject_before = '{reject_before}'
-reject_after = '(?i)^\\s*by\\b'
+reject_after = '(?i)^(?:\\s*by\\b|-)'
 examples = [
   {{ text = "{text}", cause = "{cause}", effect = "{effect}", polarity = "{sign}" }},
 ]
+counter_examples = ["{counter}"]
 note = "{note}"
 """
 

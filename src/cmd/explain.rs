@@ -76,7 +76,11 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
 
 /// A cue whose anchor word occurs in the text but whose `reject_before` or `reject_after` rule
 /// fires there ("The sharp increase", "a pay raise"): the cue and the rule that dropped it.
-fn rejected_by_rule(ex: &Extractor, text: &str, hits: &[hearsay::extract::Hit]) -> Option<Explained> {
+fn rejected_by_rule(
+    ex: &Extractor,
+    text: &str,
+    hits: &[hearsay::extract::Hit],
+) -> Option<Explained> {
     for h in hits {
         let word: String = text[h.pos..]
             .split(|c: char| !c.is_alphanumeric() && c != '-')
@@ -95,7 +99,9 @@ fn rejected_by_rule(ex: &Extractor, text: &str, hits: &[hearsay::extract::Hit]) 
             for (name, rule, around) in rules {
                 let Some(rule) = rule else { continue };
                 // The rules compiled when the extractor was built, so this one compiles too.
-                let Ok(re) = regex::Regex::new(rule) else { continue };
+                let Ok(re) = regex::Regex::new(rule) else {
+                    continue;
+                };
                 if re.is_match(around) {
                     return Some(Explained {
                         stage: "rejected",
@@ -120,8 +126,17 @@ fn rejected_by_rule(ex: &Extractor, text: &str, hits: &[hearsay::extract::Hit]) 
 fn write_csv(out: &mut impl Write, rows: &[Explained]) -> Result<()> {
     let mut w = csv::Writer::from_writer(out);
     w.write_record([
-        "stage", "cue", "matched", "cause", "effect", "kind", "polarity", "modality",
-        "attribution", "confidence", "reason",
+        "stage",
+        "cue",
+        "matched",
+        "cause",
+        "effect",
+        "kind",
+        "polarity",
+        "modality",
+        "attribution",
+        "confidence",
+        "reason",
     ])?;
     for r in rows {
         let c = r.claim.as_ref();
@@ -135,7 +150,8 @@ fn write_csv(out: &mut impl Write, rows: &[Explained]) -> Result<()> {
             c.map(|c| c.polarity.to_string()).unwrap_or_default(),
             c.map(|c| c.modality.to_string()).unwrap_or_default(),
             c.and_then(|c| c.attribution.clone()).unwrap_or_default(),
-            c.map(|c| format!("{:.3}", c.confidence)).unwrap_or_default(),
+            c.map(|c| format!("{:.3}", c.confidence))
+                .unwrap_or_default(),
             r.rejected.clone().unwrap_or_default(),
         ])?;
     }

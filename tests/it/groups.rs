@@ -103,7 +103,9 @@ fn judge(ex: &Extractor, item: &Item, found: &[Claim]) -> Result<(), String> {
     }
     for e in &item.claims {
         let (ck, ek) = (ex.normalizer.key(&e.cause), ex.normalizer.key(&e.effect));
-        let hit = found.iter().find(|c| c.cause.key == ck && c.effect.key == ek);
+        let hit = found
+            .iter()
+            .find(|c| c.cause.key == ck && c.effect.key == ek);
         let Some(c) = hit else {
             return Err(format!("no claim {ck} > {ek}: [{}]", all()));
         };

@@ -86,8 +86,8 @@ impl Extractor {
         self.other_sense(spec, m, &causes, &effects)?;
         // Only a causal noun that opens its pattern ("the effects of X on Y", "X is a cause of
         // Y") can be a topic of enquiry; "Y from X" and the passives are statements.
-        let opens_with_noun = noun_first(spec)
-            || matches!(spec.tokens.first(), Some(PatternToken::Word { .. }));
+        let opens_with_noun =
+            noun_first(spec) || matches!(spec.tokens.first(), Some(PatternToken::Word { .. }));
         if spec.family == "nominal" && opens_with_noun {
             let slots: Vec<&Chosen> = causes.iter().chain(&effects).collect();
             self.enquiry_talk(cx.toks, cx.sent, cx.ca, &slots)?;
@@ -462,7 +462,8 @@ impl Extractor {
             .collect();
         // The tagger is unsure on short clauses ("Drought limits grazing"), so a tag alone
         // decides only for past participles with a participle's ending.
-        let whole = |t: &Token| cx.sent.offset + t.start == c.start && cx.sent.offset + t.end == c.end;
+        let whole =
+            |t: &Token| cx.sent.offset + t.start == c.start && cx.sent.offset + t.end == c.end;
         let fragment = matches!(words.as_slice(), [t] if whole(t) && {
             let w = t.lower.as_str();
             self.lexicon.auxiliaries.contains(w)

@@ -15,7 +15,12 @@ const EMPTY_SUBJECTS: &[&str] = &["it", "this", "that", "there", "which", "what"
 
 impl Extractor {
     /// The source of a claim whose first slot in the sentence starts at token `first`.
-    pub(super) fn attribution(&self, toks: &[Token], first: usize, sentence: &str) -> Option<String> {
+    pub(super) fn attribution(
+        &self,
+        toks: &[Token],
+        first: usize,
+        sentence: &str,
+    ) -> Option<String> {
         self.according_to(toks, first, sentence)
             .or_else(|| self.reported_by(toks, first, sentence))
     }
@@ -41,7 +46,10 @@ impl Extractor {
         let mut r = first;
         while r > 0
             && (matches!(toks[r - 1].lower.as_str(), "that" | "," | ":")
-                || self.lexicon.determiners.contains(toks[r - 1].lower.as_str()))
+                || self
+                    .lexicon
+                    .determiners
+                    .contains(toks[r - 1].lower.as_str()))
         {
             r -= 1;
         }
@@ -56,7 +64,10 @@ impl Extractor {
         let mut end = verb;
         while end > 0
             && toks[end - 1].word
-            && (self.lexicon.auxiliaries.contains(toks[end - 1].lower.as_str())
+            && (self
+                .lexicon
+                .auxiliaries
+                .contains(toks[end - 1].lower.as_str())
                 || self.adverb(&toks[end - 1].lower)
                 || matches!(toks[end - 1].lower.as_str(), "also" | "now" | "recently"))
         {
@@ -67,10 +78,22 @@ impl Extractor {
             && end - from < MAX_SOURCE_WORDS
             && toks[from - 1].word
             && !self.clause_boundary(&toks[from - 1])
-            && !self.lexicon.relatives.contains(toks[from - 1].lower.as_str())
-            && !self.lexicon.auxiliaries.contains(toks[from - 1].lower.as_str())
-            && !self.lexicon.reporting_verbs.contains(toks[from - 1].lower.as_str())
-            && !(self.lexicon.prepositions.contains(toks[from - 1].lower.as_str())
+            && !self
+                .lexicon
+                .relatives
+                .contains(toks[from - 1].lower.as_str())
+            && !self
+                .lexicon
+                .auxiliaries
+                .contains(toks[from - 1].lower.as_str())
+            && !self
+                .lexicon
+                .reporting_verbs
+                .contains(toks[from - 1].lower.as_str())
+            && !(self
+                .lexicon
+                .prepositions
+                .contains(toks[from - 1].lower.as_str())
                 && toks[from - 1].lower != "of")
             && !toks[from - 1].tag.is_some_and(Tag::is_finite_verb)
         {
@@ -81,7 +104,13 @@ impl Extractor {
 
     /// The words `[from, to)` as written, when they name a source: some word that is not a
     /// determiner, and not a bare "it" or "this".
-    fn source_text(&self, toks: &[Token], from: usize, to: usize, sentence: &str) -> Option<String> {
+    fn source_text(
+        &self,
+        toks: &[Token],
+        from: usize,
+        to: usize,
+        sentence: &str,
+    ) -> Option<String> {
         if from >= to || to > toks.len() {
             return None;
         }

@@ -61,7 +61,11 @@ impl Extractor {
         if sentence.trim_end().ends_with('?') {
             // "Why does grazing deplete the soil?" takes its claim for granted and asks only
             // for the reason: the claim counts as stated (patterns/README.md, "Questions").
-            if toks.iter().find(|t| t.word).is_some_and(|t| t.lower == "why") {
+            if toks
+                .iter()
+                .find(|t| t.word)
+                .is_some_and(|t| t.lower == "why")
+            {
                 notes.push("a why-question presupposes its claim: read as stated".into());
             } else {
                 notes.push("the sentence is a question".into());
@@ -124,7 +128,12 @@ impl Extractor {
     /// "Because the rains failed, grain prices rose": an effect clause of a connective that ends
     /// in an intransitive verb of change (`increase_verbs`/`decrease_verbs` in lexicon.toml,
     /// tagged as a verb) gives the effect its sign; the effect is the clause's subject.
-    pub(super) fn sign_of_clause(&self, cx: &MatchCtx<'_>, e: &mut Chosen, notes: &mut Vec<String>) {
+    pub(super) fn sign_of_clause(
+        &self,
+        cx: &MatchCtx<'_>,
+        e: &mut Chosen,
+        notes: &mut Vec<String>,
+    ) {
         let (toks, sent) = (cx.toks, cx.sent);
         if e.start < sent.offset || e.sign.is_some() {
             return;
@@ -135,7 +144,7 @@ impl Extractor {
             b -= 1;
         }
         let ends_with = |p: &[String]| {
-            b >= a + p.len() + 1
+            b > a + p.len()
                 && p.iter().zip(&toks[b - p.len()..b]).all(|(w, t)| *w == t.lower)
                 // "tax increases" is a noun: an -s form must be tagged as a verb.
                 && (toks[b - p.len()].tag.is_none_or(|g| g.is_verb())
@@ -145,14 +154,18 @@ impl Extractor {
             (&self.lexicon.increase_verbs, Polarity::Increase),
             (&self.lexicon.decrease_verbs, Polarity::Decrease),
         ];
-        let Some((n, sign)) = lists.iter().find_map(|(list, sign)| {
-            list.iter().find(|p| ends_with(p)).map(|p| (p.len(), *sign))
-        }) else {
+        let Some((n, sign)) = lists
+            .iter()
+            .find_map(|(list, sign)| list.iter().find(|p| ends_with(p)).map(|p| (p.len(), *sign)))
+        else {
             return;
         };
         let mut end = b - n;
         while end > a
-            && (self.lexicon.auxiliaries.contains(toks[end - 1].lower.as_str())
+            && (self
+                .lexicon
+                .auxiliaries
+                .contains(toks[end - 1].lower.as_str())
                 || self.adverb(&toks[end - 1].lower))
         {
             end -= 1;

@@ -3,10 +3,10 @@
 //! effect names no outcome.
 
 use super::{Chosen, Extractor, SentenceRef, Span};
+use crate::claim::{Kind, Polarity};
 use crate::extract::cues::{CueMatch, SlotPlace};
 use crate::extract::tagger::Tag;
 use crate::extract::tokens::{tokenize, Token};
-use crate::claim::{Kind, Polarity};
 use crate::patterns::{CueSpec, Role};
 
 /// Words naming a quantity of what follows "of": the head of "most of the noise" is "noise".
@@ -228,8 +228,14 @@ impl Extractor {
         let floating = matches!(before, "both" | "all" | "each")
             && ca >= 2
             && toks[ca - 2].word
-            && !self.lexicon.determiners.contains(toks[ca - 2].lower.as_str())
-            && !self.lexicon.prepositions.contains(toks[ca - 2].lower.as_str())
+            && !self
+                .lexicon
+                .determiners
+                .contains(toks[ca - 2].lower.as_str())
+            && !self
+                .lexicon
+                .prepositions
+                .contains(toks[ca - 2].lower.as_str())
             && toks[ca - 2].lower != "of";
         if !floating {
             if let Some(why) = self.tagged_noun_use(toks, ca, cue.left == Some(Role::Cause)) {
@@ -350,13 +356,73 @@ impl Extractor {
 
 /// Number words: with units, a span of only these names an amount, not a variable.
 const NUMBER_WORDS: &[&str] = &[
-    "one", "two", "three", "four", "five", "six", "seven", "eight", "nine", "ten", "eleven",
-    "twelve", "twenty", "thirty", "forty", "fifty", "sixty", "seventy", "eighty", "ninety",
-    "hundred", "hundreds", "thousand", "thousands", "million", "millions", "billion", "dozen",
-    "dozens", "half", "twice", "a", "an", "the", "of", "per", "and", "or", "to", "about", "some",
-    "nearly", "almost", "over", "under", "around", "roughly", "approximately", "january",
-    "february", "march", "april", "may", "june", "july", "august", "september", "october",
-    "november", "december", "spring", "summer", "autumn", "winter", "early", "late", "mid",
+    "one",
+    "two",
+    "three",
+    "four",
+    "five",
+    "six",
+    "seven",
+    "eight",
+    "nine",
+    "ten",
+    "eleven",
+    "twelve",
+    "twenty",
+    "thirty",
+    "forty",
+    "fifty",
+    "sixty",
+    "seventy",
+    "eighty",
+    "ninety",
+    "hundred",
+    "hundreds",
+    "thousand",
+    "thousands",
+    "million",
+    "millions",
+    "billion",
+    "dozen",
+    "dozens",
+    "half",
+    "twice",
+    "a",
+    "an",
+    "the",
+    "of",
+    "per",
+    "and",
+    "or",
+    "to",
+    "about",
+    "some",
+    "nearly",
+    "almost",
+    "over",
+    "under",
+    "around",
+    "roughly",
+    "approximately",
+    "january",
+    "february",
+    "march",
+    "april",
+    "may",
+    "june",
+    "july",
+    "august",
+    "september",
+    "october",
+    "november",
+    "december",
+    "spring",
+    "summer",
+    "autumn",
+    "winter",
+    "early",
+    "late",
+    "mid",
 ];
 
 impl Extractor {
@@ -427,7 +493,11 @@ impl Extractor {
             ));
         }
         if spec.id.starts_with("responsible") {
-            let who = cause.pronoun.as_deref().unwrap_or(&cause_head).to_lowercase();
+            let who = cause
+                .pronoun
+                .as_deref()
+                .unwrap_or(&cause_head)
+                .to_lowercase();
             if s.persons.contains(&who) || s.persons.contains(&cause_head) {
                 return Err(format!(
                     "\"{cause_head}\" is a person or role: \"responsible for\" names a duty \
@@ -464,8 +534,7 @@ impl Extractor {
             .find(|&k| Self::clause_punct(&toks[k]))
             .unwrap_or(toks.len())
             .max(b);
-        for i in a..b {
-            let t = &toks[i];
+        for (i, t) in toks.iter().enumerate().take(b).skip(a) {
             // A slot word counts when tagged as a finite or base verb: "We examine the causes
             // of" puts "examine" in the cause slot.
             let slot_verb = t
