@@ -434,7 +434,13 @@ impl Extractor {
     /// shown to", "helps to"), names an aim, not a stated effect.
     fn purpose_infinitive(&self, cx: &MatchCtx<'_>) -> Result<(), String> {
         let spec = &self.cues.cues[cx.m.cue].spec;
-        if cx.m.cause != SlotPlace::Before || spec.clause_spans || noun_first(spec) {
+        // "criteria to prevent cost to the taxpayer": a measure named with what it prevents is
+        // read as a claim that it does (BECAUSE annotates these as consequences).
+        if cx.m.cause != SlotPlace::Before
+            || spec.clause_spans
+            || noun_first(spec)
+            || spec.polarity == Polarity::Prevent
+        {
             return Ok(());
         }
         let ca = cx.ca;

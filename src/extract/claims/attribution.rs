@@ -35,7 +35,7 @@ impl Extractor {
             return None;
         }
         let from = at + 2;
-        let to = (from..first).find(|&i| !toks[i].word)?;
+        let to = (from..first).find(|&i| Self::clause_punct(&toks[i]))?;
         self.source_text(toks, from, to, sentence)
     }
 
