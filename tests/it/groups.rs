@@ -128,19 +128,19 @@ fn judge(ex: &Extractor, item: &Item, found: &[Claim]) -> Result<(), String> {
     Ok(())
 }
 
-/// Each group's least share of items right. Groups that did not reach 0.8 keep the floor they
-/// measured, so that they cannot get worse; the overall share must be 0.9 or more.
+/// Each group's least share of items right: 0.9 in every group (the lowest measured, groups 4
+/// and 8, are at 0.90 and 0.91); the overall share must be 0.9 or more as well.
 const FLOORS: &[(&str, f64)] = &[
-    ("01-directional-verbs", 0.8),
-    ("02-hedged", 0.8),
-    ("03-questions", 0.8),
-    ("04-coordination", 0.8),
-    ("05-attribution", 0.8),
-    ("06-signed-connectives", 0.8),
-    ("07-other-senses", 0.8),
-    ("08-causal-questions", 0.8),
-    ("09-slots", 0.8),
-    ("10-no-effect", 0.8),
+    ("01-directional-verbs", 0.9),
+    ("02-hedged", 0.9),
+    ("03-questions", 0.9),
+    ("04-coordination", 0.9),
+    ("05-attribution", 0.9),
+    ("06-signed-connectives", 0.9),
+    ("07-other-senses", 0.9),
+    ("08-causal-questions", 0.9),
+    ("09-slots", 0.9),
+    ("10-no-effect", 0.9),
 ];
 
 #[test]
