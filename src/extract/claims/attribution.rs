@@ -115,8 +115,15 @@ impl Extractor {
             return None;
         }
         let words = &toks[from..to];
-        if words.len() == 1 && EMPTY_SUBJECTS.contains(&words[0].lower.as_str()) {
-            return None;
+        if words.len() == 1 {
+            let w = words[0].lower.as_str();
+            // "..., not ... found that": a negator or a lone auxiliary is no source.
+            if EMPTY_SUBJECTS.contains(&w)
+                || self.single_negators.contains(w)
+                || self.lexicon.auxiliaries.contains(w)
+            {
+                return None;
+            }
         }
         if words
             .iter()

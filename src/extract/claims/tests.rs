@@ -438,3 +438,28 @@ fn capitalised_cue_after_a_comma_is_a_name_on_elife_text() {
         "{glued_claims} of {glued}"
     );
 }
+
+/// Who said it: the subject of a reporting verb, or the phrase after "according to"; nothing
+/// for a negator, a bare "it", or a sentence that names no one.
+#[test]
+fn attribution_keeps_the_source_as_written() {
+    let e = ex();
+    let by = |text: &str| claims(&e, text).first().and_then(|c| c.attribution.clone());
+    assert_eq!(
+        by("Officials said the new levy triggers flooding.").as_deref(),
+        Some("Officials")
+    );
+    assert_eq!(
+        by("The survey found that commuting reduces sleep.").as_deref(),
+        Some("The survey")
+    );
+    assert_eq!(
+        by("According to the farmers' union, the tariff damaged wool exports.").as_deref(),
+        Some("the farmers' union")
+    );
+    assert_eq!(
+        by("It was reported that the dam raised the lake level."),
+        None
+    );
+    assert_eq!(by("Heavy rain causes flooding."), None);
+}
