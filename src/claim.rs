@@ -148,6 +148,11 @@ pub struct Claim {
     /// True when a slot was taken from the previous sentence (a sentence-opening connective).
     #[serde(default, skip_serializing_if = "std::ops::Not::not")]
     pub cross_sentence: bool,
+    /// Who the sentence says made the statement, as written ("officials", "the survey"): the
+    /// subject of a reporting verb whose clause holds the claim, or the phrase after "according
+    /// to". Absent when the sentence names no one, so records without it are unchanged.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub attribution: Option<String>,
     /// How likely the spans agree with a human reading, in [0, 1] (schema 2; see
     /// `crate::extract::confidence`). It rates the extraction, not whether the causation is real.
     pub confidence: f64,
@@ -210,11 +215,16 @@ mod tests {
                 record: None,
             },
             cross_sentence: false,
+            attribution: None,
             confidence: 0.5,
         };
         let json = serde_json::to_string(&c).unwrap();
         assert!(json.starts_with("{\"schema\":2,"), "{json}");
         assert!(!json.contains("page"));
+        assert!(
+            !json.contains("attribution"),
+            "absent attribution is not written"
+        );
         let back: Claim = serde_json::from_str(&json).unwrap();
         assert_eq!(back, c);
     }

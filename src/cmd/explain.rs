@@ -28,8 +28,13 @@ pub struct ExplainArgs {
 
 #[derive(Serialize)]
 struct Explained {
-    cue: String,
-    matched: String,
+    /// Where the sentence stopped or ended: `claim` (a claim was made), `rejected` (a cue
+    /// matched and a rule dropped it), `no-pattern` (cue words, but no pattern around them),
+    /// `no-cue` (no cue word at all).
+    stage: &'static str,
+    /// The cue entry, absent for `no-cue` and `no-pattern`.
+    cue: Option<String>,
+    matched: Option<String>,
     claim: Option<hearsay::Claim>,
     rejected: Option<String>,
     notes: Vec<String>,
@@ -48,21 +53,112 @@ pub fn run(g: &Global, a: &ExplainArgs) -> Result<ExitCode> {
     if a.tags {
         write_tags(&mut out, &ex, &a.text)?;
     }
-    if g.format() == Format::Json {
-        for r in &rows {
-            serde_json::to_writer(&mut out, r)?;
-            out.write_all(b"\n")?;
+    // A text with no cue attempt still gets an answer, in every format: why nothing matched.
+    let rows = if rows.is_empty() {
+        vec![no_match(&ex, &a.text)]
+    } else {
+        rows
+    };
+    match g.format() {
+        Format::Json => {
+            for r in &rows {
+                serde_json::to_writer(&mut out, r)?;
+                out.write_all(b"\n")?;
+            }
         }
-        return Ok(ExitCode::SUCCESS);
-    }
-    if rows.is_empty() {
-        write_no_match(&mut out, &ex, &a.text)?;
-        return Ok(ExitCode::SUCCESS);
-    }
-    for r in &rows {
-        write_row(&mut out, &ex, r)?;
+        Format::Csv => write_csv(&mut out, &rows)?,
+        Format::Table => {
+            for r in &rows {
+                write_row(&mut out, &ex, r)?;
+            }
+        }
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// A cue whose anchor word occurs in the text but whose `reject_before` or `reject_after` rule
+/// fires there ("The sharp increase", "a pay raise"): the cue and the rule that dropped it.
+fn rejected_by_rule(
+    ex: &Extractor,
+    text: &str,
+    hits: &[hearsay::extract::Hit],
+) -> Option<Explained> {
+    for h in hits {
+        let word: String = text[h.pos..]
+            .split(|c: char| !c.is_alphanumeric() && c != '-')
+            .next()
+            .unwrap_or("")
+            .to_lowercase();
+        let end = h.pos + word.len();
+        for c in &ex.cues.cues {
+            if !c.anchors.iter().any(|a| a.trim_start_matches('-') == word) {
+                continue;
+            }
+            let rules = [
+                ("reject_before", &c.spec.reject_before, &text[..h.pos]),
+                ("reject_after", &c.spec.reject_after, &text[end..]),
+            ];
+            for (name, rule, around) in rules {
+                let Some(rule) = rule else { continue };
+                // The rules compiled when the extractor was built, so this one compiles too.
+                let Ok(re) = regex::Regex::new(rule) else {
+                    continue;
+                };
+                if re.is_match(around) {
+                    return Some(Explained {
+                        stage: "rejected",
+                        cue: Some(c.spec.id.clone()),
+                        matched: Some(word.clone()),
+                        claim: None,
+                        rejected: Some(format!(
+                            "the cue's {name} rule fired: \"{word}\" is read in another sense \
+                             here (a noun use, a name or a fixed phrase)"
+                        )),
+                        notes: vec![format!("{name} = '{rule}'")],
+                        confidence_features: Vec::new(),
+                    });
+                }
+            }
+        }
+    }
+    None
+}
+
+/// One CSV row per attempt: the stage, the cue, the claim's parts or the reason for none.
+fn write_csv(out: &mut impl Write, rows: &[Explained]) -> Result<()> {
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record([
+        "stage",
+        "cue",
+        "matched",
+        "cause",
+        "effect",
+        "kind",
+        "polarity",
+        "modality",
+        "attribution",
+        "confidence",
+        "reason",
+    ])?;
+    for r in rows {
+        let c = r.claim.as_ref();
+        w.write_record([
+            r.stage.to_string(),
+            r.cue.clone().unwrap_or_default(),
+            r.matched.clone().unwrap_or_default(),
+            c.map(|c| c.cause.text.clone()).unwrap_or_default(),
+            c.map(|c| c.effect.text.clone()).unwrap_or_default(),
+            c.map(|c| c.kind.to_string()).unwrap_or_default(),
+            c.map(|c| c.polarity.to_string()).unwrap_or_default(),
+            c.map(|c| c.modality.to_string()).unwrap_or_default(),
+            c.and_then(|c| c.attribution.clone()).unwrap_or_default(),
+            c.map(|c| format!("{:.3}", c.confidence))
+                .unwrap_or_default(),
+            r.rejected.clone().unwrap_or_default(),
+        ])?;
+    }
+    w.flush()?;
+    Ok(())
 }
 
 /// Every cue attempt of the text, each claim scored as the pipeline scores it.
@@ -89,8 +185,9 @@ fn explained(ex: &Extractor, text: &str) -> Vec<Explained> {
                 confidence_features = why;
             }
             Explained {
-                cue: t.cue,
-                matched: t.matched,
+                stage: if claim.is_some() { "claim" } else { "rejected" },
+                cue: Some(t.cue),
+                matched: Some(t.matched),
                 claim,
                 rejected,
                 notes: t.notes,
@@ -118,15 +215,21 @@ fn write_tags(out: &mut impl Write, ex: &Extractor, text: &str) -> Result<()> {
     Ok(())
 }
 
-/// Why no cue matched: no cue word at all, or cue words no pattern matched around.
-fn write_no_match(out: &mut impl Write, ex: &Extractor, text: &str) -> Result<()> {
+/// Why no cue matched: no cue word at all, or cue words no pattern matched around (a cue's
+/// `reject_before`/`reject_after` rule, or no slot where the pattern needs one).
+fn no_match(ex: &Extractor, text: &str) -> Explained {
     let hits = ex.cues.hits(text);
-    if hits.is_empty() {
-        writeln!(
-            out,
-            "no cue word found: none of the {} cue literals occurs in the text",
-            ex.cues.literals().len()
-        )?;
+    if let Some(r) = rejected_by_rule(ex, text, &hits) {
+        return r;
+    }
+    let (stage, why) = if hits.is_empty() {
+        (
+            "no-cue",
+            format!(
+                "no cue word found: none of the {} cue literals occurs in the text",
+                ex.cues.literals().len()
+            ),
+        )
     } else {
         let words: Vec<&str> = hits
             .iter()
@@ -137,18 +240,35 @@ fn write_no_match(out: &mut impl Write, ex: &Extractor, text: &str) -> Result<()
                     .unwrap_or("")
             })
             .collect();
-        writeln!(
-            out,
-            "cue words found ({}), but no cue pattern matched around them",
-            escape(&words.join(", "))
-        )?;
+        (
+            "no-pattern",
+            format!(
+                "cue words found ({}), but no cue pattern matched around them: a slot is \
+                 pattern needs is missing",
+                words.join(", ")
+            ),
+        )
+    };
+    Explained {
+        stage,
+        cue: None,
+        matched: None,
+        claim: None,
+        rejected: Some(why),
+        notes: Vec::new(),
+        confidence_features: Vec::new(),
     }
-    Ok(())
 }
 
 /// One cue attempt as a table: the claim and its confidence, or why there is none; the notes.
 fn write_row(out: &mut impl Write, ex: &Extractor, r: &Explained) -> Result<()> {
-    writeln!(out, "cue {} matched \"{}\"", r.cue, escape(&r.matched))?;
+    match (&r.cue, &r.matched) {
+        (Some(cue), Some(m)) => writeln!(out, "cue {cue} matched \"{}\"", escape(m))?,
+        _ => {
+            writeln!(out, "{}", escape(r.rejected.as_deref().unwrap_or_default()))?;
+            return Ok(());
+        }
+    }
     match (&r.claim, &r.rejected) {
         (Some(c), _) => {
             writeln!(
@@ -168,6 +288,9 @@ fn write_row(out: &mut impl Write, ex: &Extractor, r: &Explained) -> Result<()> 
                 "  kind:     {}\n  polarity: {}\n  modality: {}",
                 c.kind, c.polarity, c.modality
             )?;
+            if let Some(by) = &c.attribution {
+                writeln!(out, "  said by:  \"{}\"", escape(by))?;
+            }
             if c.cross_sentence {
                 writeln!(out, "  (a slot was taken from the previous sentence)")?;
             }

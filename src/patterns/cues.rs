@@ -63,6 +63,12 @@ pub struct CueSpec {
     /// The connective also has a time sense ("since"): a perfect-tense effect clause beside a
     /// past-tense or verbless cause clause reads as time, not reason, and gives no claim.
     pub time_sense: bool,
+    /// A denied claim of this cue states that there is no effect ("does not affect Y"): its
+    /// polarity becomes `none`, as for "has no effect on" (the no-effect convention).
+    pub negated_none: bool,
+    /// The verb also names moving or handling a thing ("raised the flag", "cut the rope"): an
+    /// object whose head is in `[senses] handled` (lexicon.toml) gives no claim.
+    pub handling: bool,
     pub examples: Vec<Example>,
     pub counter_examples: Vec<String>,
     /// Where the entry was defined, for messages.
@@ -91,6 +97,10 @@ struct RawCue {
     outcome_effect: bool,
     #[serde(default)]
     time_sense: bool,
+    #[serde(default)]
+    negated_none: bool,
+    #[serde(default)]
+    handling: bool,
     #[serde(default)]
     examples: Vec<RawExample>,
     #[serde(default)]
@@ -193,6 +203,8 @@ pub fn parse_cue_file(
             reject_before: raw.reject_before,
             outcome_effect: raw.outcome_effect,
             time_sense: raw.time_sense,
+            negated_none: raw.negated_none,
+            handling: raw.handling,
             examples,
             counter_examples: raw.counter_examples,
             origin: (path.to_path_buf(), line),

@@ -43,6 +43,33 @@ pub struct Lexicon {
     /// Names of things that contain a glued cue ("cyclin-dependent kinase"), lower-cased, as
     /// words: inside them the glued cue states nothing.
     pub fixed_terms: Vec<Vec<String>>,
+    /// Intransitive verbs of change that end an effect clause ("grain prices rose"), as phrases.
+    pub increase_verbs: Vec<Vec<String>>,
+    pub decrease_verbs: Vec<Vec<String>>,
+    /// `[senses]`: the words that show a cue word in another sense (see lexicon.toml).
+    pub senses: Senses,
+}
+
+/// `[senses]` in lexicon.toml: word lists for the rules that read a cue word in another sense
+/// (a path, handling, a role, a piece of work) or a sentence that only talks about a causal
+/// question.
+#[derive(Debug, Clone, Default)]
+pub struct Senses {
+    /// Ways and places a "lead to" may run along: "the trail leads to the ridge".
+    pub paths: WordSet,
+    /// Things lifted, lowered, cut or blocked by hand: "raised the flag", "cut the rope".
+    pub handled: WordSet,
+    /// Animals and crops one raises: "raised sheep".
+    pub reared: WordSet,
+    /// Collective works one contributes to: "contributed to the anthology".
+    pub works: WordSet,
+    /// People and roles: "the caretaker is responsible for the keys".
+    pub persons: WordSet,
+    /// Words of research and enquiry that make a causal noun phrase a topic, not a claim:
+    /// "we examine the causes of", "the effect ... was not measured".
+    pub enquiry: WordSet,
+    /// Units, and words for dates and amounts, that name no variable alone ("°C", "mg").
+    pub units: WordSet,
 }
 
 #[derive(Deserialize)]
@@ -57,6 +84,26 @@ struct RawLexicon {
     outcomes: RawOutcomes,
     #[serde(default)]
     terms: RawTerms,
+    #[serde(default)]
+    senses: RawSenses,
+}
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct RawSenses {
+    #[serde(default)]
+    paths: Vec<String>,
+    #[serde(default)]
+    handled: Vec<String>,
+    #[serde(default)]
+    reared: Vec<String>,
+    #[serde(default)]
+    works: Vec<String>,
+    #[serde(default)]
+    persons: Vec<String>,
+    #[serde(default)]
+    enquiry: Vec<String>,
+    #[serde(default)]
+    units: Vec<String>,
 }
 #[derive(Deserialize, Default)]
 #[serde(deny_unknown_fields)]
@@ -103,6 +150,10 @@ struct RawSign {
     increase_nouns: Vec<String>,
     decrease_nouns: Vec<String>,
     change_links: Vec<String>,
+    #[serde(default)]
+    increase_verbs: Vec<String>,
+    #[serde(default)]
+    decrease_verbs: Vec<String>,
 }
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -180,10 +231,31 @@ pub fn parse_lexicon(path: &Path, text: &str) -> Result<Lexicon, InputError> {
             })
             .collect(),
         fixed_terms: phrases(raw.terms.fixed),
+        increase_verbs: phrases(raw.sign.increase_verbs),
+        decrease_verbs: phrases(raw.sign.decrease_verbs),
+        senses: Senses {
+            paths: with_plurals(&raw.senses.paths),
+            handled: with_plurals(&raw.senses.handled),
+            reared: with_plurals(&raw.senses.reared),
+            works: with_plurals(&raw.senses.works),
+            persons: with_plurals(&raw.senses.persons),
+            enquiry: set(raw.senses.enquiry),
+            units: set(raw.senses.units),
+        },
     })
 }
 
 /// The regular English plural of a noun ("injury" → "injuries", "ash" → "ashes").
+/// The nouns of a list with their plurals, lower-cased.
+fn with_plurals(v: &[String]) -> WordSet {
+    v.iter()
+        .flat_map(|n| {
+            let n = n.to_lowercase();
+            [plural(&n), n]
+        })
+        .collect()
+}
+
 fn plural(n: &str) -> String {
     let b = n.as_bytes();
     match b {

@@ -21,7 +21,7 @@ mod set;
 mod tests;
 
 pub use cues::{CueSpec, Example, PatternToken, Role};
-pub use lexicon::{load_aliases, Lexicon, WordSet};
+pub use lexicon::{load_aliases, Lexicon, Senses, WordSet};
 pub use set::{PatternSet, BUILTIN_CONFIDENCE};
 
 use crate::error::InputError;

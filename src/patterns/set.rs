@@ -33,6 +33,10 @@ pub const BUILTIN_CUE_FILES: &[(&str, &str)] = &[
         "cues/no-effect.toml",
         include_str!("../../patterns/cues/no-effect.toml"),
     ),
+    (
+        "cues/wordnet-verbs.toml",
+        include_str!("../../patterns/cues/wordnet-verbs.toml"),
+    ),
 ];
 const BUILTIN_LEXICON: &str = include_str!("../../patterns/lexicon.toml");
 const BUILTIN_IRREGULAR: &str = include_str!("../../patterns/irregular-verbs.tsv");

@@ -10,6 +10,7 @@ mod external;
 mod first_use;
 mod graph;
 mod graph_analyses;
+mod groups;
 mod hostile;
 mod layering;
 mod merge;

@@ -28,9 +28,9 @@ fn because_congressional_hearings_precision_recall_and_sign() {
         r["gold_claims"], 281,
         "events with both a Cause and an Effect"
     );
-    assert!(f(&r["precision"]) >= 0.18, "{r}");
+    assert!(f(&r["precision"]) >= 0.21, "{r}");
     assert!(f(&r["recall"]) >= 0.11, "{r}");
-    assert!(f(&r["f1"]) >= 0.138, "{r}");
+    assert!(f(&r["f1"]) >= 0.145, "{r}");
     assert!(f(&r["sign_accuracy"]["accuracy"]) >= 0.9, "{r}");
     assert!(r["sign_accuracy"]["labelled"].as_u64().unwrap() >= 32);
 }
@@ -54,8 +54,8 @@ fn causal_news_corpus_subtask2_claim_level() {
     );
     assert_eq!(r["gold_claims"], 2257, "one gold pair per CSV row");
     assert_eq!(r["documents"], 1624, "rows grouped by sentence");
-    assert!(f(&r["precision"]) >= 0.21, "{r}");
-    assert!(f(&r["recall"]) >= 0.030, "{r}");
+    assert!(f(&r["precision"]) >= 0.25, "{r}");
+    assert!(f(&r["recall"]) >= 0.035, "{r}");
 }
 
 /// Source: Causal News Corpus V2, training split, subtask 1 (sentence causal or not), CC0;

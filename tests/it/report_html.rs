@@ -8,9 +8,11 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 
 /// Causal edges and variables of the demo corpus's graph (invented data; every causal edge fits
-/// in the default 40-edge picture).
-const DEMO_EDGES: usize = 15;
-const DEMO_NODES: usize = 18;
+/// in the default 40-edge picture). "detection limit 0.01 mg" is no longer read as a claim (an
+/// amount is no variable), so "detect" and "0.01 mg" are not nodes; "oxygen levels fell" after
+/// "because" is now a decrease of "oxygen levels", a node the corpus already had.
+const DEMO_EDGES: usize = 14;
+const DEMO_NODES: usize = 15;
 
 fn write_report(store: &Path, out: &Path, extra: &[&str]) -> String {
     hearsay()

@@ -541,8 +541,11 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
                     .args(*args)
                     .output()
                     .unwrap();
+                // `pair` exits 3 for a name that is no variable (here "the weather"), with its
+                // report on stdout all the same.
+                let unknown_name = args[0] == "pair" && out.status.code() == Some(3);
                 assert!(
-                    out.status.success(),
+                    out.status.success() || unknown_name,
                     "{args:?}: {}",
                     String::from_utf8_lossy(&out.stderr)
                 );

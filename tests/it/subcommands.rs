@@ -133,7 +133,8 @@ fn extract_gives_the_same_claims_as_scan() {
     };
     norm(&mut extracted);
     norm(&mut stored);
-    assert_eq!(extracted.len(), 73);
+    // 72: "detection limit 0.01 mg" gives no claim (an amount is no variable).
+    assert_eq!(extracted.len(), 72);
     assert_eq!(extracted, stored);
 }
 

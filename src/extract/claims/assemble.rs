@@ -24,6 +24,9 @@ pub(super) struct MatchCtx<'a> {
     pub(super) origin: &'a Origin<'a>,
     /// The sentence with whitespace collapsed, as the claim records it.
     pub(super) sentence_text: &'a str,
+    /// The cause of the verb this one is coordinated with ("X raises A and lowers B": for
+    /// "lowers", X), used when the slot before the cue is empty.
+    pub(super) inherited_cause: Option<&'a Chosen>,
 }
 
 /// A slot as first chosen, and the slots coordinated with it ("heat, wind and smoke").
@@ -40,10 +43,23 @@ impl Extractor {
         let spec = &self.cues.cues[m.cue].spec;
         let (mut cause, cause_extra) = self.pick(cx, m.cause, false, notes);
         let (mut effect, effect_extra) = self.pick(cx, m.effect, true, notes);
+        if cause.is_none() && m.cause == SlotPlace::Before {
+            if let Some(c) = cx.inherited_cause {
+                notes.push(format!(
+                    "coordinated verb: the cause is that of the verb before, \"{}\"",
+                    c.text
+                ));
+                cause = Some(c.clone());
+            }
+        }
         let mut cross_sentence = self.fill_opening_slot(cx, &mut cause, &mut effect, notes);
         cross_sentence |= self.resolve_pronouns(cx, &mut cause, &mut effect, notes);
         let cause = cause.ok_or("no cause span found")?;
         let effect = effect.ok_or("no effect span found")?;
+        self.purpose_infinitive(cx)?;
+        for c in [&cause, &effect] {
+            self.verb_only(cx, c)?;
+        }
         if spec.time_sense
             && !cross_sentence
             && self.reads_as_time(cx.toks, cx.sent, &cause, &effect)
@@ -56,17 +72,40 @@ impl Extractor {
         if spec.polarity == Polarity::None && modality != Modality::Question {
             modality = Modality::Negated;
         }
+        // One convention for every no-effect statement: "does not affect Y" states that X has
+        // no effect on Y, as "has no effect on Y" does (polarity none, modality negated).
+        let no_effect = spec.negated_none && modality == Modality::Negated;
+        if no_effect {
+            notes.push("a denied effect: polarity none, as \"has no effect on\"".into());
+        }
         let causes: Vec<Chosen> = std::iter::once(cause).chain(cause_extra).collect();
         let mut effects: Vec<Chosen> = std::iter::once(effect).chain(effect_extra).collect();
         if spec.outcome_effect {
             effects = self.outcome_effects(cx, effects)?;
+        }
+        self.other_sense(spec, m, &causes, &effects)?;
+        // Only a causal noun that opens its pattern ("the effects of X on Y", "X is a cause of
+        // Y") can be a topic of enquiry; "Y from X" and the passives are statements.
+        let opens_with_noun =
+            noun_first(spec) || matches!(spec.tokens.first(), Some(PatternToken::Word { .. }));
+        if spec.family == "nominal" && opens_with_noun {
+            let slots: Vec<&Chosen> = causes.iter().chain(&effects).collect();
+            self.enquiry_talk(cx.toks, cx.sent, cx.ca, &slots)?;
+        }
+        if spec.clause_spans && spec.polarity == Polarity::Unsigned {
+            for e in &mut effects {
+                self.sign_of_clause(cx, e, notes);
+            }
         }
         let mut claims = Vec::new();
         let mut first_err = None;
         for c in &causes {
             for e in &effects {
                 match self.build_claim(c, e, spec, modality, cross_sentence, cx, notes) {
-                    Ok(claim) => claims.push(claim),
+                    Ok(mut claim) => {
+                        claim.attribution = self.source_of(cx, c, e);
+                        claims.push(claim);
+                    }
                     Err(why) => {
                         first_err.get_or_insert(why);
                     }
@@ -320,6 +359,13 @@ impl Extractor {
                 cause.text, effect.text
             ));
         }
+        if self.amount_only(&cause.key_text) || self.amount_only(&effect.key_text) {
+            return Err(format!(
+                "a span is only a number, unit, year or decade (cause \"{}\", effect \"{}\"; \
+                 [senses] units in lexicon.toml)",
+                cause.text, effect.text
+            ));
+        }
         // Only such words, and labels with digits beside them ("Figure 6C").
         let alone = |key: &str| {
             key.split(' ').any(|w| self.not_alone.contains(w))
@@ -340,6 +386,9 @@ impl Extractor {
             modality = Modality::Negated;
         }
         let mut polarity = spec.polarity;
+        if spec.negated_none && modality == Modality::Negated {
+            polarity = Polarity::None;
+        }
         if let (Polarity::Unsigned, Some(s)) = (polarity, effect.sign) {
             notes.push(format!("the effect's sign word makes it an {s}"));
             polarity = s;
@@ -376,7 +425,76 @@ impl Extractor {
                 record: origin.record.map(str::to_string),
             },
             cross_sentence,
+            attribution: None,
         })
+    }
+
+    /// "initiatives by the sectors to improve arrangements", "steps are taken to improve": a
+    /// verb cue right after "to", with no verb group before it ("is likely to", "has been
+    /// shown to", "helps to"), names an aim, not a stated effect.
+    fn purpose_infinitive(&self, cx: &MatchCtx<'_>) -> Result<(), String> {
+        let spec = &self.cues.cues[cx.m.cue].spec;
+        // "criteria to prevent cost to the taxpayer": a measure named with what it prevents is
+        // read as a claim that it does (BECAUSE annotates these as consequences).
+        if cx.m.cause != SlotPlace::Before
+            || spec.clause_spans
+            || noun_first(spec)
+            || spec.polarity == Polarity::Prevent
+        {
+            return Ok(());
+        }
+        let ca = cx.ca;
+        if ca < 2 || cx.toks[ca - 1].lower != "to" {
+            return Ok(());
+        }
+        let w = cx.toks[ca - 2].lower.as_str();
+        if !cx.toks[ca - 2].word || self.verb_group.contains(w) || self.adverb(w) {
+            return Ok(());
+        }
+        Err(format!(
+            "\"{w} to\" before the cue: an aim (a purpose infinitive), not a stated effect"
+        ))
+    }
+
+    /// A slot that is one verb or adverb ("taken", "were", "interestingly") names no variable.
+    fn verb_only(&self, cx: &MatchCtx<'_>, c: &Chosen) -> Result<(), String> {
+        if c.start < cx.sent.offset {
+            return Ok(());
+        }
+        let (a, b) = c.tokens(cx.toks, cx.sent);
+        let words: Vec<&Token> = cx.toks[a..b.min(cx.toks.len())]
+            .iter()
+            .filter(|t| t.word)
+            .collect();
+        // The tagger is unsure on short clauses ("Drought limits grazing"), so a tag alone
+        // decides only for past participles with a participle's ending.
+        let whole =
+            |t: &Token| cx.sent.offset + t.start == c.start && cx.sent.offset + t.end == c.end;
+        let fragment = matches!(words.as_slice(), [t] if whole(t) && {
+            let w = t.lower.as_str();
+            self.lexicon.auxiliaries.contains(w)
+                || self.adverb(w)
+                || (t.tag.is_some_and(|g| g.is_participle())
+                    && (w.ends_with("ed") || w.ends_with("en")))
+        });
+        if fragment {
+            return Err(format!(
+                "\"{}\" is a lone verb or adverb: it names no variable",
+                c.text
+            ));
+        }
+        Ok(())
+    }
+
+    /// Who said it: the attribution read before the claim's first slot in this sentence.
+    fn source_of(&self, cx: &MatchCtx<'_>, cause: &Chosen, effect: &Chosen) -> Option<String> {
+        let in_sentence = |c: &Chosen| c.start >= cx.sent.offset;
+        let first = [cause, effect]
+            .into_iter()
+            .filter(|c| in_sentence(c))
+            .map(|c| c.tokens(cx.toks, cx.sent).0)
+            .min()?;
+        self.attribution(cx.toks, first.min(cx.ca), cx.sent.text)
     }
 }
 

@@ -15,6 +15,7 @@
 //! around each cue match, not the whole sentence).
 
 mod assemble;
+mod attribution;
 mod modality;
 mod senses;
 mod spans;
@@ -24,7 +25,7 @@ mod window;
 
 use crate::claim::{Claim, Polarity};
 use crate::extract::confidence::{ConfidenceError, ConfidenceModel};
-use crate::extract::cues::{Candidate, CueMatch, CueSet};
+use crate::extract::cues::{Candidate, CueMatch, CueSet, SlotPlace};
 use crate::extract::tagger::Tagger;
 use crate::extract::tokens::{collapse, token_range, tokenize, Token};
 use crate::patterns::{Lexicon, PatternSet};
@@ -239,6 +240,7 @@ impl Extractor {
         }
         let sentence_text = collapse(sent.text);
         let run = |blocked: &[bool],
+                   inherit: &[Option<Chosen>],
                    notes_out: &mut Vec<Vec<String>>|
          -> Vec<Result<Vec<Claim>, String>> {
             notes_out.clear();
@@ -246,7 +248,8 @@ impl Extractor {
                 .iter()
                 .zip(&cue_tokens)
                 .zip(&noun_uses)
-                .map(|((m, &(ca, cb)), nu)| {
+                .zip(inherit)
+                .map(|(((m, &(ca, cb)), nu), inherited)| {
                     let mut notes = Vec::new();
                     let r = match nu {
                         Some(why) => Err(why.clone()),
@@ -261,6 +264,7 @@ impl Extractor {
                                 prev,
                                 origin,
                                 sentence_text: &sentence_text,
+                                inherited_cause: inherited.as_ref(),
                             };
                             self.claim_for(&cx, &mut notes)
                         }
@@ -271,7 +275,21 @@ impl Extractor {
                 .collect()
         };
         let mut notes = Vec::new();
-        let mut results = run(&blocked, &mut notes);
+        let mut inherit: Vec<Option<Chosen>> = vec![None; matches.len()];
+        let mut results = run(&blocked, &inherit, &mut notes);
+        // "The levy raises bus fares and lowers car use": a verb cue with no cause of its own,
+        // coordinated with an earlier verb cue that has one, takes that cause.
+        let mut inherited_any = false;
+        for i in 0..matches.len() {
+            if results[i].is_ok() || noun_uses[i].is_some() {
+                continue;
+            }
+            inherit[i] = self.coordinated_cause(&matches, &cue_tokens, &results, &toks, i);
+            inherited_any |= inherit[i].is_some();
+        }
+        if inherited_any {
+            results = run(&blocked, &inherit, &mut notes);
+        }
         // A cue that gave no claim ("exploding fuel." read as the verb "fuel") must not cut the
         // spans of the others: unblock its words and decide again.
         let failed: Vec<usize> = results
@@ -285,7 +303,7 @@ impl Extractor {
                 let (a, b) = cue_tokens[i];
                 blocked[a..b].iter_mut().for_each(|x| *x = false);
             }
-            results = run(&blocked, &mut notes);
+            results = run(&blocked, &inherit, &mut notes);
         }
         for ((m, result), notes) in matches.iter().zip(results).zip(notes) {
             if let Ok(cs) = &result {
@@ -349,6 +367,46 @@ impl Extractor {
         } else {
             toks
         }
+    }
+
+    /// The cause a verb cue at match `i` takes from the verb cue it is coordinated with: "X
+    /// raises A and lowers B" gives "lowers" the cause of "raises". Only for a cue whose cause
+    /// comes before it, right after "and", "but" or "yet" (adverbs and "also" between).
+    fn coordinated_cause(
+        &self,
+        matches: &[CueMatch],
+        cue_tokens: &[(usize, usize)],
+        results: &[Result<Vec<Claim>, String>],
+        toks: &[Token],
+        i: usize,
+    ) -> Option<Chosen> {
+        if matches[i].cause != SlotPlace::Before {
+            return None;
+        }
+        let mut k = cue_tokens[i].0;
+        while k > 0 && (self.adverb(&toks[k - 1].lower) || toks[k - 1].lower == "also") {
+            k -= 1;
+        }
+        if k == 0 || !matches!(toks[k - 1].lower.as_str(), "and" | "but" | "yet") {
+            return None;
+        }
+        let j = (0..matches.len())
+            .filter(|&j| {
+                cue_tokens[j].1 < k
+                    && matches[j].cause == SlotPlace::Before
+                    && results[j].as_ref().is_ok_and(|cs| !cs.is_empty())
+            })
+            .max_by_key(|&j| cue_tokens[j].1)?;
+        let first = results[j].as_ref().ok()?.first()?;
+        Some(Chosen {
+            start: first.cause.start,
+            end: first.cause.end,
+            text: first.cause.text.clone(),
+            key_text: first.cause.text.clone(),
+            sign: None,
+            negated: false,
+            pronoun: first.cause.pronoun.clone(),
+        })
     }
 
     /// Before any tagging: an outcome cue whose effect ends right before it ("headaches from")

@@ -1,9 +1,10 @@
 //! Modality and sign: negation, conditions, hedges and questions read from the words before the
 //! cue; sign words and change nouns ("higher", "an increase in") read from the effect span.
 
-use super::{Extractor, Span};
+use super::assemble::MatchCtx;
+use super::{Chosen, Extractor, Span};
 use crate::claim::{Modality, Polarity};
-use crate::extract::tokens::Token;
+use crate::extract::tokens::{collapse, Token};
 
 impl Extractor {
     /// Read sign words and change nouns at the start of an effect span.
@@ -58,8 +59,18 @@ impl Extractor {
         notes: &mut Vec<String>,
     ) -> Modality {
         if sentence.trim_end().ends_with('?') {
-            notes.push("the sentence is a question".into());
-            return Modality::Question;
+            // "Why does grazing deplete the soil?" takes its claim for granted and asks only
+            // for the reason: the claim counts as stated (patterns/README.md, "Questions").
+            if toks
+                .iter()
+                .find(|t| t.word)
+                .is_some_and(|t| t.lower == "why")
+            {
+                notes.push("a why-question presupposes its claim: read as stated".into());
+            } else {
+                notes.push("the sentence is a question".into());
+                return Modality::Question;
+            }
         }
         let mut clause_start = cue_from;
         while clause_start > 0 {
@@ -94,6 +105,11 @@ impl Extractor {
             }
             None
         };
+        // "We explore whether tolls reduce traffic": an embedded question asks, it states nothing.
+        if prefix.iter().any(|t| t.lower == "whether") {
+            notes.push("inside a \"whether\" clause: an embedded question".into());
+            return Modality::Question;
+        }
         if let Some(w) = found(&self.lexicon.negators, prefix) {
             notes.push(format!("negated by \"{w}\""));
             return Modality::Negated;
@@ -107,5 +123,62 @@ impl Extractor {
             return Modality::Hedged;
         }
         Modality::Asserted
+    }
+
+    /// "Because the rains failed, grain prices rose": an effect clause of a connective that ends
+    /// in an intransitive verb of change (`increase_verbs`/`decrease_verbs` in lexicon.toml,
+    /// tagged as a verb) gives the effect its sign; the effect is the clause's subject.
+    pub(super) fn sign_of_clause(
+        &self,
+        cx: &MatchCtx<'_>,
+        e: &mut Chosen,
+        notes: &mut Vec<String>,
+    ) {
+        let (toks, sent) = (cx.toks, cx.sent);
+        if e.start < sent.offset || e.sign.is_some() {
+            return;
+        }
+        let (a, mut b) = e.tokens(toks, sent);
+        b = b.min(toks.len());
+        while b > a && (!toks[b - 1].word || self.adverb(&toks[b - 1].lower)) {
+            b -= 1;
+        }
+        let ends_with = |p: &[String]| {
+            b > a + p.len()
+                && p.iter().zip(&toks[b - p.len()..b]).all(|(w, t)| *w == t.lower)
+                // "tax increases" is a noun: an -s form must be tagged as a verb.
+                && (toks[b - p.len()].tag.is_none_or(|g| g.is_verb())
+                    || !toks[b - p.len()].lower.ends_with('s'))
+        };
+        let lists = [
+            (&self.lexicon.increase_verbs, Polarity::Increase),
+            (&self.lexicon.decrease_verbs, Polarity::Decrease),
+        ];
+        let Some((n, sign)) = lists
+            .iter()
+            .find_map(|(list, sign)| list.iter().find(|p| ends_with(p)).map(|p| (p.len(), *sign)))
+        else {
+            return;
+        };
+        let mut end = b - n;
+        while end > a
+            && (self
+                .lexicon
+                .auxiliaries
+                .contains(toks[end - 1].lower.as_str())
+                || self.adverb(&toks[end - 1].lower))
+        {
+            end -= 1;
+        }
+        if end <= a {
+            return;
+        }
+        let verb = collapse(&sent.text[toks[b - n].start..toks[b - 1].end]);
+        notes.push(format!("the effect clause ends in \"{verb}\": an {sign}"));
+        let (bs, be) = (toks[a].start, toks[end - 1].end);
+        e.end = sent.offset + be;
+        e.text = collapse(&sent.text[bs..be]);
+        e.key_text = e.text.clone();
+        e.sign = Some(sign);
     }
 }

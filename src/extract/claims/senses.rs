@@ -3,10 +3,11 @@
 //! effect names no outcome.
 
 use super::{Chosen, Extractor, SentenceRef, Span};
+use crate::claim::{Kind, Polarity};
 use crate::extract::cues::{CueMatch, SlotPlace};
 use crate::extract::tagger::Tag;
 use crate::extract::tokens::{tokenize, Token};
-use crate::patterns::Role;
+use crate::patterns::{CueSpec, Role};
 
 /// Words naming a quantity of what follows "of": the head of "most of the noise" is "noise".
 const QUANTITIES: &[&str] = &[
@@ -221,16 +222,32 @@ impl Extractor {
                 ));
             }
         }
-        if let Some(why) = self.tagged_noun_use(toks, ca, cue.left == Some(Role::Cause)) {
-            return Some(why);
-        }
         let before = ca.checked_sub(1).map(|i| toks[i].lower.as_str())?;
+        // "Mulch and compost both reduce weeds": a quantifier floating after its noun phrase
+        // stands before a verb.
+        let floating = matches!(before, "both" | "all" | "each")
+            && ca >= 2
+            && toks[ca - 2].word
+            && !self
+                .lexicon
+                .determiners
+                .contains(toks[ca - 2].lower.as_str())
+            && !self
+                .lexicon
+                .prepositions
+                .contains(toks[ca - 2].lower.as_str())
+            && toks[ca - 2].lower != "of";
+        if !floating {
+            if let Some(why) = self.tagged_noun_use(toks, ca, cue.left == Some(Role::Cause)) {
+                return Some(why);
+            }
+        }
         // "the germ that causes ulcers": a relative pronoun, not a determiner, before a verb.
         // "This reduced fish numbers.": a demonstrative standing alone is a pronoun.
         let pronoun = self.bare_demonstrative(toks, ca) == Some(ca - 1);
         let relative = (self.lexicon.relatives.contains(before) || pronoun)
             && toks[ca].tag.is_some_and(Tag::is_finite_verb);
-        if (self.lexicon.determiners.contains(before) && !relative)
+        if (self.lexicon.determiners.contains(before) && !relative && !floating)
             || (self.lexicon.prepositions.contains(before) && before != "to")
         {
             return Some(format!(
@@ -295,6 +312,11 @@ impl Extractor {
             if i == ca || !t.tag.is_some_and(Tag::is_finite_verb) {
                 return false;
             }
+            // "Officials said the levy triggers ...": the reporting verb governs the clause
+            // that holds the cue; it is not that clause's predicate.
+            if i < ca && self.lexicon.reporting_verbs.contains(t.lower.as_str()) {
+                return false;
+            }
             if !aux.contains(t.lower.as_str()) {
                 return i + 1 < ca || i > ca + 1;
             }
@@ -329,5 +351,225 @@ impl Extractor {
             b += 1;
         }
         (a, b)
+    }
+}
+
+/// Number words: with units, a span of only these names an amount, not a variable.
+const NUMBER_WORDS: &[&str] = &[
+    "one",
+    "two",
+    "three",
+    "four",
+    "five",
+    "six",
+    "seven",
+    "eight",
+    "nine",
+    "ten",
+    "eleven",
+    "twelve",
+    "twenty",
+    "thirty",
+    "forty",
+    "fifty",
+    "sixty",
+    "seventy",
+    "eighty",
+    "ninety",
+    "hundred",
+    "hundreds",
+    "thousand",
+    "thousands",
+    "million",
+    "millions",
+    "billion",
+    "dozen",
+    "dozens",
+    "half",
+    "twice",
+    "a",
+    "an",
+    "the",
+    "of",
+    "per",
+    "and",
+    "or",
+    "to",
+    "about",
+    "some",
+    "nearly",
+    "almost",
+    "over",
+    "under",
+    "around",
+    "roughly",
+    "approximately",
+    "january",
+    "february",
+    "march",
+    "april",
+    "may",
+    "june",
+    "july",
+    "august",
+    "september",
+    "october",
+    "november",
+    "december",
+    "spring",
+    "summer",
+    "autumn",
+    "winter",
+    "early",
+    "late",
+    "mid",
+];
+
+impl Extractor {
+    /// The head word of a span's text: the last word before its first preposition or "of",
+    /// lower-cased, without a possessive or a hyphenated prefix ("the east wing" → "wing").
+    fn head_of(&self, text: &str) -> Option<String> {
+        let toks = tokenize(text);
+        let mut head = None;
+        for t in &toks {
+            if self.phrase_break(t) && head.is_some() {
+                break;
+            }
+            if t.word && !matches!(t.lower.as_str(), "'s" | "’s") {
+                head = Some(t.lower.rsplit('-').next().unwrap_or(&t.lower).to_string());
+            }
+        }
+        head
+    }
+
+    /// Another sense of the cue word, read from the head of a slot: a path ("the trail leads
+    /// to the ridge"), handling ("raised the flag", "cut the rope"), rearing ("raised sheep"), a
+    /// contribution to a work ("contributed to the anthology"), or a duty ("the caretaker is
+    /// responsible for the keys"). Each is a rule of its own, with its word list in
+    /// `[senses]` (lexicon.toml).
+    pub(super) fn other_sense(
+        &self,
+        spec: &CueSpec,
+        m: &CueMatch,
+        causes: &[Chosen],
+        effects: &[Chosen],
+    ) -> Result<(), String> {
+        let s = &self.lexicon.senses;
+        let (Some(cause), Some(effect)) = (causes.first(), effects.first()) else {
+            return Ok(());
+        };
+        let cause_head = self.head_of(&cause.text).unwrap_or_default();
+        let effect_head = self.head_of(&effect.text).unwrap_or_default();
+        if spec.id.starts_with("lead-to") && s.paths.contains(&cause_head) {
+            return Err(format!(
+                "\"{cause_head}\" is a way or a place: \"lead to\" in its path sense ([senses] \
+                 paths)"
+            ));
+        }
+        let active = m.cause == SlotPlace::Before && m.effect == SlotPlace::After;
+        let directional = matches!(
+            spec.polarity,
+            Polarity::Increase | Polarity::Decrease | Polarity::Prevent
+        );
+        if directional && active && spec.kind == Kind::Causal {
+            if spec.handling && s.handled.contains(&effect_head) {
+                return Err(format!(
+                    "\"{effect_head}\" is a thing handled: cue {} in its physical sense \
+                     ([senses] handled)",
+                    spec.id
+                ));
+            }
+            if spec.polarity == Polarity::Increase && s.reared.contains(&effect_head) {
+                return Err(format!(
+                    "\"{effect_head}\" is raised or reared: not a change of an amount ([senses] \
+                     reared)"
+                ));
+            }
+        }
+        if spec.id.starts_with("contribute") && s.works.contains(&effect_head) {
+            return Err(format!(
+                "\"{effect_head}\" is a work one contributes to: a role, not a claim ([senses] \
+                 works)"
+            ));
+        }
+        if spec.id.starts_with("responsible") {
+            let who = cause
+                .pronoun
+                .as_deref()
+                .unwrap_or(&cause_head)
+                .to_lowercase();
+            if s.persons.contains(&who) || s.persons.contains(&cause_head) {
+                return Err(format!(
+                    "\"{cause_head}\" is a person or role: \"responsible for\" names a duty \
+                     ([senses] persons)"
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    /// A causal noun phrase that the sentence studies, measures or leaves open ("we examine the
+    /// causes of X", "the effect of X on Y was not measured", "remains unclear") is a topic,
+    /// not a claim. The enquiry word stands in the cue's clause outside the slots: before the
+    /// cue only as a verb or adjective ("this study shows" is no enquiry), anywhere after.
+    pub(super) fn enquiry_talk(
+        &self,
+        toks: &[Token],
+        sent: SentenceRef<'_>,
+        ca: usize,
+        slots: &[&Chosen],
+    ) -> Result<(), String> {
+        let (a, b) = self.clause_around(toks, ca);
+        let inside = |i: usize| {
+            slots.iter().any(|c| {
+                c.start >= sent.offset && {
+                    let (x, y) = c.tokens(toks, sent);
+                    (x..y).contains(&i)
+                }
+            })
+        };
+        let enquiry = &self.lexicon.senses.enquiry;
+        // The clause may run on past the slots ("... on Y was not measured").
+        let b = (b..toks.len())
+            .find(|&k| Self::clause_punct(&toks[k]))
+            .unwrap_or(toks.len())
+            .max(b);
+        for (i, t) in toks.iter().enumerate().take(b).skip(a) {
+            // A slot word counts when tagged as a finite or base verb: "We examine the causes
+            // of" puts "examine" in the cause slot.
+            let slot_verb = t
+                .tag
+                .is_some_and(|g| matches!(g.as_str(), "VB" | "VBP" | "VBZ" | "VBD"));
+            if i == ca
+                || !t.word
+                || (inside(i) && !slot_verb)
+                || !enquiry.contains(t.lower.as_str())
+            {
+                continue;
+            }
+            let verbal = t.tag.is_none_or(|g| g.is_verb() || g.is_adjective());
+            if i > ca || verbal {
+                return Err(format!(
+                    "\"{}\" around the causal noun: the sentence talks about a causal question, \
+                     it states no claim ([senses] enquiry)",
+                    t.lower
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    /// A span of only numbers, units, number words, months and seasons: an amount or a date,
+    /// not a variable ("40 °C" read as "C", "the 1990s", "two").
+    pub(super) fn amount_only(&self, text: &str) -> bool {
+        let toks = tokenize(text);
+        let mut words = toks.iter().filter(|t| t.word).peekable();
+        words.peek().is_some()
+            && words.all(|t| {
+                let w = t.lower.as_str();
+                w.starts_with(|c: char| c.is_ascii_digit())
+                    || self.lexicon.senses.units.contains(w)
+                    || NUMBER_WORDS.contains(&w)
+            })
     }
 }

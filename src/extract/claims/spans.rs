@@ -18,7 +18,9 @@ impl Extractor {
     /// A word that ends a noun-phrase span in either direction.
     pub(super) fn np_boundary(&self, t: &Token) -> bool {
         let l = &self.lexicon;
-        !t.word
+        // "40 °C", "20 %": a unit sign stays inside the span with its number.
+        // "the pupils' fluency": a plural possessive's apostrophe too.
+        (!t.word && !matches!(t.lower.as_str(), "°" | "%" | "'" | "’"))
             || l.clause_breaks.contains(t.lower.as_str())
             || l.relatives.contains(t.lower.as_str())
             || l.auxiliaries.contains(t.lower.as_str())
@@ -40,15 +42,25 @@ impl Extractor {
     }
 
     pub(super) fn strip_determiners(&self, toks: &[Token], mut s: Span) -> Span {
-        while s.from < s.to
-            && self
-                .lexicon
-                .determiners
-                .contains(toks[s.from].lower.as_str())
-        {
-            s.from += 1;
+        loop {
+            while s.from < s.to
+                && self
+                    .lexicon
+                    .determiners
+                    .contains(toks[s.from].lower.as_str())
+            {
+                s.from += 1;
+            }
+            // "two of the pumps": a count of what follows names no variable of its own.
+            if s.from + 2 < s.to
+                && toks[s.from + 1].lower == "of"
+                && self.amount_only(&toks[s.from].lower)
+            {
+                s.from += 2;
+                continue;
+            }
+            return s;
         }
-        s
     }
 
     /// Walk back from token `from` (exclusive): the verb group, then the noun phrase.
@@ -408,6 +420,14 @@ impl Extractor {
         } else {
             (span, None, false)
         };
+        let mut span = span;
+        // "lowers blood pressure only slightly": trailing adverbs are not the variable's.
+        while span.to > span.from + 1 && {
+            let w = toks[span.to - 1].lower.as_str();
+            w == "only" || self.adverb(w)
+        } {
+            span.to -= 1;
+        }
         if span.is_empty() {
             return None;
         }
@@ -534,6 +554,16 @@ impl Extractor {
                 k += 1;
             }
             if k == j || blocked[j..k].iter().any(|&b| b) {
+                break;
+            }
+            // "raises A and lowers B": a coordinated verb phrase, not another slot.
+            if k < toks.len() && (blocked[k] || toks[k].tag.is_some_and(Tag::is_finite_verb)) {
+                // "causes smog, acid rain, and contributes to ...": the "and" closed the list.
+                if saw_conj {
+                    if let Some(last) = out.last_mut() {
+                        last.1 = true;
+                    }
+                }
                 break;
             }
             // "caused by X or by Y": the cue's preposition may be repeated.

@@ -274,8 +274,9 @@ fn reasoning_words_alone_are_no_variable_on_elife_text() {
 /// Fixed names that hold a glued cue ("cyclin-dependent kinase", "adeno-associated virus")
 /// led `top` on the eLife articles (990 open-access articles;
 /// ../shared/data/elife-articles/SOURCE.txt). Inside a name listed in `[terms]` the glued
-/// cue gives no claim; the same cues in statements ("shRNA-mediated knockdown",
-/// "diet-induced obesity") keep theirs.
+/// cue gives no claim, and neither do names of methods and processes ("shRNA-mediated
+/// knockdown", "clathrin-mediated endocytosis": a technique and an uptake route, which had
+/// been counted as claims); the same cues in statements ("diet-induced obesity") keep theirs.
 #[test]
 fn glued_cues_inside_fixed_names_give_no_claim_on_elife_text() {
     let lines = crate::testdata::elife_lines(990);
@@ -284,12 +285,13 @@ fn glued_cues_inside_fixed_names_give_no_claim_on_elife_text() {
     }
     let e = ex();
     let names = Regex::new(
-        r"(?i)\b(?:cyclin-dependent kinases?|adeno-associated virus|enzyme-linked immunosorbent|collision-induced dissociation|microtubule-associated proteins?)\b",
+        r"(?i)\b(?:cyclin-dependent kinases?|adeno-associated virus|enzyme-linked immunosorbent|collision-induced dissociation|microtubule-associated proteins?|(?:shrna|sirna|clathrin)-mediated (?:knockdown|endocytosis))\b",
     )
     .unwrap();
-    let statements =
-        Regex::new(r"(?i)\b(?:shrna|sirna|clathrin)-mediated (?:knockdown|endocytosis)\b|\bdiet-induced obesity\b")
-            .unwrap();
+    let statements = Regex::new(
+        r"(?i)\bdiet-induced obesity\b|\b(?:stress|injury|light|ligand|activity)-induced \w+",
+    )
+    .unwrap();
     let (mut named, mut stated, mut kept) = (0, 0, 0);
     for (path, _, sent) in sentences_of(&lines) {
         let text = sent.text;
@@ -324,9 +326,10 @@ fn glued_cues_inside_fixed_names_give_no_claim_on_elife_text() {
             kept += usize::from(!glued.is_empty());
         }
     }
-    // Measured on all 990 articles: 59 sentences with one of these names (each gave a
-    // claim inside it before); 96 of 96 statements keep a glued claim.
+    // Measured on all 990 articles before the method names joined `[terms]`: 59 sentences
+    // with one of the older names (each gave a claim inside it before).
     assert!(named > 50, "only {named} sentences with a fixed name");
+    assert!(stated > 20, "only {stated} statements with a glued cue");
     assert!(
         kept * 10 >= stated * 9,
         "{kept} of {stated} statements kept a glued claim"
@@ -499,4 +502,29 @@ fn claim_spans_are_tagged_and_sentence_tokens_agree() {
             "{untagged_words} of {tagged_words}"
         );
     }
+}
+
+/// Who said it: the subject of a reporting verb, or the phrase after "according to"; nothing
+/// for a negator, a bare "it", or a sentence that names no one.
+#[test]
+fn attribution_keeps_the_source_as_written() {
+    let e = ex();
+    let by = |text: &str| claims(&e, text).first().and_then(|c| c.attribution.clone());
+    assert_eq!(
+        by("Officials said the new levy triggers flooding.").as_deref(),
+        Some("Officials")
+    );
+    assert_eq!(
+        by("The survey found that commuting reduces sleep.").as_deref(),
+        Some("The survey")
+    );
+    assert_eq!(
+        by("According to the farmers' union, the tariff damaged wool exports.").as_deref(),
+        Some("the farmers' union")
+    );
+    assert_eq!(
+        by("It was reported that the dam raised the lake level."),
+        None
+    );
+    assert_eq!(by("Heavy rain causes flooding."), None);
 }
