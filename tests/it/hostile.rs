@@ -638,8 +638,11 @@ fn markup_escapes_and_formulas_in_the_text_stay_inert_in_every_output() {
             .args(args)
             .output()
             .unwrap();
+        // `pair` exits 3 when a name is no variable (the hostile spans are cut oddly), and still
+        // prints its report: that output must be inert too.
+        let unknown_name = args.contains(&"pair") && out.status.code() == Some(3);
         assert!(
-            out.status.success(),
+            out.status.success() || unknown_name,
             "{args:?}: {}",
             String::from_utf8_lossy(&out.stderr)
         );
