@@ -25,6 +25,9 @@ pub enum StoreError {
     Missing(PathBuf),
     #[error("store {path}: {message}")]
     Corrupt { path: PathBuf, message: String },
+    /// Another process holds the store's lock file (a scan or merge is writing it).
+    #[error("{lock}: another scan is writing this store; wait for it to finish (the lock is released when that process exits)")]
+    Locked { lock: PathBuf },
     #[error("store {path}: {source}")]
     Io {
         path: PathBuf,

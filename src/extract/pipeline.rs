@@ -11,6 +11,7 @@ use crate::corpus::Document;
 use crate::extract::claims::{Attempt, Extractor, Origin, SentenceRef};
 use crate::extract::confidence;
 use crate::sentences::{self, SentenceSpan};
+use std::cell::Cell;
 
 /// The largest block around a hit that is split into sentences, on each side of it. Paragraphs
 /// are seldom longer (eLife's longest line is 6 KB), so a block is nearly always a whole
@@ -21,21 +22,45 @@ const BLOCK_CAP: usize = 32 * 1024;
 #[derive(Debug, Clone)]
 pub struct LineIndex {
     starts: Vec<usize>,
+    /// The last offset asked for and its column (characters from its line's start), so that
+    /// offsets asked in increasing order on one long line count each character once: without
+    /// it, a document that is one line of n sentences costs n × its length.
+    last: Cell<(usize, usize)>,
 }
 
 impl LineIndex {
     pub fn new(text: &str) -> Self {
         let mut starts = vec![0];
         starts.extend(memchr::memchr_iter(b'\n', text.as_bytes()).map(|i| i + 1));
-        LineIndex { starts }
+        LineIndex {
+            starts,
+            last: Cell::new((0, 0)),
+        }
+    }
+
+    /// 1-based line of a byte offset.
+    pub fn line(&self, offset: usize) -> usize {
+        self.starts.partition_point(|&s| s <= offset).max(1)
     }
 
     /// 1-based line and column (in characters) of a byte offset.
     pub fn line_col(&self, text: &str, offset: usize) -> (usize, usize) {
-        let line = self.starts.partition_point(|&s| s <= offset).max(1);
+        let line = self.line(offset);
         let ls = self.starts[line - 1];
-        let col = text.get(ls..offset).map(|s| s.chars().count()).unwrap_or(0) + 1;
-        (line, col)
+        let (last, last_col) = self.last.get();
+        // Count on from the last offset when it lies on this line before `offset`.
+        let (from, base) = if last >= ls && last <= offset {
+            (last, last_col)
+        } else {
+            (ls, 0)
+        };
+        let col = base
+            + text
+                .get(from..offset)
+                .map(|s| s.chars().count())
+                .unwrap_or(0);
+        self.last.set((offset, col));
+        (line, col + 1)
     }
 }
 
@@ -172,7 +197,7 @@ pub fn document_sentences(doc: &Document) -> Vec<IndexedSentence<'_>> {
         .map(|SentenceSpan { start, end }| IndexedSentence {
             text: &doc.text[start..end],
             start,
-            line: lines.line_col(&doc.text, start).0,
+            line: lines.line(start),
         })
         .collect()
 }
@@ -211,6 +236,13 @@ mod tests {
         assert_eq!(li.line_col(t, 0), (1, 1));
         assert_eq!(li.line_col(t, 3), (2, 1));
         assert_eq!(li.line_col(t, t.find('f').unwrap()), (2, 5));
+        // Asked again, backwards and across lines, the counting from the last offset agrees
+        // with counting from the line's start.
+        assert_eq!(li.line_col(t, 4), (2, 2));
+        assert_eq!(li.line_col(t, 3), (2, 1));
+        assert_eq!(li.line_col(t, 1), (1, 2));
+        assert_eq!(li.line_col(t, t.find('f').unwrap()), (2, 5));
+        assert_eq!(li.line(t.len()), 3);
     }
 
     #[test]

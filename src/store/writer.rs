@@ -78,10 +78,15 @@ impl StoreWriter {
         fs::create_dir_all(dir).map_err(|e| StoreError::io(dir, e))?;
         let lock_path = dir.join("lock");
         let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
-        lock.try_lock().map_err(|_| StoreError::Corrupt {
-            path: dir.to_path_buf(),
-            message: "another scan is writing this store".into(),
-        })?;
+        // Only a lock held elsewhere is "another scan"; a file system that cannot lock is an
+        // I/O error with its own reason.
+        match lock.try_lock() {
+            Ok(()) => {}
+            Err(std::fs::TryLockError::WouldBlock) => {
+                return Err(StoreError::Locked { lock: lock_path });
+            }
+            Err(std::fs::TryLockError::Error(e)) => return Err(StoreError::io(&lock_path, e)),
+        }
         let old = match load(dir) {
             Ok(m) => m,
             Err(StoreError::Missing(_)) => Manifest::default(),

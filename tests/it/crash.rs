@@ -238,8 +238,6 @@ fn a_second_scan_on_a_store_in_use_is_turned_away_and_the_first_completes() {
 }
 
 #[test]
-#[ignore = "the lock error comes from the store's writer (src/store/writer.rs), which reports it \
-as StoreError::Corrupt with the store folder only; naming the lock file needs a change there"]
 fn the_lock_error_names_the_lock_file() {
     let tmp = tempfile::tempdir().unwrap();
     let store = tmp.path().join("store");
