@@ -93,7 +93,15 @@ fn each_token_span(s: &str, mut f: impl FnMut(usize, usize)) {
             continue;
         }
         let token = if !c.is_ascii() {
-            by_regex(i)
+            // Typographic punctuation (quotes, dashes) is a token of its own: a character
+            // that is neither alphanumeric (so in neither `\p{L}` nor `\p{N}`) nor a space is
+            // what the regex's `\S` alone matches. Anything else the regex decides.
+            match s[i..].chars().next() {
+                Some(ch) if !ch.is_alphanumeric() && !ch.is_whitespace() => {
+                    Some((i, i + ch.len_utf8()))
+                }
+                _ => by_regex(i),
+            }
         } else if !c.is_ascii_alphanumeric() {
             Some((i, i + 1))
         } else {
@@ -105,10 +113,21 @@ fn each_token_span(s: &str, mut f: impl FnMut(usize, usize)) {
                 match (b.get(i), b.get(i + 1)) {
                     // A joiner and a letter or digit after it: the token goes on.
                     (Some(b'\'' | b'-' | b'.'), Some(n)) if n.is_ascii_alphanumeric() => i += 2,
-                    // A non-ASCII character inside or right after the token, or after a
-                    // joiner: it may be a letter (or the typographic apostrophe), so the regex
-                    // decides.
-                    (Some(x), _) if !x.is_ascii() => break by_regex(start),
+                    // A non-ASCII character right after the run: the typographic apostrophe
+                    // joins like the plain one when a letter or digit in ASCII follows it, and
+                    // ends the token before itself when an ASCII character that is none (or
+                    // nothing) follows; any other character that is not alphanumeric ends the
+                    // token before itself. Anything else may be a letter: the regex decides.
+                    (Some(x), _) if !x.is_ascii() => match s[i..].chars().next() {
+                        Some('’') => match b.get(i + 3) {
+                            Some(n) if n.is_ascii_alphanumeric() => i += 4,
+                            Some(n) if n.is_ascii() => break Some((start, i)),
+                            None => break Some((start, i)),
+                            Some(_) => break by_regex(start),
+                        },
+                        Some(ch) if !ch.is_alphanumeric() => break Some((start, i)),
+                        _ => break by_regex(start),
+                    },
                     (Some(b'\'' | b'-' | b'.'), Some(n)) if !n.is_ascii() => break by_regex(start),
                     _ => break Some((start, i)),
                 }
@@ -198,7 +217,7 @@ mod token_tests {
         /// typographic apostrophe.
         #[test]
         fn tokens_agree_with_the_regex(s in proptest::string::string_regex(
-            "[aZ09 .'\\-,;()\t\u{b}\u{c}\r\n\u{0}\u{7f}µαé\u{301}’\u{a0}\u{2009}\u{2013}]{0,30}"
+            "[aZ09 .'\\-,;()\t\u{b}\u{c}\r\n\u{0}\u{7f}µαé\u{301}\u{345}’‘“”—…\u{a0}\u{2009}\u{2013}\u{2160}\u{b2}]{0,30}"
         ).expect("valid regex")) {
             prop_assert_eq!(token_spans(&s), by_regex(&s));
         }
