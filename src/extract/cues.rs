@@ -10,11 +10,11 @@
 
 use crate::patterns::{CueSpec, PatternSet, PatternToken, Role};
 use aho_corasick::{AhoCorasick, AhoCorasickBuilder, AhoCorasickKind, MatchKind};
-use regex::Regex;
 use regex_automata::meta::Regex as MetaRegex;
 use regex_automata::util::captures::Captures;
 use regex_automata::{Anchored, Input};
-use std::collections::BTreeSet;
+use std::collections::{BTreeSet, HashMap};
+use std::sync::Arc;
 
 /// A cue compiled for matching.
 #[derive(Debug)]
@@ -40,8 +40,9 @@ pub struct CompiledCue {
     pub right: Option<Role>,
     /// Slots captured inside the match, in capture-group order (`s0`, `s1`).
     inner: Vec<Role>,
-    reject_after: Option<Regex>,
-    reject_before: Option<Regex>,
+    /// Shared with every cue of the same rule (see `Rejects`).
+    reject_after: Option<Arc<MetaRegex>>,
+    reject_before: Option<Arc<MetaRegex>>,
     /// The prefilter literals of this cue.
     pub anchors: Vec<String>,
     /// The cue opens with an inflected verb (`word~`), so a determiner before it means a noun use.
@@ -83,6 +84,8 @@ const SLOT_CHARS: usize = 161;
 #[derive(Debug)]
 struct Exact {
     pattern: String,
+    /// Whether it is searched over whole sentences (then a prefilter of its literals helps).
+    prefilter: bool,
     /// `None` inside when it does not compile (size limits): the fast match stands.
     regex: std::sync::OnceLock<Option<MetaRegex>>,
 }
@@ -90,7 +93,7 @@ struct Exact {
 impl Exact {
     fn regex(&self) -> Option<&MetaRegex> {
         self.regex
-            .get_or_init(|| lean_regex(&self.pattern).ok())
+            .get_or_init(|| lean_regex(&self.pattern, self.prefilter).ok())
             .as_ref()
     }
 }
@@ -176,13 +179,18 @@ fn alternation(forms: &[String]) -> String {
 /// A regex for one of hundreds of cues: each keeps a lazy-DFA cache per thread, and a small one
 /// is plenty for a pattern tried at a few places per sentence, which keeps memory flat. No
 /// one-pass DFA: built for every cue they held 10 MB (a tenth of extract's memory) and cost
-/// start-up time, and the backtracker finds the slots of a sentence-long search as fast.
-fn lean_regex(re: &str) -> Result<MetaRegex, String> {
+/// start-up time, and the backtracker finds the slots of a sentence-long search as fast. No
+/// full DFA either (a cue's regex is seldom small enough for one). `prefilter`: whether to build
+/// a prefilter of its literals; a cue searched only anchored at a prefilter hit never uses one,
+/// and extracting and compiling literals for every such cue was a sixth of start-up.
+fn lean_regex(re: &str, prefilter: bool) -> Result<MetaRegex, String> {
     MetaRegex::builder()
         .configure(
             MetaRegex::config()
                 .hybrid_cache_capacity(CUE_DFA_CACHE)
-                .onepass(false),
+                .onepass(false)
+                .dfa(false)
+                .auto_prefilter(prefilter),
         )
         .build(re)
         .map_err(|e| e.to_string())
@@ -315,21 +323,67 @@ fn anchor_forms(toks: &[PatternToken], common: &dyn Fn(&str) -> bool) -> Vec<Str
         .unwrap_or_default()
 }
 
-/// A reject rule as a regex anchored at the match's edge: its start (`after`) or its end.
-fn reject_regex(r: &Option<String>, after: bool) -> Result<Option<Regex>, String> {
-    r.as_ref()
-        .map(|s| {
-            let full = if after {
-                format!("(?i)^(?:{s})")
-            } else {
-                format!("(?i)(?:{s})$")
-            };
-            Regex::new(&full).map_err(|e| e.to_string())
-        })
-        .transpose()
+/// A reject rule as a regex anchored at the match's edge: its start (`after`) or its end. The
+/// configuration the `regex` facade uses, with its syntax and match semantics: a full DFA where
+/// the rule is small, and a lazy-DFA cache large enough for the reverse search of a rule
+/// anchored at its end (a small one gives up on long sentences, and the slow fallback runs).
+fn build_reject(s: &str, after: bool) -> Result<MetaRegex, String> {
+    let full = if after {
+        format!("(?i)^(?:{s})")
+    } else {
+        format!("(?i)(?:{s})$")
+    };
+    MetaRegex::new(&full).map_err(|e| e.to_string())
 }
 
-fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, String> {
+/// The reject rules of a pattern set, each distinct rule built once and shared by the cues that
+/// name it (a few dozen distinct rules stand in hundreds of cues): by rule text, those of
+/// `reject_after` and of `reject_before`.
+#[derive(Default)]
+struct Rejects {
+    after: HashMap<String, Result<Arc<MetaRegex>, String>>,
+    before: HashMap<String, Result<Arc<MetaRegex>, String>>,
+}
+
+impl Rejects {
+    fn new(specs: &[CueSpec]) -> Rejects {
+        use rayon::prelude::*;
+        let build = |rules: BTreeSet<&String>, after: bool| {
+            rules
+                .into_par_iter()
+                .map(|r| (r.clone(), build_reject(r, after).map(Arc::new)))
+                .collect()
+        };
+        let after = specs
+            .iter()
+            .filter_map(|c| c.reject_after.as_ref())
+            .collect();
+        let before = specs
+            .iter()
+            .filter_map(|c| c.reject_before.as_ref())
+            .collect();
+        Rejects {
+            after: build(after, true),
+            before: build(before, false),
+        }
+    }
+
+    /// The built rule `r` (`after`: a `reject_after` rule).
+    fn get(&self, r: &Option<String>, after: bool) -> Result<Option<Arc<MetaRegex>>, String> {
+        let Some(r) = r else { return Ok(None) };
+        let built = if after { &self.after } else { &self.before };
+        match built.get(r) {
+            Some(b) => b.clone().map(Some),
+            None => build_reject(r, after).map(|b| Some(Arc::new(b))),
+        }
+    }
+}
+
+fn compile(
+    spec: CueSpec,
+    common: &dyn Fn(&str) -> bool,
+    rejects: &Rejects,
+) -> Result<CompiledCue, String> {
     let toks = &spec.tokens;
     let Layout {
         re,
@@ -341,12 +395,6 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
         last,
         glued_first,
     } = layout(toks)?;
-    let regex = lean_regex(&re.replace(BOUNDED_SLOT, "\\S.*?"))
-        .map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
-    let exact = (!bounded.is_empty()).then(|| Exact {
-        pattern: re.replace(BOUNDED_SLOT, &format!("\\S.{{0,{}}}?", SLOT_CHARS - 1)),
-        regex: std::sync::OnceLock::new(),
-    });
     let anchor_forms = anchor_forms(toks, common);
     let glued_anchor = toks
         .iter()
@@ -372,14 +420,23 @@ fn compile(spec: CueSpec, common: &dyn Fn(&str) -> bool) -> Result<CompiledCue, 
         (true, true) => MatchStart::WordBeforeHit,
         _ => MatchStart::Scan,
     };
+    // Only a cue searched over the whole sentence uses a prefilter of its own.
+    let scans = start == MatchStart::Scan;
+    let regex = lean_regex(&re.replace(BOUNDED_SLOT, "\\S.*?"), scans)
+        .map_err(|e| format!("pattern compiles to a bad regex: {e}"))?;
+    let exact = (!bounded.is_empty()).then(|| Exact {
+        pattern: re.replace(BOUNDED_SLOT, &format!("\\S.{{0,{}}}?", SLOT_CHARS - 1)),
+        prefilter: scans,
+        regex: std::sync::OnceLock::new(),
+    });
     let group_names = (0..inner.len()).map(|i| format!("s{i}")).collect();
     Ok(CompiledCue {
         start,
         group_names,
         glued_last,
         verb_first,
-        reject_after: reject_regex(&spec.reject_after, true)?,
-        reject_before: reject_regex(&spec.reject_before, false)?,
+        reject_after: rejects.get(&spec.reject_after, true)?,
+        reject_before: rejects.get(&spec.reject_before, false)?,
         spec,
         regex,
         exact,
@@ -429,13 +486,14 @@ impl CueSet {
     pub fn new(set: &PatternSet) -> Result<CueSet, String> {
         use rayon::prelude::*;
         let common = |w: &str| is_function_word(&set.lexicon, w);
+        let rejects = Rejects::new(&set.cues);
         // Compiling the regexes is most of the cost of starting up (and of a small re-scan):
         // cues compile in parallel, and the first error in file order is the one reported.
         let compiled: Vec<Result<CompiledCue, String>> = set
             .cues
             .par_iter()
             .map(|spec| {
-                compile(spec.clone(), &common).map_err(|e| {
+                compile(spec.clone(), &common, &rejects).map_err(|e| {
                     format!(
                         "{}:{}: cue '{}': {e}",
                         spec.origin.0.display(),

@@ -5,7 +5,7 @@
 use super::{Chosen, Extractor, Origin, SentenceRef, PRONOUNS};
 use crate::claim::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::extract::cues::{CueMatch, SlotPlace};
-use crate::extract::tokens::{tokenize, Token};
+use crate::extract::tokens::{collapse, tokenize, Token};
 use crate::patterns::{Lexicon, PatternToken};
 
 /// What deciding the slots of one cue match needs: the match, its tokens, the sentence and its
@@ -22,8 +22,9 @@ pub(super) struct MatchCtx<'a> {
     pub(super) sent: SentenceRef<'a>,
     pub(super) prev: Option<SentenceRef<'a>>,
     pub(super) origin: &'a Origin<'a>,
-    /// The sentence with whitespace collapsed, as the claim records it.
-    pub(super) sentence_text: &'a str,
+    /// The sentence with whitespace collapsed, as the claim records it: made once, by the
+    /// first claim of the sentence (most sentences with a cue match give none).
+    pub(super) sentence_text: &'a std::cell::OnceCell<String>,
     /// The cause of the verb this one is coordinated with ("X raises A and lowers B": for
     /// "lowers", X), used when the slot before the cue is empty.
     pub(super) inherited_cause: Option<&'a Chosen>,
@@ -414,7 +415,7 @@ impl Extractor {
             polarity,
             modality,
             cue: spec.id.clone(),
-            sentence: cx.sentence_text.to_string(),
+            sentence: cx.sentence_text.get_or_init(|| collapse(sent.text)).clone(),
             source: Source {
                 path: origin.path.to_string(),
                 line: origin.line,

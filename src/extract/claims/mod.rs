@@ -238,7 +238,7 @@ impl Extractor {
                 blocked[a..b].iter_mut().for_each(|x| *x = true);
             }
         }
-        let sentence_text = collapse(sent.text);
+        let sentence_text = std::cell::OnceCell::new();
         let run = |blocked: &[bool],
                    inherit: &[Option<Chosen>],
                    notes_out: &mut Vec<Vec<String>>|

@@ -137,3 +137,68 @@ fn model_round_trips_through_text() {
     assert_eq!(back.tag(&["Dogs", "bark"]), t.tag(&["Dogs", "bark"]));
     assert!(Tagger::from_model("nonsense").is_err());
 }
+
+/// The fast reading of a feature line's weights takes exactly the pairs the general reading
+/// (split at tabs, then at the colon, `str::parse`) accepts, with the same values, and leaves
+/// every other line to it.
+#[test]
+fn feature_pairs_read_fast_as_the_general_reading_does() {
+    let tags: Vec<Tag> = TAGS.iter().map(|t| Tag::parse(t).unwrap()).collect();
+    let general = |pairs: &str| -> Option<Vec<(u8, f32)>> {
+        pairs
+            .split('\t')
+            .map(|p| {
+                let (c, w) = p.split_once(':')?;
+                let c: usize = c.parse().ok()?;
+                let w: i32 = w.parse().ok()?;
+                Some((tags.get(c)?.0, w as f32 / 100.0))
+            })
+            .collect()
+    };
+    for pairs in [
+        "0:5",
+        "3:-120\t49:7",
+        "0012:0009",
+        "1:-0",
+        "49:123456789",
+        "9:1\t9:2\t9:3",
+        // Left to the general reading: it refuses these, or reads them in ways not worth a
+        // fast path (a plus sign).
+        "",
+        "1:5\t",
+        "\t1:5",
+        "1:5\t\t2:3",
+        "50:1",
+        "1:",
+        ":1",
+        "1:+5",
+        "+1:5",
+        "1:5x",
+        "12345:1",
+        "1:1234567890",
+        "1-5",
+        "1:--5",
+        "a:1",
+    ] {
+        let mut out = Vec::new();
+        let fast = read_pairs(pairs, &tags, &mut out);
+        match general(pairs) {
+            Some(g) if fast => assert_eq!(out, g, "{pairs:?}"),
+            _ => assert!(!fast, "{pairs:?} taken by the fast reading only"),
+        }
+    }
+    // And every line of the built-in model is taken by the fast reading.
+    let model = include_str!("../../../patterns/tagger.model");
+    let (mut lines, mut fast) = (0, 0);
+    for line in model.lines() {
+        if let Some((_, pairs)) = line.strip_prefix("f\t").and_then(|r| r.split_once('\t')) {
+            lines += 1;
+            let mut out = Vec::new();
+            if read_pairs(pairs, &tags, &mut out) {
+                fast += 1;
+                assert_eq!(Some(out), general(pairs), "{line:?}");
+            }
+        }
+    }
+    assert!(lines > 50_000 && fast == lines, "{fast} of {lines}");
+}
