@@ -7,6 +7,7 @@ use crate::claim::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::extract::cues::{CueMatch, SlotPlace};
 use crate::extract::tokens::{tokenize, Token};
 use crate::patterns::{Lexicon, PatternToken};
+use crate::variables::heads;
 
 /// What deciding the slots of one cue match needs: the match, its tokens, the sentence and its
 /// neighbour, where it came from.
@@ -393,6 +394,16 @@ impl Extractor {
             notes.push(format!("the effect's sign word makes it an {s}"));
             polarity = s;
         }
+        // Heads are split from the text the key was made from, so the head key is the key's
+        // own words less the qualifiers'.
+        let (chead, ehead) = (
+            heads::split(&cause.key_text),
+            heads::split(&effect.key_text),
+        );
+        let (chead_key, ehead_key) = (
+            self.head_key(&chead.head, &ckey),
+            self.head_key(&ehead.head, &ekey),
+        );
         Ok(Claim {
             schema: SCHEMA_VERSION,
             confidence: 0.0, // set by the pipeline (crate::extract::confidence)
@@ -402,6 +413,9 @@ impl Extractor {
                 start: cause.start,
                 end: cause.end,
                 pronoun: cause.pronoun.clone(),
+                head_key: chead_key,
+                head: chead.head,
+                qualifiers: chead.qualifiers,
             },
             effect: Slot {
                 text: effect.text.clone(),
@@ -409,6 +423,9 @@ impl Extractor {
                 start: effect.start,
                 end: effect.end,
                 pronoun: effect.pronoun.clone(),
+                head_key: ehead_key,
+                head: ehead.head,
+                qualifiers: ehead.qualifiers,
             },
             kind: spec.kind,
             polarity,
@@ -427,6 +444,17 @@ impl Extractor {
             cross_sentence,
             attribution: None,
         })
+    }
+
+    /// The key of a slot's head: the slot's own key when the head has no content word of its
+    /// own (a head is never empty where the key is not).
+    fn head_key(&self, head: &str, key: &str) -> String {
+        let k = self.normalizer.key(head);
+        if k.is_empty() {
+            key.to_string()
+        } else {
+            k
+        }
     }
 
     /// "initiatives by the sectors to improve arrangements", "steps are taken to improve": a
