@@ -346,4 +346,11 @@ fn rescans_keep_stored_abbreviations_per_file() {
     assert_eq!(v["x"]["key"], "pd", "an ambiguous short form stays itself");
     // ROS is now defined in one document only: no longer a corpus-wide alias.
     assert_eq!(v["y"]["key"], "ros");
+    // Each commit replaced the vocabulary file of the generation before.
+    let vocabularies: Vec<String> = std::fs::read_dir(&store)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.starts_with("vocabulary-"))
+        .collect();
+    assert_eq!(vocabularies, ["vocabulary-000004.json.zst"]);
 }

@@ -401,8 +401,8 @@ impl Extractor {
             heads::split(&effect.key_text),
         );
         let (chead_key, ehead_key) = (
-            self.head_key(&chead.head, &ckey),
-            self.head_key(&ehead.head, &ekey),
+            self.head_key(&chead.head, &cause.key_text, &ckey),
+            self.head_key(&ehead.head, &effect.key_text, &ekey),
         );
         Ok(Claim {
             schema: SCHEMA_VERSION,
@@ -446,9 +446,12 @@ impl Extractor {
         })
     }
 
-    /// The key of a slot's head: the slot's own key when the head has no content word of its
-    /// own (a head is never empty where the key is not).
-    fn head_key(&self, head: &str, key: &str) -> String {
+    /// The key of a slot's head (`key` that of its `text`): the slot's own key when the head
+    /// is the whole text (most are) or has no content word of its own.
+    fn head_key(&self, head: &str, text: &str, key: &str) -> String {
+        if head == text.trim() {
+            return key.to_string();
+        }
         let k = self.normalizer.key(head);
         if k.is_empty() {
             key.to_string()
