@@ -591,7 +591,7 @@ fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
         let err = String::from_utf8_lossy(&out.stderr);
         assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
         assert!(
-            err.contains("schema 4") && err.contains("reads 5") && err.contains("rescan"),
+            err.contains("schema 5") && err.contains("reads 6") && err.contains("rescan"),
             "{args:?}: {err}"
         );
     }
