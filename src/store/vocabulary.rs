@@ -219,3 +219,68 @@ impl Store {
         Vocabulary::load(&self.dir, &self.manifest)
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::patterns::PatternSet;
+
+    fn claim(cause: (&str, &str), effect: (&str, &str)) -> Claim {
+        serde_json::from_value(serde_json::json!({
+            "schema": crate::claim::SCHEMA_VERSION,
+            "cause": {"text": cause.0, "key": cause.0, "start": 0, "end": 1, "head": cause.1, "head_key": cause.1},
+            "effect": {"text": effect.0, "key": effect.0, "start": 2, "end": 3, "head": effect.1, "head_key": effect.1},
+            "kind": "causal", "polarity": "increase", "modality": "asserted", "cue": "raise",
+            "sentence": "s", "source": {"path": "a.txt", "line": 1, "column": 1, "start": 0, "end": 1},
+            "confidence": 0.5,
+        }))
+        .unwrap()
+    }
+
+    /// A key's head is the one most of its slots have over every file; a slot without
+    /// qualifiers votes for the key itself; a forgotten file no longer votes.
+    #[test]
+    fn heads_are_voted_over_files_and_forgotten_with_them() {
+        let mut v = Vocabulary::default();
+        v.add_claims("a.txt", &[claim(("x in y", "x"), ("z", "z"))]);
+        v.add_claims("b.txt", &[claim(("x in y", "x"), ("z", "z"))]);
+        v.add_claims("c.txt", &[claim(("x in y", "x in y"), ("z", "z"))]);
+        let h = v.heads();
+        assert_eq!(h["x in y"], "x");
+        assert_eq!(h["z"], "z");
+        assert_eq!(v.files["a.txt"].heads["z"], vec![(String::new(), 1)]);
+        v.forget("a.txt");
+        // One vote each: the shorter head wins the tie.
+        assert_eq!(v.heads()["x in y"], "x");
+        v.forget("b.txt");
+        assert_eq!(v.heads()["x in y"], "x in y");
+    }
+
+    /// Definitions are kept once per document, with their long form's key, and pooled per
+    /// corpus with the documents defining each meaning.
+    #[test]
+    fn definitions_are_kept_once_and_pooled() {
+        let set = PatternSet::builtin().unwrap();
+        let n = Normalizer::new(&set.lexicon);
+        let mut v = Vocabulary::default();
+        let s = "Soil organic carbon (SOC) rose, and SOC (soil organic carbon) fell.";
+        v.add_sentence("a.txt", "a.txt", s, &n);
+        v.add_sentence("a.txt", "a.txt", s, &n);
+        v.add_sentence("b.txt", "b.txt", "Reactive oxygen species (ROS) rose.", &n);
+        v.add_sentence("b.txt", "b.txt", "No parenthesis here.", &n);
+        assert_eq!(
+            v.files["a.txt"].definitions.len(),
+            2,
+            "{:?}",
+            v.files["a.txt"]
+        );
+        assert_eq!(
+            v.files["a.txt"].definitions[0].long_key,
+            n.key("soil organic carbon")
+        );
+        let pooled: Vec<_> = v.abbreviations(|k| k.to_string()).uses().collect();
+        let soc = pooled.iter().find(|u| u.short == "SOC").unwrap();
+        assert_eq!(soc.longs, vec![("Soil organic carbon".to_string(), 1)]);
+        assert!(pooled.iter().any(|u| u.short == "ROS"));
+    }
+}
