@@ -87,10 +87,11 @@ pub struct Global {
     #[arg(long, global = true, value_name = "FILE")]
     pub aliases: Option<PathBuf>,
     /// Count variables at a coarser level in queries and exports (off by default):
-    /// `abbreviations` makes a short form and its long form one variable where the corpus
-    /// defines the short form one way only; `heads` also counts every qualified variable as its
-    /// head ("increased nitrogen runoff from fields" as "nitrogen runoff"). Applied after
-    /// --aliases, from what the scan stored; `pair` says the level it answered at.
+    /// `abbreviations` makes a short form and its long form one variable where at least two
+    /// documents define the short form, all the same way; `heads` also counts every qualified
+    /// variable as its head ("increased nitrogen runoff from fields" as "nitrogen runoff").
+    /// Applied after --aliases, from what the scan stored; `pair` says the level it answered at.
+    /// A node's label stays its most frequent surface form.
     #[arg(long, global = true, value_enum, value_name = "LEVEL")]
     pub roll_up: Option<RollUpArg>,
     /// Output format (default: table on a terminal, JSON Lines otherwise). `graph` also writes
