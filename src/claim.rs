@@ -9,8 +9,9 @@ use serde::{Deserialize, Serialize};
 use std::fmt;
 use std::str::FromStr;
 
-/// Version of the claim record. Bump on any change to [`Claim`] or its parts.
-pub const SCHEMA_VERSION: u32 = 2;
+/// Version of the claim record. Bump on any change to [`Claim`] or its parts. 3: each slot
+/// carries its head, the head's key and its qualifiers.
+pub const SCHEMA_VERSION: u32 = 3;
 
 /// Whether a statement asserts causation or only co-variation.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
@@ -107,6 +108,19 @@ pub struct Slot {
     /// one in the previous sentence). Absent otherwise.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub pronoun: Option<String>,
+    /// The head of the phrase the key was made from, as written: the phrase without its
+    /// qualifiers ("nitrogen runoff" of "increased nitrogen runoff from fertilised fields"; see
+    /// `crate::variables::heads`). Schema 3.
+    #[serde(default)]
+    pub head: String,
+    /// The head's variable key, made as `key` is; the variable a head-level query counts the
+    /// claim under. Schema 3.
+    #[serde(default)]
+    pub head_key: String,
+    /// The qualifiers the head leaves out, in text order ("increased", "from fertilised
+    /// fields"). Absent when there are none. Schema 3.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub qualifiers: Vec<String>,
 }
 
 /// Where a claim was found.
@@ -195,6 +209,9 @@ mod tests {
             start: 0,
             end: 4,
             pronoun: None,
+            head: "rain".into(),
+            head_key: "rain".into(),
+            qualifiers: Vec::new(),
         };
         let c = Claim {
             schema: SCHEMA_VERSION,
@@ -219,7 +236,15 @@ mod tests {
             confidence: 0.5,
         };
         let json = serde_json::to_string(&c).unwrap();
-        assert!(json.starts_with("{\"schema\":2,"), "{json}");
+        assert!(json.starts_with("{\"schema\":3,"), "{json}");
+        assert!(
+            json.contains("\"head\":\"rain\",\"head_key\":\"rain\""),
+            "{json}"
+        );
+        assert!(
+            !json.contains("qualifiers"),
+            "no qualifiers, no field: {json}"
+        );
         assert!(!json.contains("page"));
         assert!(
             !json.contains("attribution"),

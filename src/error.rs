@@ -52,7 +52,7 @@ pub enum StoreError {
     },
     #[error(
         "store {path} holds claims of schema {found}, this hearsay reads schema {expected} \
-(it added a confidence to each claim); delete the folder and scan again: \
+(the README's \"Output schema\" says what changed); delete the folder and scan again: \
 hearsay scan PATH... --store {path}"
     )]
     ClaimSchema {

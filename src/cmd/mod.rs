@@ -35,6 +35,7 @@ use hearsay::graph::Filter;
 use hearsay::patterns::{self as pat, PatternSet};
 use hearsay::query::{self, Loaded};
 use hearsay::store::Store;
+use hearsay::variables::rollup::{roll_up, Level};
 use hearsay::variables::{Aliases, Normalizer};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
@@ -85,6 +86,14 @@ pub struct Global {
     /// Map surface forms onto variables: a file of `surface form<TAB>variable name` lines.
     #[arg(long, global = true, value_name = "FILE")]
     pub aliases: Option<PathBuf>,
+    /// Count variables at a coarser level in queries and exports (off by default):
+    /// `abbreviations` makes a short form and its long form one variable where at least two
+    /// documents define the short form, all the same way; `heads` also counts every qualified
+    /// variable as its head ("increased nitrogen runoff from fields" as "nitrogen runoff").
+    /// Applied after --aliases, from what the scan stored; `pair` says the level it answered at.
+    /// A node's label stays its most frequent surface form.
+    #[arg(long, global = true, value_enum, value_name = "LEVEL")]
+    pub roll_up: Option<RollUpArg>,
     /// Output format (default: table on a terminal, JSON Lines otherwise). `graph` also writes
     /// graphml (its default), gexf and dot.
     #[arg(long, global = true, value_enum)]
@@ -145,6 +154,13 @@ pub enum Command {
     Report(report::ReportArgs),
     /// The variables: surface forms, heads and qualifiers, abbreviations, merge suggestions.
     Variables(variables::VariablesArgs),
+}
+
+/// What `--roll-up` accepts.
+#[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
+pub enum RollUpArg {
+    Abbreviations,
+    Heads,
 }
 
 #[derive(ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
@@ -272,7 +288,24 @@ impl Global {
         let store = self.open_store()?;
         let set = self.pattern_set()?;
         let normalizer = Normalizer::new(&set.lexicon);
-        let aliases = Aliases::new(&normalizer, &self.alias_pairs(&set)?);
+        let mut aliases = Aliases::new(&normalizer, &self.alias_pairs(&set)?);
+        if let Some(r) = self.roll_up {
+            let level = match r {
+                RollUpArg::Abbreviations => Level::Abbreviation,
+                RollUpArg::Heads => Level::Head,
+            };
+            let vocabulary = store
+                .vocabulary()
+                .context("cannot read the store's vocabulary (abbreviations and heads)")?;
+            let abbreviations = vocabulary.abbreviations(|k| aliases.resolve(k).to_string());
+            aliases = roll_up(
+                &aliases,
+                level,
+                &vocabulary.heads(),
+                &abbreviations,
+                &normalizer,
+            );
+        }
         Ok((store, normalizer, aliases))
     }
 

@@ -6,6 +6,7 @@ use super::{escape, ClaimFilter, Format, Global};
 use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::query::{DirectionSummary, PairQuery, PairReport, VarMatch};
+use hearsay::variables::rollup::Level;
 use hearsay::Modality;
 use std::io::Write;
 use std::process::ExitCode;
@@ -15,7 +16,10 @@ use std::process::ExitCode;
     after_help = "X and Y go through the same normalisation (and aliases) as the variables \
 in the store, so \"the algae bloom\" finds \"algae blooms\". Counts: causal claims X → Y \
 and Y → X by modality and polarity, distinct documents, association claims (either order), and \
-co-mentions: sentences naming both with no claim between them. The direction ratio is the share \
+co-mentions: sentences naming both with no claim between them. With --roll-up the \
+counts are at that level (the first line and the JSON field \"level\" say which): with \
+--roll-up heads, X may be a head (\"nitrogen runoff\" counts \"increased nitrogen runoff from \
+fields\"), an abbreviation or its long form. The direction ratio is the share \
 of non-negated causal claims that go X → Y. When a relation has more claims than --evidence \
 shows, a line under the evidence says how many are left out (the table only; JSON has the \
 counts and the evidence list).\n\nExit status: 0 on an answer (also when no claim links the \
@@ -131,6 +135,17 @@ fn line(d: &DirectionSummary) -> String {
 
 pub(super) fn print_table(out: &mut impl Write, r: &PairReport) -> Result<()> {
     let (x, y) = (escape(&name(&r.x)), escape(&name(&r.y)));
+    match r.level {
+        Level::Variable => {}
+        Level::Abbreviation => writeln!(
+            out,
+            "level: abbreviation (--roll-up abbreviations: a short form and its long form count as one variable)"
+        )?,
+        Level::Head => writeln!(
+            out,
+            "level: head (--roll-up heads: qualified variables count as their head; short and long forms as one)"
+        )?,
+    }
     for v in [&r.x, &r.y] {
         if !v.known {
             writeln!(

@@ -74,7 +74,7 @@ pub fn run(g: &Global, a: &VariablesArgs) -> Result<ExitCode> {
     let loaded = g.graph(&a.filter_claims.to_filter())?;
     let abbreviations = loaded
         .abbreviations()
-        .context("cannot read claim sentences from the store")?;
+        .context("cannot read the abbreviations the scan stored")?;
     let mut out = std::io::stdout().lock();
     let needs_merges = a.merges || a.write_aliases.is_some();
     let merges = if needs_merges {

@@ -15,6 +15,7 @@ use crate::claim::{Modality, Polarity};
 use crate::error::StoreError;
 use crate::graph::{ClaimGraph, Filter, Relation};
 use crate::store::{PostingIndex, Store};
+use crate::variables::rollup::Level;
 use crate::variables::{Aliases, Normalizer};
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -71,6 +72,9 @@ pub struct Evidence {
 /// Everything the corpus says about a pair of variables.
 #[derive(Debug, Clone, Serialize)]
 pub struct PairReport {
+    /// The level the variables were counted at (`--roll-up`); absent at the variable level.
+    #[serde(skip_serializing_if = "Level::is_variable")]
+    pub level: Level,
     pub x: VarMatch,
     pub y: VarMatch,
     /// Causal claims x → y.
@@ -129,6 +133,7 @@ pub fn pair_report(
         }
     }
     PairReport {
+        level: Level::Variable,
         x: xm,
         y: ym,
         forward,
@@ -151,9 +156,11 @@ impl Loaded {
         evidence: usize,
     ) -> PairReport {
         let (store, graph) = (&self.store, &self.graph);
-        pair_report(graph, x, y, co_mentions, evidence, |r| {
+        let mut rep = pair_report(graph, x, y, co_mentions, evidence, |r| {
             evidence_text(graph, store, r)
-        })
+        });
+        rep.level = self.aliases.level();
+        rep
     }
 
     /// The pair report of two looked-up variables, co-mentions counted with the sentence index.
@@ -244,8 +251,10 @@ impl PairQuery {
         let co_mentions =
             pair_co_mentions(&mut self.store, &graph, (&x.0.key, x.1), (&y.0.key, y.1))?;
         let store = &self.store;
-        Ok(pair_report(&graph, x, y, co_mentions, evidence, |r| {
+        let mut rep = pair_report(&graph, x, y, co_mentions, evidence, |r| {
             evidence_text(&graph, store, r)
-        }))
+        });
+        rep.level = self.aliases.level();
+        Ok(rep)
     }
 }

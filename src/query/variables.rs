@@ -2,15 +2,15 @@
 //! qualifiers and abbreviations, the merges that look likely, and the nearest variables to a
 //! name that is none.
 //!
-//! Everything is computed from the loaded graph when asked: surface forms from the claim rows,
-//! abbreviation definitions by running [`crate::variables::abbrev`] over the sentences of the
-//! stored claims (the sentences a claim was found in are where its variables are named, and
-//! usually defined), heads by [`crate::variables::heads`], merges by
-//! [`crate::variables::merge`].
+//! Everything but the abbreviations is computed from the loaded graph when asked: surface forms
+//! from the claim rows, heads by [`crate::variables::heads`], merges by
+//! [`crate::variables::merge`]. Abbreviation definitions are those the scan found in every
+//! sentence of every document ([`crate::variables::abbrev`]) and stored
+//! ([`crate::store::Vocabulary`]).
 
 use super::load::Loaded;
 use crate::error::StoreError;
-use crate::variables::abbrev::{self, AbbreviationUse, Abbreviations};
+use crate::variables::abbrev::{AbbreviationUse, Abbreviations};
 use crate::variables::heads;
 use crate::variables::merge::{self, MergeReason, MergeSuggestion, VariableInfo};
 use petgraph::Direction;
@@ -94,25 +94,13 @@ impl Loaded {
             .collect()
     }
 
-    /// Abbreviation definitions in the sentences of the stored claims, each sentence read once,
-    /// pooled per corpus with the documents that define each.
+    /// The abbreviation definitions the scan stored for the corpus's documents, pooled per
+    /// corpus, long forms through the aliases in force.
     pub fn abbreviations(&self) -> Result<Abbreviations, StoreError> {
-        let mut seen: HashSet<(&str, u64)> = HashSet::new();
-        let mut out = Abbreviations::default();
-        for r in &self.graph.rows {
-            if !seen.insert((r.doc.as_str(), r.sentence)) {
-                continue;
-            }
-            let claim = self.store.claim(r.at)?;
-            for d in abbrev::definitions(&claim.sentence) {
-                let long_key = self
-                    .aliases
-                    .resolve(&self.normalizer.key(&d.long))
-                    .to_string();
-                out.add(&r.doc, &d, &long_key);
-            }
-        }
-        Ok(out)
+        Ok(self
+            .store
+            .vocabulary()?
+            .abbreviations(|k| self.aliases.resolve(k).to_string()))
     }
 
     /// Every variable of the graph, with its forms, head, qualifiers and abbreviations; those

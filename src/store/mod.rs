@@ -13,6 +13,8 @@
 //! seg-NNNNNN.post    postings: each variable key of the segment and the rows naming it, so a
 //!                    query about a few variables reads only their rows (see `postings`)
 //! index/             a tantivy index with one entry per sentence, for search and co-mentions
+//! vocabulary-NNNNNN.json.zst  per file, the abbreviations its documents define and the heads
+//!                    of its variable keys, for the generation NNNNNN (see `vocabulary`)
 //! aliases.tsv        the alias file given to `scan --aliases`, if any
 //! lock               held while a scan writes
 //! ```
@@ -44,6 +46,7 @@ mod read;
 mod result;
 mod rows;
 mod scan;
+mod vocabulary;
 mod writer;
 
 #[cfg(test)]
@@ -57,4 +60,5 @@ pub use read::{PostingIndex, Store};
 pub(crate) use rows::test_row;
 pub use rows::{doc_id, ClaimRef, ClaimRow};
 pub use scan::{scan, ScanEvents, ScanOptions, ScanReport};
+pub use vocabulary::{FileVocabulary, StoredDefinition, Vocabulary};
 pub use writer::StoreWriter;

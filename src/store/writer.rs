@@ -8,10 +8,12 @@ use super::manifest::{
 use super::postings::{PostingsBuilder, RowAt};
 use super::result::{FileResult, Spilled, SpilledRecord};
 use super::rows::{ClaimRef, ClaimRow};
+use super::vocabulary::Vocabulary;
 use crate::claim::Claim;
 use crate::corpus::Skipped;
 use crate::error::StoreError;
 use crate::patterns::{Lexicon, PatternSet};
+use crate::variables::Normalizer;
 use std::collections::{BTreeMap, BTreeSet};
 use std::fs::{self, File};
 use std::io::{BufWriter, Write};
@@ -64,6 +66,13 @@ pub struct StoreWriter {
     fields: Fields,
     entries: BTreeMap<String, FileEntry>,
     removed: BTreeSet<String>,
+    /// Abbreviation definitions and heads per file: the previous generation's, with the files
+    /// written here replaced (see `vocabulary`).
+    vocabulary: Vocabulary,
+    /// Files whose vocabulary this writer has started afresh.
+    fresh: BTreeSet<String>,
+    /// Keys for the long forms of definitions.
+    normalizer: Normalizer,
 }
 
 impl StoreWriter {
@@ -110,6 +119,15 @@ impl StoreWriter {
                 }
             }
         }
+        let vocabulary = match Vocabulary::load(dir, &old) {
+            Ok(v) => v,
+            // Deleted by hand: the files read again get theirs back, rather than the store
+            // refusing every scan.
+            Err(StoreError::Io { source, .. }) if source.kind() == std::io::ErrorKind::NotFound => {
+                Vocabulary::default()
+            }
+            Err(e) => return Err(e),
+        };
         let entries = old
             .files
             .iter()
@@ -131,6 +149,9 @@ impl StoreWriter {
             fields,
             entries,
             removed: BTreeSet::new(),
+            vocabulary,
+            fresh: BTreeSet::new(),
+            normalizer: Normalizer::new(lexicon),
         })
     }
 
@@ -147,6 +168,8 @@ impl StoreWriter {
     /// Forget a file that is gone.
     pub fn remove(&mut self, path: &str) -> Result<(), StoreError> {
         self.entries.remove(path);
+        self.vocabulary.forget(path);
+        self.fresh.remove(path);
         self.removed.insert(path.to_string());
         self.index_writer
             .delete_term(Term::from_field_text(self.fields.file, path));
@@ -164,7 +187,17 @@ impl StoreWriter {
         entry.rows = (self.rows, self.rows);
         entry.more_rows.clear();
         self.removed.remove(&entry.path);
+        self.start_vocabulary(&entry.path);
         self.entries.insert(entry.path.clone(), entry);
+    }
+
+    /// The first time this writer writes anything of `path`, its stored vocabulary goes: what
+    /// follows replaces it whole.
+    fn start_vocabulary(&mut self, path: &str) {
+        if !self.fresh.contains(path) {
+            self.vocabulary.forget(path);
+            self.fresh.insert(path.to_string());
+        }
     }
 
     /// The entry of a file begun in this writer, to update its counts.
@@ -182,6 +215,8 @@ impl StoreWriter {
         if !self.entries.contains_key(path) {
             self.begin(FileEntry::new(path));
         }
+        self.start_vocabulary(path);
+        self.vocabulary.add_claims(path, claims);
         let corrupt = |dir: &Path, e: postcard::Error| StoreError::Corrupt {
             path: dir.to_path_buf(),
             message: e.to_string(),
@@ -261,6 +296,9 @@ impl StoreWriter {
         start: u64,
         text: &str,
     ) -> Result<(), StoreError> {
+        self.start_vocabulary(file);
+        self.vocabulary
+            .add_sentence(file, id, text, &self.normalizer);
         let f = self.fields;
         self.index_writer.add_document(
             doc!(f.path => id, f.file => file, f.text => text, f.line => line, f.start => start),
@@ -323,6 +361,7 @@ impl StoreWriter {
         let mut prepared = self.index_writer.prepare_commit()?;
         prepared.set_payload(&generation.to_string());
         prepared.commit()?;
+        self.vocabulary.write(&self.dir, generation)?;
         let manifest = Manifest {
             store_version: STORE_VERSION,
             claim_schema: crate::claim::SCHEMA_VERSION,
@@ -339,6 +378,7 @@ impl StoreWriter {
             message: e.to_string(),
         })?;
         write_atomic(&self.dir.join("manifest.json"), &json)?;
+        Vocabulary::remove_others(&self.dir, generation);
         // Segments nothing refers to any more (and leftovers of killed scans) can go.
         let live = manifest.segments();
         if let Ok(rd) = fs::read_dir(&self.dir) {

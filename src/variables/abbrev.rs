@@ -287,18 +287,23 @@ impl Abbreviations {
     /// Record a definition seen in `doc`; `long_key` is the long form's variable key, so that
     /// "carbon dioxide" and "Carbon Dioxide" count as one meaning.
     pub fn add(&mut self, doc: &str, def: &Definition, long_key: &str) {
+        self.add_form(doc, &def.short, &def.long, long_key);
+    }
+
+    /// Record a definition given by its two forms as written (as the store keeps them).
+    pub fn add_form(&mut self, doc: &str, short: &str, long: &str, long_key: &str) {
         // Latin connectives pass the published short-form test ("(i.e., the interaction …)")
         // but never abbreviate the words beside them.
         let latin = ["i.e.", "e.g.", "cf.", "etc.", "viz.", "vs.", "ie", "eg"];
-        if long_key.is_empty() || latin.contains(&def.short.to_lowercase().as_str()) {
+        if long_key.is_empty() || latin.contains(&short.to_lowercase().as_str()) {
             return;
         }
         let entry = self
             .by_short
-            .entry(def.short.clone())
+            .entry(short.to_string())
             .or_default()
             .entry(long_key.to_string())
-            .or_insert_with(|| (def.long.clone(), BTreeSet::new()));
+            .or_insert_with(|| (long.to_string(), BTreeSet::new()));
         entry.1.insert(doc.to_string());
     }
 
@@ -314,6 +319,15 @@ impl Abbreviations {
                 short: short.clone(),
                 longs,
             }
+        })
+    }
+
+    /// Every (short form as written, long-form key, documents defining it so), sorted.
+    pub fn meanings(&self) -> impl Iterator<Item = (&str, &str, usize)> + '_ {
+        self.by_short.iter().flat_map(|(s, longs)| {
+            longs
+                .iter()
+                .map(move |(l, (_, docs))| (s.as_str(), l.as_str(), docs.len()))
         })
     }
 

@@ -236,42 +236,35 @@ fn is_number(word: &str) -> bool {
 
 /// Does the word at `i` start a participial qualifier? An "-ed" word followed by a preposition
 /// or an "-ly" adverb ("made exclusively in"), or an "-ing" word followed by a determiner
-/// ("seizing the system").
-fn starts_participle(words: &[&str], i: usize) -> bool {
-    let w = bare(words[i]);
-    let Some(next) = words.get(i + 1).map(|n| bare(n)) else {
+/// ("seizing the system"). `bares` are the words as [`bare`] gives them.
+fn starts_participle(bares: &[String], i: usize) -> bool {
+    let w = &bares[i];
+    let Some(next) = bares.get(i + 1) else {
         return false;
     };
-    (w.ends_with("ed") && w.len() > 4 && (is_in(PREPOSITIONS, &next) || next.ends_with("ly")))
-        || (w.ends_with("ing") && w.len() > 5 && is_in(DETERMINERS, &next))
+    (w.ends_with("ed") && w.len() > 4 && (is_in(PREPOSITIONS, next) || next.ends_with("ly")))
+        || (w.ends_with("ing") && w.len() > 5 && is_in(DETERMINERS, next))
+}
+
+/// A word left over at a span's edge: a determiner, preposition, conjunction or punctuation.
+fn edge_word(b: &str) -> bool {
+    is_in(DETERMINERS, b) || is_in(PREPOSITIONS, b) || is_in(EDGE_WORDS, b) || b.is_empty()
 }
 
 /// Split a variable phrase into its head and qualifiers (see the module notes for the rules).
 pub fn split(phrase: &str) -> HeadSplit {
-    let mut words: Vec<&str> = phrase.split_whitespace().collect();
+    let all: Vec<&str> = phrase.split_whitespace().collect();
+    // Each word as the lists see it, once (extraction splits every claim's slots).
+    let all_bare: Vec<String> = all.iter().map(|w| bare(w)).collect();
     // 1. Edges.
-    while let Some(first) = words.first().map(|w| bare(w)) {
-        let droppable = is_in(DETERMINERS, &first)
-            || is_in(PREPOSITIONS, &first)
-            || is_in(EDGE_WORDS, &first)
-            || first.is_empty();
-        if droppable && words.len() > 1 {
-            words.remove(0);
-        } else {
-            break;
-        }
+    let (mut lo, mut hi) = (0, all.len());
+    while hi - lo > 1 && edge_word(&all_bare[lo]) {
+        lo += 1;
     }
-    while let Some(last) = words.last().map(|w| bare(w)) {
-        let droppable = is_in(DETERMINERS, &last)
-            || is_in(PREPOSITIONS, &last)
-            || is_in(EDGE_WORDS, &last)
-            || last.is_empty();
-        if droppable && words.len() > 1 {
-            words.pop();
-        } else {
-            break;
-        }
+    while hi - lo > 1 && edge_word(&all_bare[hi - 1]) {
+        hi -= 1;
     }
+    let (words, bares) = (&all[lo..hi], &all_bare[lo..hi]);
     // 2. Pre-qualifiers.
     let mut qualifiers = Vec::new();
     let mut start = 0;
@@ -280,45 +273,44 @@ pub fn split(phrase: &str) -> HeadSplit {
         if rest < 2 {
             break;
         }
-        let w = bare(words[start]);
-        if is_in(PRE_QUALIFIERS, &w) || is_number(&w) {
+        let w = bares[start].as_str();
+        if is_in(PRE_QUALIFIERS, w) || is_number(w) {
             qualifiers.push(clean(words[start]));
             start += 1;
         } else if rest >= 3
-            && is_in(CHANGE_NOUNS, &w)
-            && matches!(bare(words[start + 1]).as_str(), "in" | "of")
+            && is_in(CHANGE_NOUNS, w)
+            && matches!(bares[start + 1].as_str(), "in" | "of")
         {
             qualifiers.push(format!("{} {}", words[start], words[start + 1]));
             start += 2;
-        } else if is_in(DETERMINERS, &w) {
+        } else if is_in(DETERMINERS, w) {
             start += 1;
         } else {
             break;
         }
     }
     // 3. Post-qualifiers.
-    let body = &words[start..];
+    let (body, bb) = (&words[start..], &bares[start..]);
     let mut head_end = body.len();
     let mut post: Vec<String> = Vec::new();
     let mut i = 1;
     while i < body.len() {
-        let w = bare(body[i]);
-        let prev = bare(body[i - 1]);
-        let complement = matches!(w.as_str(), "to" | "for")
-            && is_in(COMPLEMENT_NOUNS, &prev)
+        let w = bb[i].as_str();
+        let complement = matches!(w, "to" | "for")
+            && is_in(COMPLEMENT_NOUNS, &bb[i - 1])
             && head_end == body.len();
-        if is_in(RELATIVES, &w) || starts_participle(body, i) {
+        if is_in(RELATIVES, w) || starts_participle(bb, i) {
             head_end = head_end.min(i);
             post.push(body[i..].join(" "));
             break;
         }
-        if is_in(PREPOSITIONS, &w) && !complement {
+        if is_in(PREPOSITIONS, w) && !complement {
             head_end = head_end.min(i);
             // Runs to the next qualifier start.
             let mut j = i + 1;
             while j < body.len() {
-                let wj = bare(body[j]);
-                if is_in(PREPOSITIONS, &wj) || is_in(RELATIVES, &wj) || starts_participle(body, j) {
+                let wj = bb[j].as_str();
+                if is_in(PREPOSITIONS, wj) || is_in(RELATIVES, wj) || starts_participle(bb, j) {
                     break;
                 }
                 j += 1;

@@ -7,12 +7,13 @@
 //! so changing an alias file needs no rescan.
 //!
 //! The public face: [`Normalizer`] (span text → key), [`Aliases`] (key → key, applied when the
-//! graph is built), [`stem`] and [`StemCache`] (the one stemmer, shared with the sentence index)
+//! graph is built; [`rollup`] makes them count abbreviations or heads as one variable), [`stem`] and [`StemCache`] (the one stemmer, shared with the sentence index)
 //! and [`dropped_words`] (the words keys leave out, which the index leaves out too).
 
 pub mod abbrev;
 pub mod heads;
 pub mod merge;
+pub mod rollup;
 
 use crate::patterns::Lexicon;
 use compact_str::CompactString;
@@ -139,10 +140,12 @@ impl Normalizer {
     }
 }
 
-/// A key → key mapping built from alias pairs in surface form.
+/// A key → key mapping built from alias pairs in surface form, and the level it counts
+/// variables at (a roll-up, [`rollup::roll_up`], is aliases too).
 #[derive(Debug, Clone, Default)]
 pub struct Aliases {
     map: HashMap<String, String>,
+    level: rollup::Level,
 }
 
 impl Aliases {
@@ -155,7 +158,16 @@ impl Aliases {
                 map.entry(f).or_insert(t);
             }
         }
-        Aliases { map }
+        Aliases {
+            map,
+            level: rollup::Level::Variable,
+        }
+    }
+
+    /// The level these aliases count variables at: [`rollup::Level::Variable`] unless they are
+    /// a roll-up.
+    pub fn level(&self) -> rollup::Level {
+        self.level
     }
 
     /// The variable a key stands for.

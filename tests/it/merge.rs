@@ -102,6 +102,20 @@ fn merged_shards_equal_a_scan_claim_for_claim_and_count_for_count() {
             .collect::<Vec<_>>()
     };
     assert_eq!(totals(&scanned), totals(&merged));
+    // The vocabulary comes through the same writer calls: the same abbreviations, and the same
+    // graph counted at the head level.
+    let abbreviations = out(&["variables", "--abbreviations", "-n", "0"], &scanned);
+    assert!(abbreviations.contains("\"short\""), "{abbreviations}");
+    assert_eq!(
+        abbreviations,
+        out(&["variables", "--abbreviations", "-n", "0"], &merged)
+    );
+    let heads = out(&["--roll-up", "heads", "top", "-n", "0"], &scanned);
+    assert_ne!(heads, top, "the roll-up changes the counts");
+    assert_eq!(
+        heads,
+        out(&["--roll-up", "heads", "top", "-n", "0"], &merged)
+    );
 }
 
 #[test]

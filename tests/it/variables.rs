@@ -4,7 +4,7 @@
 //! their own modules (`variables::abbrev`, `variables::heads`).
 
 use crate::common::*;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 fn run(store: &Path, args: &[&str]) -> std::process::Output {
     hearsay()
@@ -146,4 +146,211 @@ fn pair_with_an_unknown_name_suggests_the_nearest_and_exits_3() {
     let out = run(&store, &["claims", "--cause", "algal bloom"]);
     assert_eq!(out.status.code(), Some(3));
     assert!(String::from_utf8_lossy(&out.stderr).contains("algae blooms (32 claims"));
+}
+
+/// The forward claim count and level of `pair X Y` (JSON), with the extra global options.
+fn forward(store: &Path, opts: &[&str], x: &str, y: &str) -> (u64, String) {
+    let mut args: Vec<&str> = opts.to_vec();
+    args.extend(["--format", "json", "pair", x, y]);
+    let out = run(store, &args);
+    assert!(out.status.success(), "{args:?}: {out:?}");
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let level = v["level"].as_str().unwrap_or("variable").to_string();
+    (v["forward"]["claims"].as_u64().unwrap(), level)
+}
+
+/// A store of `tests/data/rollup/`: sentences of four eLife articles, copied verbatim (SOURCE:
+/// /work/shared/data/elife-articles/SOURCE.txt; CC BY, each article's DOI is
+/// 10.7554/eLife.NNNNN for its file name; tests/data/rollup/README.md).
+fn rollup_store(dir: &Path) -> (PathBuf, PathBuf) {
+    let corpus = dir.join("corpus");
+    copy_tree(&root().join("tests/data/rollup"), &corpus);
+    std::fs::remove_file(corpus.join("README.md")).unwrap();
+    let store = dir.join("store");
+    succeeded(
+        hearsay()
+            .arg("--store")
+            .arg(&store)
+            .args(["-q", "scan"])
+            .arg(&corpus),
+    );
+    (corpus, store)
+}
+
+/// `pair` answers by abbreviation, by long form and by head at the levels `--roll-up` asks for,
+/// and says which. The counts follow from the sentences: three articles define "ROS" as
+/// "reactive oxygen species" (so it is an unambiguous corpus-wide short form); elife01293
+/// states ROS → MEND, elife01295 ROS → "MEND in BHK cells" (head "MEND"), elife02935 states
+/// "reactive oxygen species" → mitochondrial DNA mutations, elife12523 "increases in ROS" →
+/// activation of microglia (head "ROS").
+#[test]
+fn pair_answers_by_abbreviation_long_form_and_head() {
+    let tmp = tempfile::tempdir().unwrap();
+    let (_, store) = rollup_store(tmp.path());
+    let (abbr, heads) = (
+        &["--roll-up", "abbreviations"][..],
+        &["--roll-up", "heads"][..],
+    );
+    // Default: each variable as extracted, and no level field.
+    assert_eq!(forward(&store, &[], "ROS", "MEND"), (1, "variable".into()));
+    assert_eq!(forward(&store, &[], "reactive oxygen species", "MEND").0, 0);
+    assert_eq!(
+        forward(&store, &[], "ROS", "mitochondrial DNA mutations").0,
+        0
+    );
+    assert_eq!(forward(&store, &[], "ROS", "activation of microglia").0, 0);
+    // By abbreviation: "ROS" finds the claim stated with the long form.
+    assert_eq!(
+        forward(&store, abbr, "ROS", "mitochondrial DNA mutations"),
+        (1, "abbreviation".into())
+    );
+    // By long form: "reactive oxygen species" finds the claims stated with "ROS".
+    assert_eq!(
+        forward(&store, abbr, "reactive oxygen species", "MEND"),
+        (1, "abbreviation".into())
+    );
+    // By head: "MEND" also counts "MEND in BHK cells", "ROS" also "increases in ROS".
+    assert_eq!(forward(&store, heads, "ROS", "MEND"), (2, "head".into()));
+    assert_eq!(
+        forward(&store, heads, "reactive oxygen species", "MEND"),
+        (2, "head".into())
+    );
+    assert_eq!(
+        forward(&store, heads, "ROS", "activation of microglia"),
+        (1, "head".into())
+    );
+    // The table says the level too.
+    let out = run(
+        &store,
+        &[
+            "--roll-up",
+            "heads",
+            "--format",
+            "table",
+            "pair",
+            "ROS",
+            "MEND",
+        ],
+    );
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.starts_with("level: head"), "{text}");
+}
+
+/// The `variables --abbreviations` rows as (short, [(long, documents)]).
+fn abbreviations(store: &Path) -> Vec<(String, Vec<(String, u64)>)> {
+    json_lines(&["variables", "--abbreviations", "-n", "0"], store)
+        .iter()
+        .map(|r| {
+            let longs = r["longs"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|l| (l[0].as_str().unwrap().to_string(), l[1].as_u64().unwrap()))
+                .collect();
+            (r["short"].as_str().unwrap().to_string(), longs)
+        })
+        .collect()
+}
+
+/// Definitions are stored per file at scan time: a re-scan drops those of a changed or deleted
+/// file, and a short form defined two ways stays split, is listed with both meanings, and is
+/// no longer merged. Sentences as in `pair_answers_by_abbreviation_long_form_and_head`; the
+/// second meaning is elife01293's own "reactive oxygen (ROS)" (SOURCE:
+/// /work/shared/data/elife-articles/SOURCE.txt).
+#[test]
+fn rescans_keep_stored_abbreviations_per_file() {
+    let tmp = tempfile::tempdir().unwrap();
+    let (corpus, store) = rollup_store(tmp.path());
+    let rescan = || {
+        succeeded(
+            hearsay()
+                .arg("--store")
+                .arg(&store)
+                .args(["-q", "scan"])
+                .arg(&corpus),
+        )
+    };
+    let ros = |store: &Path| {
+        abbreviations(store)
+            .into_iter()
+            .find(|(s, _)| s == "ROS")
+            .map(|(_, l)| l)
+            .unwrap_or_default()
+    };
+    assert_eq!(
+        ros(&store),
+        vec![("reactive oxygen species".to_string(), 3)]
+    );
+    // A changed file: elife12523 without its defining sentence.
+    let f = corpus.join("elife12523.txt");
+    let text = std::fs::read_to_string(&f).unwrap();
+    let kept: Vec<&str> = text.lines().filter(|l| !l.contains("(ROS)")).collect();
+    assert_eq!(kept.len(), 1);
+    std::fs::write(&f, kept.join("\n") + "\n").unwrap();
+    rescan();
+    assert_eq!(
+        ros(&store),
+        vec![("reactive oxygen species".to_string(), 2)]
+    );
+    // A deleted file.
+    std::fs::remove_file(corpus.join("elife02935.txt")).unwrap();
+    rescan();
+    assert_eq!(
+        ros(&store),
+        vec![("reactive oxygen species".to_string(), 1)]
+    );
+    // Two files defining PD two ways (elife08440, elife02523): both meanings are listed,
+    // marked ambiguous, and the short form is not merged.
+    std::fs::write(
+        corpus.join("elife08440.txt"),
+        "Parkinson's disease (PD) is the second most common neurodegenerative illness.\n",
+    )
+    .unwrap();
+    std::fs::write(
+        corpus.join("elife02523.txt"),
+        "Pharmacodynamic (PD) markers would be useful to determine when cells are responding \
+         to system xc\u{2212} inhibition, such as in response to erastin treatment.\n",
+    )
+    .unwrap();
+    rescan();
+    let pd = abbreviations(&store)
+        .into_iter()
+        .find(|(s, _)| s == "PD")
+        .map(|(_, l)| l)
+        .unwrap_or_default();
+    let mut meanings: Vec<&str> = pd.iter().map(|(l, _)| l.as_str()).collect();
+    meanings.sort();
+    assert_eq!(meanings, ["Parkinson's disease", "Pharmacodynamic"]);
+    let csv = run(
+        &store,
+        &["--format", "csv", "variables", "--abbreviations", "PD"],
+    );
+    let text = String::from_utf8_lossy(&csv.stdout);
+    assert!(
+        text.lines().nth(1).is_some_and(|l| l.ends_with(",true")),
+        "ambiguous is marked: {text}"
+    );
+    let out = run(
+        &store,
+        &[
+            "--roll-up",
+            "abbreviations",
+            "--format",
+            "json",
+            "pair",
+            "PD",
+            "ROS",
+        ],
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["x"]["key"], "pd", "an ambiguous short form stays itself");
+    // ROS is now defined in one document only: no longer a corpus-wide alias.
+    assert_eq!(v["y"]["key"], "ros");
+    // Each commit replaced the vocabulary file of the generation before.
+    let vocabularies: Vec<String> = std::fs::read_dir(&store)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.starts_with("vocabulary-"))
+        .collect();
+    assert_eq!(vocabularies, ["vocabulary-000004.json.zst"]);
 }

@@ -7,6 +7,7 @@ use crate::claim::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::extract::cues::{CueMatch, SlotPlace};
 use crate::extract::tokens::{collapse, tokenize, Token};
 use crate::patterns::{Lexicon, PatternToken};
+use crate::variables::heads;
 
 /// What deciding the slots of one cue match needs: the match, its tokens, the sentence and its
 /// neighbour, where it came from.
@@ -394,6 +395,16 @@ impl Extractor {
             notes.push(format!("the effect's sign word makes it an {s}"));
             polarity = s;
         }
+        // Heads are split from the text the key was made from, so the head key is the key's
+        // own words less the qualifiers'.
+        let (chead, ehead) = (
+            heads::split(&cause.key_text),
+            heads::split(&effect.key_text),
+        );
+        let (chead_key, ehead_key) = (
+            self.head_key(&chead.head, &cause.key_text, &ckey),
+            self.head_key(&ehead.head, &effect.key_text, &ekey),
+        );
         Ok(Claim {
             schema: SCHEMA_VERSION,
             confidence: 0.0, // set by the pipeline (crate::extract::confidence)
@@ -403,6 +414,9 @@ impl Extractor {
                 start: cause.start,
                 end: cause.end,
                 pronoun: cause.pronoun.clone(),
+                head_key: chead_key,
+                head: chead.head,
+                qualifiers: chead.qualifiers,
             },
             effect: Slot {
                 text: effect.text.clone(),
@@ -410,6 +424,9 @@ impl Extractor {
                 start: effect.start,
                 end: effect.end,
                 pronoun: effect.pronoun.clone(),
+                head_key: ehead_key,
+                head: ehead.head,
+                qualifiers: ehead.qualifiers,
             },
             kind: spec.kind,
             polarity,
@@ -428,6 +445,20 @@ impl Extractor {
             cross_sentence,
             attribution: None,
         })
+    }
+
+    /// The key of a slot's head (`key` that of its `text`): the slot's own key when the head
+    /// is the whole text (most are) or has no content word of its own.
+    fn head_key(&self, head: &str, text: &str, key: &str) -> String {
+        if head == text.trim() {
+            return key.to_string();
+        }
+        let k = self.normalizer.key(head);
+        if k.is_empty() {
+            key.to_string()
+        } else {
+            k
+        }
     }
 
     /// "initiatives by the sectors to improve arrangements", "steps are taken to improve": a

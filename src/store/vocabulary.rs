@@ -1,0 +1,286 @@
+//! What the store remembers about the names in each file: the abbreviations its documents
+//! define, and the head of every variable key its claims use. Queries read both from here
+//! instead of detecting them again: `variables --abbreviations` and the merge suggestions read
+//! the definitions, and the head roll-up (`--roll-up`) reads the heads.
+//!
+//! One file a store generation, `vocabulary-NNNNNN.json.zst` (JSON, zstd-compressed; NNNNNN is
+//! the manifest's generation), written
+//! before the manifest that names that generation and found through it, so a scan killed before
+//! its commit leaves the previous generation's file in force. A writer starts from the
+//! previous generation's entries; a file read again replaces its entry whole and a file gone
+//! loses it, so a re-scan drops the definitions of a changed or deleted file. Definitions are
+//! found in every sentence the writer indexes (scan and merge alike); heads are counted from
+//! the claims it stores (`Slot::head_key`).
+
+use super::manifest::{write_atomic, Manifest};
+use super::read::Store;
+use crate::claim::Claim;
+use crate::error::StoreError;
+use crate::variables::abbrev::{self, Abbreviations};
+use crate::variables::Normalizer;
+use serde::{Deserialize, Serialize};
+use std::collections::{BTreeMap, HashMap};
+use std::fs;
+use std::path::{Path, PathBuf};
+
+/// One abbreviation definition as stored: where, the two forms as written, and the long form's
+/// variable key (before aliases, which a query applies).
+#[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
+pub struct StoredDefinition {
+    /// The document id (`path`, or `path#record`).
+    pub doc: String,
+    pub short: String,
+    pub long: String,
+    pub long_key: String,
+}
+
+/// What one input file contributes.
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct FileVocabulary {
+    /// Each distinct definition of the file's documents once, in the order first found.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub definitions: Vec<StoredDefinition>,
+    /// Variable key → (head key, claim slots with that key and head); "" stands for the key
+    /// itself (a slot with no qualifier), which most are. A list, not a map: most keys have one
+    /// head, and a map per key cost a scan of eLife 40 MB more memory.
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub heads: BTreeMap<String, Vec<(String, u32)>>,
+}
+
+/// The vocabulary of every file of a store generation, by path.
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Vocabulary {
+    pub files: BTreeMap<String, FileVocabulary>,
+}
+
+/// The file name of a generation's vocabulary.
+fn file_name(generation: u64) -> String {
+    format!("vocabulary-{generation:06}.json.zst")
+}
+
+/// zstd level of the vocabulary file (the library's default trade of speed for size).
+const LEVEL: i32 = 3;
+
+fn path_of(dir: &Path, generation: u64) -> PathBuf {
+    dir.join(file_name(generation))
+}
+
+impl Vocabulary {
+    /// The vocabulary the manifest's generation committed, with only the files the manifest
+    /// holds. A store never committed has none.
+    pub(super) fn load(dir: &Path, manifest: &Manifest) -> Result<Vocabulary, StoreError> {
+        if manifest.generation == 0 {
+            return Ok(Vocabulary::default());
+        }
+        let p = path_of(dir, manifest.generation);
+        let file = fs::File::open(&p).map_err(|e| StoreError::io(&p, e))?;
+        let json = zstd::stream::Decoder::new(file).map_err(|e| StoreError::io(&p, e))?;
+        let reader = std::io::BufReader::new(json);
+        let mut v: Vocabulary =
+            serde_json::from_reader(reader).map_err(|e| StoreError::Corrupt {
+                path: p.clone(),
+                message: e.to_string(),
+            })?;
+        let live: std::collections::BTreeSet<&str> =
+            manifest.files.iter().map(|f| f.path.as_str()).collect();
+        v.files.retain(|path, _| live.contains(path.as_str()));
+        Ok(v)
+    }
+
+    /// Write this generation's file (atomically), before the manifest that names it.
+    pub(super) fn write(&self, dir: &Path, generation: u64) -> Result<(), StoreError> {
+        let json = serde_json::to_vec(self).map_err(|e| StoreError::Corrupt {
+            path: dir.to_path_buf(),
+            message: e.to_string(),
+        })?;
+        let p = path_of(dir, generation);
+        let bytes = zstd::bulk::compress(&json, LEVEL).map_err(|e| StoreError::io(&p, e))?;
+        write_atomic(&p, &bytes)
+    }
+
+    /// Remove every generation's file but `generation`'s (after its manifest is on disk).
+    pub(super) fn remove_others(dir: &Path, generation: u64) {
+        let keep = file_name(generation);
+        if let Ok(rd) = fs::read_dir(dir) {
+            for e in rd.flatten() {
+                let name = e.file_name().to_string_lossy().into_owned();
+                if name.starts_with("vocabulary-") && name != keep {
+                    let _ = fs::remove_file(e.path());
+                }
+            }
+        }
+    }
+
+    /// Forget a file (read again from the start, or gone).
+    pub(super) fn forget(&mut self, path: &str) {
+        self.files.remove(path);
+    }
+
+    /// Count the heads of stored claims' slots under their file.
+    pub(super) fn add_claims(&mut self, path: &str, claims: &[Claim]) {
+        let f = self.files.entry(path.to_string()).or_default();
+        for c in claims {
+            for s in [&c.cause, &c.effect] {
+                if s.head_key.is_empty() {
+                    continue;
+                }
+                let head = if s.head_key == s.key {
+                    ""
+                } else {
+                    s.head_key.as_str()
+                };
+                let heads = f.heads.entry(s.key.clone()).or_default();
+                match heads.iter_mut().find(|(h, _)| h == head) {
+                    Some((_, n)) => *n += 1,
+                    None => heads.push((head.to_string(), 1)),
+                }
+            }
+        }
+    }
+
+    /// Add the abbreviation definitions of one sentence of document `doc` of file `path`.
+    pub(super) fn add_sentence(
+        &mut self,
+        path: &str,
+        doc: &str,
+        text: &str,
+        normalizer: &Normalizer,
+    ) {
+        if !text.contains('(') {
+            return;
+        }
+        let defs = abbrev::definitions(text);
+        if defs.is_empty() {
+            return;
+        }
+        let f = self.files.entry(path.to_string()).or_default();
+        for d in defs {
+            let s = StoredDefinition {
+                doc: doc.to_string(),
+                long_key: normalizer.key(&d.long),
+                short: d.short,
+                long: d.long,
+            };
+            if !s.long_key.is_empty() && !f.definitions.contains(&s) {
+                f.definitions.push(s);
+            }
+        }
+    }
+
+    /// The definitions pooled per corpus, long-form keys through `resolve` (the aliases in
+    /// force), in file order.
+    pub fn abbreviations(&self, resolve: impl Fn(&str) -> String) -> Abbreviations {
+        let mut out = Abbreviations::default();
+        for f in self.files.values() {
+            for d in &f.definitions {
+                out.add_form(&d.doc, &d.short, &d.long, &resolve(&d.long_key));
+            }
+        }
+        out
+    }
+
+    /// Each variable key with the head key most of its claim slots have (ties: the shorter
+    /// head, then the first in order), over every file.
+    pub fn heads(&self) -> HashMap<String, String> {
+        let mut pooled: HashMap<&str, BTreeMap<&str, u64>> = HashMap::new();
+        for f in self.files.values() {
+            for (key, heads) in &f.heads {
+                let e = pooled.entry(key.as_str()).or_default();
+                for (h, n) in heads {
+                    let h = if h.is_empty() {
+                        key.as_str()
+                    } else {
+                        h.as_str()
+                    };
+                    *e.entry(h).or_default() += u64::from(*n);
+                }
+            }
+        }
+        pooled
+            .into_iter()
+            .filter_map(|(key, heads)| {
+                heads
+                    .into_iter()
+                    .max_by(|a, b| {
+                        a.1.cmp(&b.1)
+                            .then_with(|| b.0.len().cmp(&a.0.len()))
+                            .then_with(|| b.0.cmp(a.0))
+                    })
+                    .map(|(h, _)| (key.to_string(), h.to_string()))
+            })
+            .collect()
+    }
+}
+
+impl Store {
+    /// The store's vocabulary: each file's abbreviation definitions and variable heads, as the
+    /// last scan or merge stored them.
+    pub fn vocabulary(&self) -> Result<Vocabulary, StoreError> {
+        Vocabulary::load(&self.dir, &self.manifest)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::patterns::PatternSet;
+
+    fn claim(cause: (&str, &str), effect: (&str, &str)) -> Claim {
+        serde_json::from_value(serde_json::json!({
+            "schema": crate::claim::SCHEMA_VERSION,
+            "cause": {"text": cause.0, "key": cause.0, "start": 0, "end": 1, "head": cause.1, "head_key": cause.1},
+            "effect": {"text": effect.0, "key": effect.0, "start": 2, "end": 3, "head": effect.1, "head_key": effect.1},
+            "kind": "causal", "polarity": "increase", "modality": "asserted", "cue": "raise",
+            "sentence": "s", "source": {"path": "a.txt", "line": 1, "column": 1, "start": 0, "end": 1},
+            "confidence": 0.5,
+        }))
+        .unwrap()
+    }
+
+    /// A key's head is the one most of its slots have over every file; a slot without
+    /// qualifiers votes for the key itself; a forgotten file no longer votes.
+    #[test]
+    fn heads_are_voted_over_files_and_forgotten_with_them() {
+        let mut v = Vocabulary::default();
+        v.add_claims("a.txt", &[claim(("x in y", "x"), ("z", "z"))]);
+        v.add_claims("b.txt", &[claim(("x in y", "x"), ("z", "z"))]);
+        v.add_claims("c.txt", &[claim(("x in y", "x in y"), ("z", "z"))]);
+        let h = v.heads();
+        assert_eq!(h["x in y"], "x");
+        assert_eq!(h["z"], "z");
+        assert_eq!(v.files["a.txt"].heads["z"], vec![(String::new(), 1)]);
+        v.forget("a.txt");
+        // One vote each: the shorter head wins the tie.
+        assert_eq!(v.heads()["x in y"], "x");
+        v.forget("b.txt");
+        assert_eq!(v.heads()["x in y"], "x in y");
+    }
+
+    /// Definitions are kept once per document, with their long form's key, and pooled per
+    /// corpus with the documents defining each meaning.
+    #[test]
+    fn definitions_are_kept_once_and_pooled() {
+        let set = PatternSet::builtin().unwrap();
+        let n = Normalizer::new(&set.lexicon);
+        let mut v = Vocabulary::default();
+        let s = "Soil organic carbon (SOC) rose, and SOC (soil organic carbon) fell.";
+        v.add_sentence("a.txt", "a.txt", s, &n);
+        v.add_sentence("a.txt", "a.txt", s, &n);
+        v.add_sentence("b.txt", "b.txt", "Reactive oxygen species (ROS) rose.", &n);
+        v.add_sentence("b.txt", "b.txt", "No parenthesis here.", &n);
+        assert_eq!(
+            v.files["a.txt"].definitions.len(),
+            2,
+            "{:?}",
+            v.files["a.txt"]
+        );
+        assert_eq!(
+            v.files["a.txt"].definitions[0].long_key,
+            n.key("soil organic carbon")
+        );
+        let pooled: Vec<_> = v.abbreviations(|k| k.to_string()).uses().collect();
+        let soc = pooled.iter().find(|u| u.short == "SOC").unwrap();
+        assert_eq!(soc.longs, vec![("Soil organic carbon".to_string(), 1)]);
+        assert!(pooled.iter().any(|u| u.short == "ROS"));
+    }
+}
