@@ -39,7 +39,7 @@ pub struct MatrixArgs {
 }
 
 pub fn run(g: &Global, a: &MatrixArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, false)?;
     let vars = read_vars(&loaded, &a.vars)?;
     for (name, key) in &vars {
         if !loaded.graph.index.contains_key(key) {

@@ -3,7 +3,7 @@
 use super::args::WeightArgs;
 use super::output::{count, find_var, print_evidence};
 use super::{escape, write_rows, ClaimFilter, Format, Global};
-use anyhow::Result;
+use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::graph::{self, Chain, Sign};
 use hearsay::query::HopEvidence;
@@ -59,7 +59,7 @@ struct ChainOut<'a> {
 }
 
 pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, false)?;
     let (x, y) = (find_var(&loaded, &a.x)?, find_var(&loaded, &a.y)?);
     let spec = a.weight.spec();
     let chains: Vec<Chain> = graph::paths(
@@ -71,15 +71,20 @@ pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
         a.min_weight,
         a.limit,
     );
+    let hops: Vec<&[_]> = chains.iter().map(|c| c.hops.as_slice()).collect();
+    let evidence = loaded
+        .chains_evidence(&hops, a.evidence)
+        .context("cannot read the evidence of the chains")?;
     let outs: Vec<ChainOut> = chains
         .iter()
+        .zip(evidence)
         .enumerate()
-        .map(|(i, c)| ChainOut {
+        .map(|(i, (c, hops))| ChainOut {
             rank: i + 1,
             support: c.support,
             product: c.product,
             sign: c.sign,
-            hops: loaded.hops(&c.hops, a.evidence),
+            hops,
         })
         .collect();
     let mut out = std::io::stdout().lock();

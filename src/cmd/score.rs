@@ -84,7 +84,7 @@ fn write_curve(out: &mut impl Write, curve: &[Scores]) -> Result<()> {
 }
 
 pub fn run(g: &Global, a: &ScoreArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, false)?;
     let reference = Reference::load(&a.truth, &loaded.normalizer, &loaded.aliases)
         .context("cannot read the reference diagram")?;
     let spec = a.weight.spec();

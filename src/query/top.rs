@@ -1,5 +1,6 @@
 //! `top`: the most-stated relations, causal and association.
 
+use super::aggregate::Aggregated;
 use crate::claim::{Kind, Modality};
 use crate::graph::{ClaimGraph, Relation, Sign};
 use petgraph::graph::NodeIndex;
@@ -30,7 +31,7 @@ pub struct TopRelation {
 pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<TopRelation> {
     let mut out = Vec::new();
     let mut push = |kind: Kind, a: NodeIndex, b: NodeIndex, rel: &Relation| {
-        if rel.docs.len() < min_docs || rel.counts.total < min_claims {
+        if rel.documents() < min_docs || rel.counts.total < min_claims {
             return;
         }
         let first = rel
@@ -44,7 +45,7 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
             effect: g.graph[b].label.clone(),
             cause_key: g.graph[a].key.clone(),
             effect_key: g.graph[b].key.clone(),
-            documents: rel.docs.len(),
+            documents: rel.documents(),
             claims: rel.counts.total,
             asserted: rel.counts.modality(Modality::Asserted),
             hedged: rel.counts.modality(Modality::Hedged),
@@ -73,6 +74,13 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
         };
         push(Kind::Association, a, b, rel);
     }
+    rank(&mut out);
+    out
+}
+
+/// Ranked by distinct documents, then claims, then the keys and the kind: a total order, so no
+/// two relations tie.
+fn rank(out: &mut [TopRelation]) {
     out.sort_by(|x, y| {
         y.documents
             .cmp(&x.documents)
@@ -81,6 +89,45 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
             .then_with(|| x.effect_key.cmp(&y.effect_key))
             .then(x.kind.cmp(&y.kind))
     });
+}
+
+/// [`top_relations`] from a store's aggregates: the same lines as from the graph of every row
+/// with no filter.
+pub fn top_from_aggregates(
+    agg: &Aggregated,
+    min_docs: usize,
+    min_claims: usize,
+) -> Vec<TopRelation> {
+    let mut out = Vec::new();
+    for rel in &agg.relations {
+        if rel.docs < min_docs || rel.counts.total < min_claims {
+            continue;
+        }
+        // An association is shown as its first claim states it (see `top_relations`).
+        let (a, b) = if rel.kind == Kind::Association && rel.first_cause == rel.b {
+            (&rel.b, &rel.a)
+        } else {
+            (&rel.a, &rel.b)
+        };
+        let c = &rel.counts;
+        out.push(TopRelation {
+            kind: rel.kind,
+            cause: agg.label(a),
+            effect: agg.label(b),
+            cause_key: a.clone(),
+            effect_key: b.clone(),
+            documents: rel.docs,
+            claims: c.total,
+            asserted: c.modality(Modality::Asserted),
+            hedged: c.modality(Modality::Hedged),
+            negated: c.modality(Modality::Negated),
+            conditional: c.modality(Modality::Conditional),
+            question: c.modality(Modality::Question),
+            sign: Sign::of_counts(c),
+            first: format!("{}:{}", rel.first_doc, rel.first_line),
+        });
+    }
+    rank(&mut out);
     out
 }
 

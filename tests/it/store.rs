@@ -429,7 +429,7 @@ fn every_store_file_damaged_in_turn_gives_an_error_naming_it() {
         }
     }
     files.sort();
-    for ext in [".post", ".rows", ".jsonl.zst", "manifest.json"] {
+    for ext in [".post", ".rows", ".agg", ".jsonl.zst", "manifest.json"] {
         assert!(
             files.iter().any(|f| f.to_string_lossy().ends_with(ext)),
             "no {ext} file in {files:?}"
@@ -563,7 +563,7 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     }
 }
 
-/// A store of an older layout (version 4: no postings, uncompressed claim records) is refused by
+/// A store of an older layout (version 5: no aggregate tables) is refused by
 /// every query with its version named and a request to scan again; never read in part.
 #[test]
 fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
@@ -571,8 +571,8 @@ fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
     let store = demo_store_in(tmp.path());
     let mpath = store.join("manifest.json");
     let mut m: serde_json::Value = serde_json::from_slice(&std::fs::read(&mpath).unwrap()).unwrap();
-    assert_eq!(m["store_version"], 5);
-    m["store_version"] = json!(4);
+    assert_eq!(m["store_version"], 6);
+    m["store_version"] = json!(5);
     std::fs::write(&mpath, serde_json::to_vec(&m).unwrap()).unwrap();
     for args in [
         &["top"][..],
@@ -588,7 +588,7 @@ fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
         let err = String::from_utf8_lossy(&out.stderr);
         assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
         assert!(
-            err.contains("schema 4") && err.contains("reads 5") && err.contains("rescan"),
+            err.contains("schema 5") && err.contains("reads 6") && err.contains("rescan"),
             "{args:?}: {err}"
         );
     }
