@@ -165,6 +165,9 @@ fn classes_of(g: &Grid) -> [u64; 5] {
     c
 }
 
+/// The row number in a segment's ordinal (its file's place in the segment above it).
+const ROW: u64 = 0xffff_ffff;
+
 fn counts_of(g: &Grid) -> Counts {
     let mut c = Counts::default();
     for (pi, p) in Polarity::ALL.iter().enumerate() {
@@ -307,7 +310,7 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
         let res: Vec<&str> = s.keys.iter().map(|k| aliases.resolve(&k.key)).collect();
         for (k, r) in s.keys.iter().zip(&res) {
             if !merged.contains(r) {
-                let first = ordinal(*seg, k.first).ok_or_else(|| mismatch(*seg, k.first))?;
+                let first = ordinal(*seg, k.first & ROW).ok_or_else(|| mismatch(*seg, k.first))?;
                 add_var(&mut out.vars, r, k, first);
             }
         }
@@ -322,7 +325,7 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
                 if merged.contains(ra) || merged.contains(rb) || ra == rb {
                     continue;
                 }
-                let first = ordinal(*seg, e.first).ok_or_else(|| mismatch(*seg, e.first))?;
+                let first = ordinal(*seg, e.first & ROW).ok_or_else(|| mismatch(*seg, e.first))?;
                 let cause = if e.forward { ra } else { rb };
                 acc.add(kind, ra, rb, e, first, cause);
             }

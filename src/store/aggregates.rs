@@ -15,7 +15,7 @@
 //! rows in exactly one segment, so distinct-document counts of one key add up across segments.
 
 use super::manifest::{seg_name, Manifest};
-use super::read::decode_rows;
+use super::read::for_each_row;
 use super::rows::ClaimRow;
 use crate::claim::{Kind, Modality, Polarity};
 use crate::error::StoreError;
@@ -116,20 +116,27 @@ struct KeyAcc {
     first_as_effect: bool,
 }
 
-/// Builds [`SegmentAggregates`] from rows given in corpus order, grouped in batches (files)
-/// whose documents no other batch holds.
+/// What one open document has added: which keys and relations it named, and its claims on
+/// each relation by weight profile (per document and per sentence).
+#[derive(Default)]
+struct DocState {
+    keys: HashSet<u32>,
+    rels: HashMap<(Kind, u32, u32), Profile>,
+    sentences: HashMap<(Kind, u32, u32, u64), Profile>,
+}
+
+/// Builds [`SegmentAggregates`] from rows in any order: each row comes with its ordinal in
+/// corpus order (the smallest is kept as the first claim), and [`Aggregator::end_doc`] after a
+/// document's last row lets go of what counting its distinct documents and sentences needs, so
+/// memory follows the open documents, not the rows.
 #[derive(Default)]
 pub struct Aggregator {
     key_ids: HashMap<String, u32>,
     keys: Vec<(String, KeyAcc)>,
     rels: HashMap<(Kind, u32, u32), RelationAggregate>,
     cues: HashMap<String, u64>,
-    /// Documents of the current batch, numbered.
-    batch_docs: HashMap<String, u32>,
-    key_docs: HashSet<(u32, u32)>,
-    rel_docs: HashMap<(Kind, u32, u32, u32), Profile>,
-    rel_sentences: HashMap<(Kind, u32, u32, u32, u64), Profile>,
-    /// Profile histograms of the relations, filled at the end of each batch.
+    open: HashMap<String, DocState>,
+    /// Profile histograms of the relations, filled as documents end.
     doc_hist: HashMap<(Kind, u32, u32), BTreeMap<Profile, u32>>,
     sentence_hist: HashMap<(Kind, u32, u32), BTreeMap<Profile, u32>>,
 }
@@ -147,8 +154,8 @@ impl Aggregator {
 
     /// Count one row under the keys `cause` and `effect` (the row's own keys, or what aliases
     /// make of them); a row whose two keys are equal is left out, as the graph leaves it out.
-    /// `ordinal` is the row's place in corpus order: the first ordinal a key or relation gets
-    /// is kept as its first claim, so rows must come in corpus order.
+    /// `ordinal` is the row's place in corpus order: the smallest ordinal a key or relation
+    /// gets is kept as its first claim.
     pub fn add(&mut self, r: &ClaimRow, cause: &str, effect: &str, ordinal: u64) {
         if cause == effect {
             return;
@@ -159,25 +166,29 @@ impl Aggregator {
                 self.cues.insert(r.cue.clone(), 1);
             }
         }
-        let next = self.batch_docs.len() as u32;
-        let doc = *self.batch_docs.entry(r.doc.clone()).or_insert(next);
         let (a, b) = (self.key(cause), self.key(effect));
+        if !self.open.contains_key(&r.doc) {
+            self.open.insert(r.doc.clone(), DocState::default());
+        }
+        let Some(doc) = self.open.get_mut(&r.doc) else {
+            return;
+        };
         for (k, text, as_effect) in [(a, &r.cause_text, false), (b, &r.effect_text, true)] {
             let acc = &mut self.keys[k as usize].1;
-            if acc.mentions == 0 {
+            if acc.mentions == 0 || ordinal < acc.first {
                 acc.first = ordinal;
                 acc.first_as_effect = as_effect;
             }
             acc.mentions += 1;
             *acc.forms.entry(text.to_lowercase()).or_default() += 1;
-            if self.key_docs.insert((k, doc)) {
+            if doc.keys.insert(k) {
                 acc.docs += 1;
             }
         }
         let (x, y, forward) = match r.kind {
             Kind::Causal => (a, b, true),
             Kind::Association => {
-                // Smaller key first, by the key's text (numbers follow first sight).
+                // Smaller key first, by the key's text.
                 if cause <= effect {
                     (a, b, true)
                 } else {
@@ -195,34 +206,38 @@ impl Aggregator {
             forward,
             ..RelationAggregate::default()
         });
+        if ordinal < rel.first {
+            rel.first = ordinal;
+            rel.first_doc = r.doc.clone();
+            rel.first_line = r.line;
+            rel.forward = forward;
+        }
         rel.counts[polarity_index(r.polarity)][modality_index(r.modality)] += 1;
         let class = weight_class(r.polarity, r.modality);
-        let unit = self.rel_docs.entry((r.kind, x, y, doc)).or_default();
+        let unit = doc.rels.entry(id).or_default();
         if unit.iter().all(|&n| n == 0) {
             rel.docs += 1;
         }
         unit[class] += 1;
-        let unit = self
-            .rel_sentences
-            .entry((r.kind, x, y, doc, r.sentence))
-            .or_default();
+        let unit = doc.sentences.entry((r.kind, x, y, r.sentence)).or_default();
         if unit.iter().all(|&n| n == 0) {
             rel.sentences += 1;
         }
         unit[class] += 1;
     }
 
-    /// End a batch: its documents are in no later batch, so their sets can go.
-    pub fn end_batch(&mut self) {
-        for ((kind, x, y, _), p) in self.rel_docs.drain() {
-            *self
-                .doc_hist
-                .entry((kind, x, y))
-                .or_default()
-                .entry(p)
-                .or_default() += 1;
+    /// A document has no more rows: fold its units into the relations' profiles.
+    pub fn end_doc(&mut self, doc: &str) {
+        if let Some(state) = self.open.remove(doc) {
+            self.fold(state);
         }
-        for ((kind, x, y, _, _), p) in self.rel_sentences.drain() {
+    }
+
+    fn fold(&mut self, state: DocState) {
+        for (id, p) in state.rels {
+            *self.doc_hist.entry(id).or_default().entry(p).or_default() += 1;
+        }
+        for ((kind, x, y, _), p) in state.sentences {
             *self
                 .sentence_hist
                 .entry((kind, x, y))
@@ -230,12 +245,13 @@ impl Aggregator {
                 .entry(p)
                 .or_default() += 1;
         }
-        self.batch_docs.clear();
-        self.key_docs.clear();
     }
 
     pub fn finish(mut self) -> SegmentAggregates {
-        self.end_batch();
+        let open: Vec<DocState> = self.open.drain().map(|(_, d)| d).collect();
+        for d in open {
+            self.fold(d);
+        }
         // Renumber keys in key order.
         let mut order: Vec<u32> = (0..self.keys.len() as u32).collect();
         order.sort_by(|&x, &y| self.keys[x as usize].0.cmp(&self.keys[y as usize].0));
@@ -349,35 +365,52 @@ pub(super) fn file_name(manifest: &Manifest, seg: u32) -> String {
 }
 
 /// Write the aggregate file of every live segment of `manifest` that has none yet, from the
-/// segment's live rows (files in manifest order, each a batch).
+/// segment's live rows, read twice as a stream (first for each document's last live row, then
+/// to count): memory follows the segment's keys and relations, not its rows.
 pub(super) fn write_missing(dir: &Path, manifest: &Manifest) -> Result<(), StoreError> {
     for seg in manifest.segments() {
         let path = dir.join(file_name(manifest, seg));
         if path.exists() {
             continue;
         }
-        let rows_path = dir.join(seg_name(seg, "rows"));
-        let bytes = std::fs::read(&rows_path).map_err(|e| StoreError::io(&rows_path, e))?;
-        let rows: Vec<ClaimRow> = decode_rows(&rows_path, &bytes)?;
-        let mut agg = Aggregator::default();
-        for f in manifest
+        // Live row ranges of the segment with their file's place among its files in path
+        // (corpus) order: a row's ordinal is (place, row number).
+        let mut ranges: Vec<(u64, u64, u64)> = Vec::new();
+        for (place, f) in manifest
             .files
             .iter()
             .filter(|f| f.segment == seg && f.claims > 0)
+            .enumerate()
         {
-            for (a, b) in f.row_ranges() {
-                let slice =
-                    rows.get(a as usize..b as usize)
-                        .ok_or_else(|| StoreError::Corrupt {
-                            path: rows_path.clone(),
-                            message: format!("rows {a}..{b} out of range for {}", f.path),
-                        })?;
-                for (i, r) in slice.iter().enumerate() {
-                    agg.add(r, &r.cause, &r.effect, a + i as u64);
+            ranges.extend(f.row_ranges().map(|(a, b)| (a, b, place as u64)));
+        }
+        ranges.sort_unstable();
+        let live = |row: u64| -> Option<u64> {
+            let at = ranges.partition_point(|r| r.0 <= row);
+            let r = ranges.get(at.checked_sub(1)?)?;
+            (row < r.1).then_some((r.2 << 32) | row)
+        };
+        let rows_path = dir.join(seg_name(seg, "rows"));
+        let mut last: HashMap<String, u64> = HashMap::new();
+        for_each_row(&rows_path, |i, r| {
+            if live(i).is_some() {
+                match last.get_mut(&r.doc) {
+                    Some(l) => *l = i,
+                    None => {
+                        last.insert(r.doc, i);
+                    }
                 }
             }
-            agg.end_batch();
-        }
+        })?;
+        let mut agg = Aggregator::default();
+        for_each_row(&rows_path, |i, r| {
+            if let Some(ordinal) = live(i) {
+                agg.add(&r, &r.cause, &r.effect, ordinal);
+                if last.get(&r.doc) == Some(&i) {
+                    agg.end_doc(&r.doc);
+                }
+            }
+        })?;
         agg.finish().write(&path)?;
     }
     Ok(())
@@ -407,7 +440,7 @@ mod tests {
         for (i, r) in rows.iter().enumerate() {
             agg.add(r, &r.cause, &r.effect, 10 + i as u64);
             if i == 2 {
-                agg.end_batch();
+                agg.end_doc("d1");
             }
         }
         let s = agg.finish();

@@ -52,6 +52,49 @@ pub(super) fn decode_rows<'a, T: Deserialize<'a>>(
     Ok(out)
 }
 
+/// Every row of a segment's rows file with its row number, decoded as a stream (1 MiB read at
+/// a time), so that a pass over a segment holds one row, not the file.
+pub(super) fn for_each_row(
+    path: &Path,
+    mut f: impl FnMut(u64, ClaimRow),
+) -> Result<(), StoreError> {
+    const CHUNK: usize = 1 << 20;
+    let mut file = File::open(path).map_err(|e| StoreError::io(path, e))?;
+    let mut buf: Vec<u8> = Vec::new();
+    let (mut start, mut n, mut eof) = (0usize, 0u64, false);
+    loop {
+        if start < buf.len() {
+            match postcard::take_from_bytes::<ClaimRow>(&buf[start..]) {
+                Ok((row, rest)) => {
+                    start = buf.len() - rest.len();
+                    f(n, row);
+                    n += 1;
+                    continue;
+                }
+                // A row cut by the end of the buffer: read on (a row is far below MAX_BLOCK).
+                Err(_) if !eof && buf.len() - start < MAX_BLOCK as usize => {}
+                Err(e) => {
+                    return Err(StoreError::Corrupt {
+                        path: path.to_path_buf(),
+                        message: format!("row {n}: {e}"),
+                    })
+                }
+            }
+        } else if eof {
+            return Ok(());
+        }
+        buf.drain(..start);
+        start = 0;
+        let old = buf.len();
+        buf.resize(old + CHUNK, 0);
+        let got = file
+            .read(&mut buf[old..])
+            .map_err(|e| StoreError::io(path, e))?;
+        buf.truncate(old + got);
+        eof = got == 0;
+    }
+}
+
 impl Store {
     /// Open an existing store.
     pub fn open(dir: &Path) -> Result<Store, StoreError> {

@@ -481,7 +481,8 @@ fn every_store_file_damaged_in_turn_gives_an_error_naming_it() {
 
 /// Scan, change one file and delete another, re-scan: every query reads the same answers as a
 /// fresh scan of the corpus as it now is (the re-scanned store keeps the old segment, whose
-/// postings still list the changed file's old rows: the manifest must leave them out).
+/// postings still list the changed file's old rows: the manifest must leave them out, and the
+/// old segment's aggregate tables are rebuilt from its live rows).
 #[test]
 fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     let tmp = tempfile::tempdir().unwrap();
@@ -519,12 +520,19 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     assert_eq!(again["files_removed"], 1, "{again}");
     let fresh = tmp.path().join("fresh");
     scan(&corpus, &fresh);
+    let vars = tmp.path().join("vars.txt");
+    std::fs::write(&vars, format!("{x}\n{y}\nthe weather\n")).unwrap();
+    let vars = vars.to_str().unwrap();
     let answers = |s: &std::path::Path| -> Vec<Vec<u8>> {
-        let q: [&[&str]; 10] = [
+        let q: [&[&str]; 14] = [
             &["top", "-n", "0"],
             &["conflicts"],
             &["cycles"],
             &["graph", "--to", "graphml"],
+            &["graph", "--to", "json", "--weight-by", "sentences"],
+            &["matrix", "--vars", vars],
+            &["report"],
+            &["conflicts", "--limit", "0", "--min-confidence", "0"],
             &["claims"],
             &["claims", "--cause", &x],
             &["claims", "--var", &y],
