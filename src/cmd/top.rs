@@ -55,7 +55,7 @@ pub fn run(g: &Global, a: &TopArgs) -> Result<ExitCode> {
         let (store, _, aliases) = g.query_parts()?;
         let agg =
             query::aggregate(&store, &aliases).context("cannot read the store's aggregates")?;
-        query::top_from_aggregates(&agg, a.min_docs, a.min_claims)
+        query::top_from_aggregates(&agg, a.min_docs, a.min_claims, a.limit)
     } else {
         let loaded = g.graph(&filter)?;
         query::top_relations(&loaded.graph, a.min_docs, a.min_claims)

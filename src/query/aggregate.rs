@@ -16,31 +16,21 @@ use crate::graph::WeightSpec;
 use crate::graph::{ClaimGraph, Counts, Relation, Totals, Variable};
 use crate::store::{weight_class, Aggregator, Grid, Profile, RelationAggregate, Store};
 use crate::variables::Aliases;
+use rustc_hash::{FxHashMap, FxHashSet};
 use std::collections::{BTreeMap, HashMap, HashSet};
 
 /// One variable's counts.
 #[derive(Debug, Clone, Default)]
 pub struct AggVariable {
     pub key: String,
-    /// Lower-cased surface forms and their claim counts.
-    pub forms: HashMap<String, u64>,
+    /// Its most frequent surface form (lower-cased; the smaller form on a tie), as the claim
+    /// graph labels it.
+    pub label: String,
     pub mentions: u64,
     pub docs: u64,
     /// Ordinal of its first claim in corpus order, and whether that claim names it as effect.
     pub first: u64,
     pub first_as_effect: bool,
-}
-
-impl AggVariable {
-    /// The variable's label: its most frequent surface form (the smaller form on a tie), as the
-    /// claim graph names it.
-    pub fn label(&self) -> String {
-        self.forms
-            .iter()
-            .max_by(|x, y| x.1.cmp(y.1).then_with(|| y.0.cmp(x.0)))
-            .map(|f| f.0.clone())
-            .unwrap_or_default()
-    }
 }
 
 /// One relation's counts: a causal edge `a` → `b`, or an association between `a` and `b`
@@ -50,7 +40,10 @@ pub struct AggRelation {
     pub kind: Kind,
     pub a: String,
     pub b: String,
-    pub counts: Counts,
+    /// Claims by polarity × modality (`store::Grid`), and their sum; [`AggRelation::counts`]
+    /// gives them as the graph's `Counts`.
+    pub grid: Grid,
+    pub total: usize,
     pub docs: usize,
     pub sentences: usize,
     /// Units by weight profile (see `store::RelationAggregate`), sorted by profile.
@@ -69,7 +62,7 @@ pub struct AggRelation {
 /// Every variable and relation of a store, from its aggregates.
 #[derive(Debug, Default)]
 pub struct Aggregated {
-    pub vars: HashMap<String, AggVariable>,
+    pub vars: FxHashMap<String, AggVariable>,
     pub relations: Vec<AggRelation>,
     /// Claims by cue id.
     pub cues: BTreeMap<String, u64>,
@@ -81,7 +74,7 @@ impl Aggregated {
     pub fn label(&self, key: &str) -> String {
         self.vars
             .get(key)
-            .map(AggVariable::label)
+            .map(|v| v.label.clone())
             .unwrap_or_default()
     }
 }
@@ -94,6 +87,10 @@ impl AggRelation {
 }
 
 impl AggRelation {
+    pub fn counts(&self) -> Counts {
+        counts_of(&self.grid)
+    }
+
     fn totals(&self) -> Totals {
         Totals {
             docs: self.docs,
@@ -116,7 +113,7 @@ pub fn graph_from_aggregates(agg: &Aggregated) -> ClaimGraph {
     for v in vars {
         let n = g.graph.add_node(Variable {
             key: v.key.clone(),
-            label: v.label(),
+            label: v.label.clone(),
             mentions: v.mentions as usize,
             docs: v.docs as usize,
         });
@@ -128,7 +125,7 @@ pub fn graph_from_aggregates(agg: &Aggregated) -> ClaimGraph {
             continue;
         };
         let rel = Relation {
-            counts: r.counts.clone(),
+            counts: r.counts(),
             totals: Some(Box::new(r.totals())),
             ..Relation::default()
         };
@@ -182,19 +179,21 @@ fn counts_of(g: &Grid) -> Counts {
     c
 }
 
+/// Relations summed under their variables (`a`, `b`: variable keys borrowed from the tables).
 #[derive(Default)]
-struct Acc {
-    rels: HashMap<(Kind, String, String), AggRelation>,
+struct Acc<'a> {
+    index: FxHashMap<(Kind, &'a str, &'a str), usize>,
+    rels: Vec<AggRelation>,
 }
 
-impl Acc {
+impl<'a> Acc<'a> {
     /// Add one relation aggregate whose ends are the variables `a` and `b` (`first_cause`: the
     /// variable its first claim names as cause; `first`: that claim's ordinal).
     fn add(
         &mut self,
         kind: Kind,
-        a: &str,
-        b: &str,
+        a: &'a str,
+        b: &'a str,
         r: &RelationAggregate,
         first: u64,
         first_cause: &str,
@@ -203,15 +202,16 @@ impl Acc {
             Kind::Association if b < a => (b, a),
             _ => (a, b),
         };
-        let counts = counts_of(&r.counts);
-        match self.rels.get_mut(&(kind, a.to_string(), b.to_string())) {
-            Some(x) => {
-                for (p, ms) in counts.by {
-                    for (m, n) in ms {
-                        *x.counts.by.entry(p).or_default().entry(m).or_default() += n;
+        let total: usize = r.counts.iter().flatten().map(|&n| n as usize).sum();
+        match self.index.get(&(kind, a, b)) {
+            Some(&i) => {
+                let x = &mut self.rels[i];
+                for (row, more) in x.grid.iter_mut().zip(&r.counts) {
+                    for (n, m) in row.iter_mut().zip(more) {
+                        *n += m;
                     }
                 }
-                x.counts.total += counts.total;
+                x.total += total;
                 for (c, n) in x.classes.iter_mut().zip(classes_of(&r.counts)) {
                     *c += n;
                 }
@@ -227,49 +227,81 @@ impl Acc {
                 }
             }
             None => {
-                self.rels.insert(
-                    (kind, a.to_string(), b.to_string()),
-                    AggRelation {
-                        kind,
-                        a: a.to_string(),
-                        b: b.to_string(),
-                        counts,
-                        classes: classes_of(&r.counts),
-                        doc_profiles: r.doc_profiles.clone(),
-                        sentence_profiles: r.sentence_profiles.clone(),
-                        docs: r.docs as usize,
-                        sentences: r.sentences as usize,
-                        first,
-                        first_doc: r.first_doc.clone(),
-                        first_line: r.first_line,
-                        first_cause: first_cause.to_string(),
-                    },
-                );
+                self.index.insert((kind, a, b), self.rels.len());
+                self.rels.push(AggRelation {
+                    kind,
+                    a: a.to_string(),
+                    b: b.to_string(),
+                    grid: r.counts,
+                    total,
+                    classes: classes_of(&r.counts),
+                    doc_profiles: r.doc_profiles.clone(),
+                    sentence_profiles: r.sentence_profiles.clone(),
+                    docs: r.docs as usize,
+                    sentences: r.sentences as usize,
+                    first,
+                    first_doc: r.first_doc.clone(),
+                    first_line: r.first_line,
+                    first_cause: first_cause.to_string(),
+                });
             }
         }
     }
 }
 
-fn add_var(
-    vars: &mut HashMap<String, AggVariable>,
-    key: &str,
-    k: &crate::store::KeyAggregate,
+/// A variable being summed: its tables' surface forms are kept by reference until the end.
+struct VarAcc<'a> {
+    forms: Vec<&'a [(String, u32)]>,
+    mentions: u64,
+    docs: u64,
+    first: u64,
+    first_as_effect: bool,
+}
+
+fn add_var<'a>(
+    vars: &mut FxHashMap<&'a str, VarAcc<'a>>,
+    key: &'a str,
+    k: &'a crate::store::KeyAggregate,
     first: u64,
 ) {
-    let v = vars.entry(key.to_string()).or_insert_with(|| AggVariable {
-        key: key.to_string(),
+    let v = vars.entry(key).or_insert_with(|| VarAcc {
+        forms: Vec::new(),
+        mentions: 0,
+        docs: 0,
         first,
         first_as_effect: k.first_as_effect,
-        ..AggVariable::default()
     });
-    for (f, n) in &k.forms {
-        *v.forms.entry(f.clone()).or_default() += *n as u64;
-    }
+    v.forms.push(&k.forms);
     v.mentions += k.mentions;
     v.docs += k.docs;
     if first < v.first {
         v.first = first;
         v.first_as_effect = k.first_as_effect;
+    }
+}
+
+/// The most frequent surface form (the smaller form on a tie), as the claim graph labels a
+/// variable.
+fn label_of(forms: &[&[(String, u32)]]) -> String {
+    let best = |it: &mut dyn Iterator<Item = (&str, u64)>| {
+        it.fold(None::<(&str, u64)>, |best, (f, n)| match best {
+            Some((bf, bn)) if bn > n || (bn == n && bf <= f) => Some((bf, bn)),
+            _ => Some((f, n)),
+        })
+        .map(|(f, _)| f.to_string())
+        .unwrap_or_default()
+    };
+    match forms {
+        [one] => best(&mut one.iter().map(|(f, n)| (f.as_str(), *n as u64))),
+        _ => {
+            let mut m: FxHashMap<&str, u64> = FxHashMap::default();
+            for list in forms {
+                for (f, n) in list.iter() {
+                    *m.entry(f.as_str()).or_default() += *n as u64;
+                }
+            }
+            best(&mut m.into_iter())
+        }
     }
 }
 
@@ -285,52 +317,28 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
         ),
     };
     // How many stored keys each variable has.
-    let mut raw: HashSet<&str> = HashSet::new();
+    let mut raw: FxHashSet<&str> = FxHashSet::default();
     for (_, s) in &segs {
         raw.extend(s.keys.iter().map(|k| k.key.as_str()));
     }
-    let mut class: HashMap<&str, u32> = HashMap::new();
+    let mut class: FxHashMap<&str, u32> = FxHashMap::default();
     for k in &raw {
         *class.entry(aliases.resolve(k)).or_default() += 1;
     }
-    let merged: HashSet<&str> = class
+    let merged: FxHashSet<&str> = class
         .iter()
         .filter(|(_, n)| **n > 1)
         .map(|(k, _)| *k)
         .collect();
 
     let mut out = Aggregated::default();
-    let mut acc = Acc::default();
     for (_, s) in &segs {
         for (cue, n) in &s.cues {
             *out.cues.entry(cue.clone()).or_default() += n;
         }
     }
-    for (seg, s) in &segs {
-        let res: Vec<&str> = s.keys.iter().map(|k| aliases.resolve(&k.key)).collect();
-        for (k, r) in s.keys.iter().zip(&res) {
-            if !merged.contains(r) {
-                let first = ordinal(*seg, k.first & ROW).ok_or_else(|| mismatch(*seg, k.first))?;
-                add_var(&mut out.vars, r, k, first);
-            }
-        }
-        for (kind, list) in [(Kind::Causal, &s.edges), (Kind::Association, &s.pairs)] {
-            for e in list {
-                let (Some(ra), Some(rb)) = (res.get(e.a as usize), res.get(e.b as usize)) else {
-                    return Err(StoreError::Corrupt {
-                        path: store.dir.clone(),
-                        message: format!("the aggregates of segment {seg} name a key they lack"),
-                    });
-                };
-                if merged.contains(ra) || merged.contains(rb) || ra == rb {
-                    continue;
-                }
-                let first = ordinal(*seg, e.first & ROW).ok_or_else(|| mismatch(*seg, e.first))?;
-                let cause = if e.forward { ra } else { rb };
-                acc.add(kind, ra, rb, e, first, cause);
-            }
-        }
-    }
+    // The variables the aliases merge from several stored keys: counted from their rows.
+    let mut part = None;
     if !merged.is_empty() {
         let postings = store.postings()?;
         let rows = store.rows_naming_at(&postings, |k| merged.contains(aliases.resolve(k)))?;
@@ -347,10 +355,47 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
             agg.add(r, c, e, *ord);
         }
         out.cues.retain(|_, n| *n > 0);
-        let s = agg.finish();
+        part = Some(agg.finish());
+    }
+
+    let mut vars: FxHashMap<&str, VarAcc> = FxHashMap::default();
+    let mut acc = Acc::default();
+    let relations: usize = segs
+        .iter()
+        .map(|(_, s)| s.edges.len() + s.pairs.len())
+        .sum();
+    acc.rels.reserve(relations);
+    acc.index.reserve(relations);
+    vars.reserve(raw.len());
+    for (seg, s) in &segs {
+        let res: Vec<&str> = s.keys.iter().map(|k| aliases.resolve(&k.key)).collect();
+        for (k, r) in s.keys.iter().zip(&res) {
+            if !merged.contains(r) {
+                let first = ordinal(*seg, k.first & ROW).ok_or_else(|| mismatch(*seg, k.first))?;
+                add_var(&mut vars, r, k, first);
+            }
+        }
+        for (kind, list) in [(Kind::Causal, &s.edges), (Kind::Association, &s.pairs)] {
+            for e in list {
+                let (Some(&ra), Some(&rb)) = (res.get(e.a as usize), res.get(e.b as usize)) else {
+                    return Err(StoreError::Corrupt {
+                        path: store.dir.clone(),
+                        message: format!("the aggregates of segment {seg} name a key they lack"),
+                    });
+                };
+                if merged.contains(ra) || merged.contains(rb) || ra == rb {
+                    continue;
+                }
+                let first = ordinal(*seg, e.first & ROW).ok_or_else(|| mismatch(*seg, e.first))?;
+                let cause = if e.forward { ra } else { rb };
+                acc.add(kind, ra, rb, e, first, cause);
+            }
+        }
+    }
+    if let Some(s) = &part {
         for k in &s.keys {
             if merged.contains(k.key.as_str()) {
-                add_var(&mut out.vars, &k.key, k, k.first);
+                add_var(&mut vars, &k.key, k, k.first);
             }
         }
         for (kind, list) in [(Kind::Causal, &s.edges), (Kind::Association, &s.pairs)] {
@@ -361,9 +406,23 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
             }
         }
     }
-    let mut rels: BTreeMap<(Kind, String, String), AggRelation> = BTreeMap::new();
-    rels.extend(acc.rels);
-    out.relations = rels.into_values().collect();
+    out.vars = vars
+        .into_iter()
+        .map(|(key, v)| {
+            (
+                key.to_string(),
+                AggVariable {
+                    key: key.to_string(),
+                    label: label_of(&v.forms),
+                    mentions: v.mentions,
+                    docs: v.docs,
+                    first: v.first,
+                    first_as_effect: v.first_as_effect,
+                },
+            )
+        })
+        .collect();
+    out.relations = acc.rels;
     Ok(out)
 }
 
@@ -398,7 +457,7 @@ pub fn conflict_candidates(agg: &Aggregated, min_claims: usize) -> HashSet<(Stri
     let mut statements: HashMap<(&str, &str), usize> = HashMap::new();
     let mut out = HashSet::new();
     for r in agg.relations.iter().filter(|r| r.kind == Kind::Causal) {
-        let c = &r.counts;
+        let c = &r.counts();
         let s = stated(c, &all);
         let denied = c.modality(Modality::Negated) + c.polarity(Polarity::None)
             - c.by

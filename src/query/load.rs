@@ -171,7 +171,7 @@ pub fn load_relations(
     let mut graph = relations_graph(&store, &aliases, wanted)?;
     for n in graph.graph.node_indices() {
         if let Some(v) = agg.vars.get(&graph.graph[n].key) {
-            graph.graph[n].label = v.label();
+            graph.graph[n].label = v.label.clone();
             graph.graph[n].mentions = v.mentions as usize;
             graph.graph[n].docs = v.docs as usize;
         }

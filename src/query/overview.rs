@@ -66,11 +66,11 @@ pub fn corpus_summary_of(loaded: &Loaded, agg: &Aggregated) -> CorpusSummary {
     s.by_polarity.clear();
     s.by_modality.clear();
     for r in &agg.relations {
-        s.claims += r.counts.total;
-        if r.counts.total > 0 {
-            *s.by_kind.entry(r.kind).or_default() += r.counts.total;
+        s.claims += r.total;
+        if r.total > 0 {
+            *s.by_kind.entry(r.kind).or_default() += r.total;
         }
-        for (p, ms) in &r.counts.by {
+        for (p, ms) in &r.counts().by {
             for (m, n) in ms {
                 if *n > 0 {
                     *s.by_polarity.entry(*p).or_default() += n;

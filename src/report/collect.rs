@@ -72,7 +72,7 @@ pub fn collect(
         hydrate(loaded, agg, src.pair, opts)?;
     }
     let mut top = match agg {
-        Some(agg) => query::top_from_aggregates(agg, 1, 1),
+        Some(agg) => query::top_from_aggregates(agg, 1, 1, opts.rows),
         None => query::top_relations(&loaded.graph, 1, 1),
     };
     top.truncate(opts.rows);

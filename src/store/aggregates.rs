@@ -320,6 +320,7 @@ impl SegmentAggregates {
             message: e.to_string(),
         })?;
         let mut out = MAGIC.to_vec();
+        out.extend((bytes.len() as u64).to_le_bytes());
         out.extend(zstd::bulk::compress(&bytes, 3).map_err(|e| StoreError::io(path, e))?);
         let tmp = path.with_extension("agg-tmp");
         std::fs::write(&tmp, &out).map_err(|e| StoreError::io(&tmp, e))?;
@@ -338,7 +339,19 @@ impl SegmentAggregates {
         let body = bytes
             .strip_prefix(MAGIC.as_slice())
             .ok_or_else(|| corrupt("not an aggregate file".into()))?;
-        let raw = zstd::stream::decode_all(body).map_err(|e| corrupt(e.to_string()))?;
+        let (len, body) = body
+            .split_first_chunk::<8>()
+            .ok_or_else(|| corrupt("no length".into()))?;
+        // The length bounds the buffer; a damaged file claiming more than zstd can make of its
+        // bytes is refused before anything is allocated.
+        let len = u64::from_le_bytes(*len);
+        if len > (body.len() as u64).saturating_mul(2048) {
+            return Err(corrupt(format!(
+                "a length of {len} bytes for {} compressed",
+                body.len()
+            )));
+        }
+        let raw = zstd::bulk::decompress(body, len as usize).map_err(|e| corrupt(e.to_string()))?;
         postcard::from_bytes(&raw).map_err(|e| corrupt(e.to_string()))
     }
 }
@@ -464,7 +477,7 @@ mod tests {
         let p = dir.path().join("x.agg");
         s.write(&p).unwrap();
         assert_eq!(SegmentAggregates::open(&p).unwrap(), s);
-        std::fs::write(&p, b"HSAGG01\nbad").unwrap();
+        std::fs::write(&p, b"HSAGG01\n\x05\0\0\0\0\0\0\0bad").unwrap();
         assert!(SegmentAggregates::open(&p).is_err());
     }
 }
