@@ -441,7 +441,7 @@ mod tests {
 
     #[test]
     fn counts_documents_per_batch_and_keeps_the_first_claim() {
-        let mut rows = vec![
+        let mut rows = [
             test_row("b", "a", Polarity::Increase, Modality::Asserted, "d1"),
             test_row("b", "a", Polarity::Increase, Modality::Hedged, "d1"),
             test_row("b", "b", Polarity::Increase, Modality::Hedged, "d1"),
