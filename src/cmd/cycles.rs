@@ -14,7 +14,8 @@ use std::process::ExitCode;
 #[derive(Args, Debug)]
 #[command(
     after_help = "A cycle is A → B → ... → A over edges of at least --min-weight, each \
-reported once, ranked by its weakest link. Feedback stated in text, not evidence of feedback."
+reported once, ranked by its weakest link. Feedback stated in text, not evidence of feedback.\n\nWithout a claim filter or --dedupe, the weights come from the store's aggregate tables \
+(docs/store.md) and only the evidence rows printed are read; with one, every claim row is read."
 )]
 pub struct CyclesArgs {
     /// Only edges of at least this weight.

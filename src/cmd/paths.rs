@@ -19,7 +19,8 @@ by their weakest link (the smallest hop weight), then by fewer hops, then by the
 hop weights divided by the heaviest edge. The chain's sign multiplies the hop signs: increase \
 then decrease is decrease, and one unsigned hop makes the chain unsigned. A hop's sign is the \
 majority of its non-negated signed claims.\n\nA chain joins statements from different texts; it \
-is not evidence that X affects Y."
+is not evidence that X affects Y.\n\nWithout a claim filter or --dedupe, the weights come from the store's aggregate tables \
+(docs/store.md) and only the evidence rows printed are read; with one, every claim row is read."
 )]
 pub struct PathsArgs {
     /// The start variable.
