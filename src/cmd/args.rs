@@ -6,7 +6,7 @@ use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
 use hearsay::compare::questions::PairList;
 use hearsay::graph::{Filter, Unit, WeightSpec};
-use hearsay::query::Loaded;
+use hearsay::query::{self, Loaded};
 use hearsay::{Kind, Modality, Polarity};
 use std::path::Path;
 
@@ -117,6 +117,20 @@ impl WeightArgs {
     /// Build the graph with these options.
     pub fn load(&self, g: &Global, filter: &ClaimFilter) -> Result<Loaded> {
         g.load(&filter.to_filter(), self.dedupe)
+    }
+
+    /// Build the graph for a command that reads counts and weights only (no row of the graph
+    /// unless `rows` says so): without a filter and --dedupe, from the store's aggregate
+    /// tables, which reads no claim row; otherwise from every row, as [`Self::load`].
+    pub fn load_counts(&self, g: &Global, filter: &ClaimFilter, rows: bool) -> Result<Loaded> {
+        let f = filter.to_filter();
+        if rows || self.dedupe || !f.is_empty() {
+            return self.load(g, filter);
+        }
+        let (store, normalizer, aliases) = g.query_parts()?;
+        let (loaded, _) = query::load_aggregated(store, normalizer, aliases)
+            .context("cannot read the store's aggregates")?;
+        Ok(loaded)
     }
 }
 

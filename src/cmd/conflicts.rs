@@ -2,10 +2,10 @@
 
 use super::output::{count, print_evidence};
 use super::{escape, write_rows, ClaimFilter, Format, Global};
-use anyhow::Result;
+use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::graph::{self, Conflict};
-use hearsay::query::EvidenceLine;
+use hearsay::query::{self, EvidenceLine};
 use serde::Serialize;
 use std::io::Write;
 use std::process::ExitCode;
@@ -16,7 +16,9 @@ use std::process::ExitCode;
 opposite-signs (X → Y stated as an increase and as a decrease or prevention), \
 asserted-and-denied (X → Y stated, and denied with \"not\" or \"has no effect on\"). Ranked by the \
 claims on both sides together, then by how even the split is.\n\nA conflict is between \
-statements in text; it says nothing about which is right."
+statements in text; it says nothing about which is right.\n\nWithout a filter or --dedupe, the \
+store's aggregate tables say which relations can conflict and only their claim rows are read; a \
+filter or --dedupe reads every claim row."
 )]
 pub struct ConflictsArgs {
     /// Only conflicts with at least N claims on each side.
@@ -43,7 +45,18 @@ struct ConflictOut<'a> {
 }
 
 pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
-    let loaded = g.load(&a.filter.to_filter(), a.dedupe)?;
+    let filter = a.filter.to_filter();
+    let loaded = if filter.is_empty() && !a.dedupe {
+        // The aggregate tables say which edges can be conflicts; only their rows are read.
+        let (store, normalizer, aliases) = g.query_parts()?;
+        let agg =
+            query::aggregate(&store, &aliases).context("cannot read the store's aggregates")?;
+        let wanted = query::conflict_candidates(&agg, a.min_claims);
+        query::load_relations(store, normalizer, aliases, &agg, &wanted)
+            .context("cannot read the store's claims")?
+    } else {
+        g.load(&filter, a.dedupe)?
+    };
     let mut cs = graph::conflicts(&loaded.graph, a.min_claims);
     if a.limit > 0 {
         cs.truncate(a.limit);

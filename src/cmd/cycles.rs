@@ -3,7 +3,7 @@
 use super::args::WeightArgs;
 use super::output::{count, print_evidence};
 use super::{escape, write_rows, ClaimFilter, Format, Global};
-use anyhow::Result;
+use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::graph::{self, Sign};
 use hearsay::query::HopEvidence;
@@ -14,7 +14,8 @@ use std::process::ExitCode;
 #[derive(Args, Debug)]
 #[command(
     after_help = "A cycle is A → B → ... → A over edges of at least --min-weight, each \
-reported once, ranked by its weakest link. Feedback stated in text, not evidence of feedback."
+reported once, ranked by its weakest link. Feedback stated in text, not evidence of feedback.\n\nWithout a claim filter or --dedupe, the weights come from the store's aggregate tables \
+(docs/store.md) and only the evidence rows printed are read; with one, every claim row is read."
 )]
 pub struct CyclesArgs {
     /// Only edges of at least this weight.
@@ -48,15 +49,20 @@ struct CycleOut<'a> {
 }
 
 pub fn run(g: &Global, a: &CyclesArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, false)?;
     let spec = a.weight.spec();
     let cycles = graph::cycles(&loaded.graph, &spec, a.min_weight, a.max_len, a.limit);
+    let hops: Vec<&[_]> = cycles.iter().map(|c| c.hops.as_slice()).collect();
+    let evidence = loaded
+        .chains_evidence(&hops, a.evidence)
+        .context("cannot read the evidence of the cycles")?;
     let outs: Vec<CycleOut> = cycles
         .iter()
-        .map(|c| CycleOut {
+        .zip(evidence)
+        .map(|(c, hops)| CycleOut {
             support: c.support,
             sign: c.sign,
-            hops: loaded.hops(&c.hops, a.evidence),
+            hops,
         })
         .collect();
     let mut out = std::io::stdout().lock();

@@ -30,6 +30,8 @@ networkx.node_link_graph(data, edges=\"edges\"); csv writes the edges to FILE an
 beside it, to FILE's name with .nodes.csv for its extension (-o edges.csv also writes \
 edges.nodes.csv). table prints the edges as a table. Choose the file format with the global \
 --format (graphml by default here); every format goes to -o FILE when given, else to stdout.\n\n\
+Without a filter, --dedupe or --evidence, the counts and weights come from the store's \
+aggregate tables (docs/store.md); with one, from every claim row.\n\n\
 Exit status: 0 on success, 2 on an error.\n\nAn edge is a count \
 of statements in text, not evidence that the causation is real."
 )]
@@ -79,7 +81,7 @@ fn file_format(g: &Global, a: &GraphArgs) -> To {
 }
 
 pub fn run(g: &Global, a: &GraphArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, a.evidence)?;
     let vars = match &a.vars {
         Some(p) => Some(
             read_vars(&loaded, p)?

@@ -20,7 +20,8 @@ pub enum CellArg {
 #[command(
     after_help = "Row = cause, column = effect: the cell in row A, column B is the edge \
 A → B (0 when no claim states it). The first column names the causes; the header names the \
-effects, in the order of FILE. Always CSV. Counts of statements in text, not evidence."
+effects, in the order of FILE. Always CSV. Counts of statements in text, not evidence.\n\nWithout a claim filter or --dedupe, the weights come from the store's aggregate tables \
+(docs/store.md) and no claim row is read; with one, every claim row is read."
 )]
 pub struct MatrixArgs {
     /// The variables, one name a line (`#` comments and blank lines skipped).
@@ -39,7 +40,7 @@ pub struct MatrixArgs {
 }
 
 pub fn run(g: &Global, a: &MatrixArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, false)?;
     let vars = read_vars(&loaded, &a.vars)?;
     for (name, key) in &vars {
         if !loaded.graph.index.contains_key(key) {

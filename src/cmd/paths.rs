@@ -3,7 +3,7 @@
 use super::args::WeightArgs;
 use super::output::{count, find_var, print_evidence};
 use super::{escape, write_rows, ClaimFilter, Format, Global};
-use anyhow::Result;
+use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::graph::{self, Chain, Sign};
 use hearsay::query::HopEvidence;
@@ -19,7 +19,8 @@ by their weakest link (the smallest hop weight), then by fewer hops, then by the
 hop weights divided by the heaviest edge. The chain's sign multiplies the hop signs: increase \
 then decrease is decrease, and one unsigned hop makes the chain unsigned. A hop's sign is the \
 majority of its non-negated signed claims.\n\nA chain joins statements from different texts; it \
-is not evidence that X affects Y."
+is not evidence that X affects Y.\n\nWithout a claim filter or --dedupe, the weights come from the store's aggregate tables \
+(docs/store.md) and only the evidence rows printed are read; with one, every claim row is read."
 )]
 pub struct PathsArgs {
     /// The start variable.
@@ -59,7 +60,7 @@ struct ChainOut<'a> {
 }
 
 pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, false)?;
     let (x, y) = (find_var(&loaded, &a.x)?, find_var(&loaded, &a.y)?);
     let spec = a.weight.spec();
     let chains: Vec<Chain> = graph::paths(
@@ -71,15 +72,20 @@ pub fn run(g: &Global, a: &PathsArgs) -> Result<ExitCode> {
         a.min_weight,
         a.limit,
     );
+    let hops: Vec<&[_]> = chains.iter().map(|c| c.hops.as_slice()).collect();
+    let evidence = loaded
+        .chains_evidence(&hops, a.evidence)
+        .context("cannot read the evidence of the chains")?;
     let outs: Vec<ChainOut> = chains
         .iter()
+        .zip(evidence)
         .enumerate()
-        .map(|(i, c)| ChainOut {
+        .map(|(i, (c, hops))| ChainOut {
             rank: i + 1,
             support: c.support,
             product: c.product,
             sign: c.sign,
-            hops: loaded.hops(&c.hops, a.evidence),
+            hops,
         })
         .collect();
     let mut out = std::io::stdout().lock();

@@ -6,7 +6,7 @@ use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::compare::questions as q;
 use hearsay::compare::{self as cmp, AnswerSet, AnswerSource, Corpus, Summary};
-use hearsay::query::Loaded;
+use hearsay::query::{self, Loaded};
 use hearsay::report::{self, Options, Sources};
 use std::collections::HashMap;
 use std::io::Write;
@@ -66,7 +66,17 @@ pub struct ReportArgs {
 }
 
 pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
-    let mut loaded = g.graph(&a.filter.to_filter())?;
+    let filter = a.filter.to_filter();
+    // Without a filter or --compare, the page is gathered from the store's aggregate tables
+    // and the rows of what it shows sentences of; otherwise from every claim row.
+    let (mut loaded, aggregated) = if filter.is_empty() && a.compare.is_none() {
+        let (store, normalizer, aliases) = g.query_parts()?;
+        let (loaded, agg) = query::load_aggregated(store, normalizer, aliases)
+            .context("cannot read the store's aggregates")?;
+        (loaded, Some(agg))
+    } else {
+        (g.graph(&filter)?, None)
+    };
     let families: HashMap<String, String> = g
         .pattern_set()?
         .cues
@@ -94,6 +104,7 @@ pub fn run(g: &Global, a: &ReportArgs) -> Result<ExitCode> {
             families: &families,
             pair,
             comparison,
+            aggregated: aggregated.as_ref(),
         },
         &opts,
     )

@@ -17,7 +17,8 @@ through the same normalisation and aliases as the claims; only claim edges betwe
 variables are scored. An edge is predicted when its weight is at least --threshold; a pair's \
 orientation is its heavier direction. SHD counts missing pairs, extra pairs and misoriented pairs \
 (a reversal costs 1). See docs/graph.md.\n\nAgreement with a diagram measures what texts state, \
-not whether the diagram or the texts are right."
+not whether the diagram or the texts are right.\n\nWithout a claim filter or --dedupe, the weights come from the store's aggregate tables \
+(docs/store.md) and no claim row is read; with one, every claim row is read."
 )]
 pub struct ScoreArgs {
     /// The reference diagram (CSV edge list or DOT).
@@ -84,7 +85,7 @@ fn write_curve(out: &mut impl Write, curve: &[Scores]) -> Result<()> {
 }
 
 pub fn run(g: &Global, a: &ScoreArgs) -> Result<ExitCode> {
-    let loaded = a.weight.load(g, &a.filter)?;
+    let loaded = a.weight.load_counts(g, &a.filter, false)?;
     let reference = Reference::load(&a.truth, &loaded.normalizer, &loaded.aliases)
         .context("cannot read the reference diagram")?;
     let spec = a.weight.spec();

@@ -1,7 +1,7 @@
 //! `hearsay top`: the most-stated relations.
 
 use super::{write_rows, ClaimFilter, Global};
-use anyhow::Result;
+use anyhow::{Context, Result};
 use clap::Args;
 use hearsay::query::{self, TopRelation};
 use std::process::ExitCode;
@@ -15,7 +15,8 @@ Columns: claims = asserted + hedged + negated + conditional + question. sign is 
 by the rule every command uses (docs/graph.md): the majority of the non-negated signed claims \
 (increase against decrease and prevent), mixed on a tie; with no signed claim, \"no effect\" when \
 \"has no effect\" claims outnumber unsigned ones, else unsigned.\n\nExit status: 0 (also when no \
-relation passes the filters), 2 on an error.\n\nThese are counts of statements in text, not \
+relation passes the filters), 2 on an error.\n\nWithout a filter the counts come from \
+the store's aggregate tables (docs/store.md); a filter reads every claim row instead.\n\nThese are counts of statements in text, not \
 evidence that the causation is real."
 )]
 pub struct TopArgs {
@@ -48,8 +49,17 @@ const HEADERS: &[&str] = &[
 ];
 
 pub fn run(g: &Global, a: &TopArgs) -> Result<ExitCode> {
-    let loaded = g.graph(&a.filter.to_filter())?;
-    let mut rows = query::top_relations(&loaded.graph, a.min_docs, a.min_claims);
+    let filter = a.filter.to_filter();
+    let mut rows = if filter.is_empty() {
+        // No filter: the store's aggregate tables answer without reading the claim rows.
+        let (store, _, aliases) = g.query_parts()?;
+        let agg =
+            query::aggregate(&store, &aliases).context("cannot read the store's aggregates")?;
+        query::top_from_aggregates(&agg, a.min_docs, a.min_claims, a.limit)
+    } else {
+        let loaded = g.graph(&filter)?;
+        query::top_relations(&loaded.graph, a.min_docs, a.min_claims)
+    };
     if a.limit > 0 {
         rows.truncate(a.limit);
     }

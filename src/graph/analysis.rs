@@ -57,22 +57,28 @@ pub struct Hop {
     pub rows: Vec<usize>,
 }
 
-fn hop(g: &ClaimGraph, spec: &WeightSpec, a: NodeIndex, b: NodeIndex, rel: &Relation) -> Hop {
+/// The rows a hop shows as evidence: those of `rel` that state it (no denials, no questions),
+/// one per document first.
+pub fn hop_rows(g: &ClaimGraph, rel: &Relation) -> Vec<usize> {
     let support: Vec<usize> = rel
         .rows
         .iter()
         .copied()
         .filter(|&r| is_statement(g, r))
         .collect();
+    spread(g, &support)
+}
+
+fn hop(g: &ClaimGraph, spec: &WeightSpec, a: NodeIndex, b: NodeIndex, rel: &Relation) -> Hop {
     Hop {
         cause: g.graph[a].key.clone(),
         effect: g.graph[b].key.clone(),
         cause_label: g.graph[a].label.clone(),
         effect_label: g.graph[b].label.clone(),
         weight: spec.weight(g, rel),
-        documents: rel.docs.len(),
+        documents: rel.documents(),
         sign: Sign::of(rel),
-        rows: spread(g, &support),
+        rows: hop_rows(g, rel),
     }
 }
 
@@ -430,7 +436,7 @@ pub fn matrix(g: &ClaimGraph, spec: &WeightSpec, keys: &[String], cell: Cell) ->
                     };
                     rel.map(|r| match cell {
                         Cell::Weight => spec.weight(g, r),
-                        Cell::Documents => r.docs.len() as f64,
+                        Cell::Documents => r.documents() as f64,
                         Cell::Mentions => r.counts.total as f64,
                     })
                     .unwrap_or(0.0)

@@ -132,8 +132,8 @@ fn edge_of(
         source: g.graph[a].key.clone(),
         target: g.graph[b].key.clone(),
         mentions: c.total,
-        documents: rel.docs.len(),
-        sentences: rel.sentences.len(),
+        documents: rel.documents(),
+        sentences: rel.sentence_count(),
         association: g.association(a, b).map(|r| r.counts.total).unwrap_or(0),
         asserted: c.modality(Modality::Asserted),
         hedged: c.modality(Modality::Hedged),
@@ -167,7 +167,7 @@ pub fn selected_edges(g: &ClaimGraph, s: &Selection) -> Vec<(NodeIndex, NodeInde
     let mut edges: Vec<(NodeIndex, NodeIndex)> = g
         .edges()
         .filter(|(a, b, r)| {
-            r.docs.len() >= s.min_docs
+            r.documents() >= s.min_docs
                 && r.counts.total >= s.min_claims
                 && in_vars(*a)
                 && in_vars(*b)

@@ -30,7 +30,8 @@ mod sign;
 mod weight;
 
 pub use analysis::{
-    conflicts, cycles, matrix, paths, Cell, Chain, Conflict, ConflictKind, ConflictSide, Cycle, Hop,
+    conflicts, cycles, hop_rows, matrix, paths, Cell, Chain, Conflict, ConflictKind, ConflictSide,
+    Cycle, Hop,
 };
 pub use dedupe::{drop_near_duplicates, near_duplicates, DEDUPE_THRESHOLD};
 pub use sign::Sign;
@@ -55,6 +56,14 @@ pub struct Filter {
 }
 
 impl Filter {
+    /// Whether the filter accepts every claim.
+    pub fn is_empty(&self) -> bool {
+        self.kind.is_none()
+            && self.polarity.is_none()
+            && self.modality.is_none()
+            && self.min_confidence.is_none()
+    }
+
     pub fn accepts(&self, r: &ClaimRow) -> bool {
         self.accepts_parts(r.kind, r.polarity, r.modality, r.confidence)
     }
@@ -125,6 +134,21 @@ pub struct Relation {
     pub sentences: BTreeSet<(u32, u64)>,
     /// Row indices, in corpus order.
     pub rows: Vec<usize>,
+    /// In a graph built from the store's aggregate tables, what stands in for the rows:
+    /// `docs`, `sentences` and `rows` are then empty.
+    pub totals: Option<Box<Totals>>,
+}
+
+/// A relation's counts that its rows would give, for a graph built without rows.
+#[derive(Debug, Clone, Default)]
+pub struct Totals {
+    pub docs: usize,
+    pub sentences: usize,
+    /// Documents and sentences by weight profile (claims by weight class: asserted, hedged,
+    /// conditional, question, negated or "no effect"), and claims by weight class.
+    pub doc_profiles: Vec<([u32; 5], u32)>,
+    pub sentence_profiles: Vec<([u32; 5], u32)>,
+    pub classes: [u64; 5],
 }
 
 impl Relation {
@@ -133,6 +157,16 @@ impl Relation {
         self.docs.insert(doc);
         self.sentences.insert((doc, r.sentence));
         self.rows.push(row);
+    }
+    /// Distinct documents that state the relation.
+    pub fn documents(&self) -> usize {
+        self.totals.as_ref().map_or(self.docs.len(), |t| t.docs)
+    }
+    /// Distinct sentences that state the relation.
+    pub fn sentence_count(&self) -> usize {
+        self.totals
+            .as_ref()
+            .map_or(self.sentences.len(), |t| t.sentences)
     }
     /// Claims that support the relation: all but the negated ones.
     pub fn support(&self) -> usize {

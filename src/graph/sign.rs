@@ -16,7 +16,7 @@
 //! *unsigned*. docs/graph.md states the rule for users.
 
 use crate::claim::Polarity;
-use crate::graph::Relation;
+use crate::graph::{Counts, Relation};
 use serde::Serialize;
 use std::fmt;
 
@@ -60,7 +60,11 @@ impl Sign {
     /// decrease and prevent), mixed when they tie; without any, no effect when "has no effect"
     /// claims outnumber unsigned ones, else unsigned.
     pub fn of(rel: &Relation) -> Sign {
-        let c = &rel.counts;
+        Sign::of_counts(&rel.counts)
+    }
+
+    /// [`Sign::of`] from an edge's counts alone.
+    pub fn of_counts(c: &Counts) -> Sign {
         let inc = c.stated(Polarity::Increase);
         let dec = c.stated(Polarity::Decrease) + c.stated(Polarity::Prevent);
         match inc.cmp(&dec) {

@@ -87,6 +87,9 @@ impl WeightSpec {
 
     /// The weight of a relation: the sum over its units of the mean value of the unit's claims.
     pub fn weight(&self, g: &ClaimGraph, rel: &Relation) -> f64 {
+        if let Some(t) = &rel.totals {
+            return self.weight_of_profiles(&t.doc_profiles, &t.sentence_profiles, t.classes);
+        }
         let mut units: BTreeMap<(&str, u64, usize), (f64, usize)> = BTreeMap::new();
         for &i in &rel.rows {
             let r = &g.rows[i];
@@ -101,6 +104,50 @@ impl WeightSpec {
         }
         let w: f64 = units.values().map(|(s, n)| s / *n as f64).sum();
         // Keep exports stable: no "-0" and no float noise past 6 decimals.
+        let w = (w * 1e6).round() / 1e6;
+        if w == 0.0 {
+            0.0
+        } else {
+            w
+        }
+    }
+
+    /// The weight from a relation's units by profile: how many units (documents or sentences,
+    /// as `self.unit` says) have each count of claims by weight class (asserted, hedged,
+    /// conditional, question, negated or "no effect"). For `Unit::Mentions`, the profiles
+    /// are not read: `classes` (claims by weight class) give it. The same value as
+    /// [`WeightSpec::weight`] on the relation's rows.
+    pub fn weight_of_profiles(
+        &self,
+        docs: &[([u32; 5], u32)],
+        sentences: &[([u32; 5], u32)],
+        classes: [u64; 5],
+    ) -> f64 {
+        let values = [
+            self.asserted,
+            self.hedged,
+            self.conditional,
+            self.question,
+            self.negated,
+        ];
+        let w: f64 = match self.unit {
+            Unit::Mentions => classes.iter().zip(values).map(|(&n, v)| n as f64 * v).sum(),
+            Unit::Documents | Unit::Sentences => {
+                let units = if self.unit == Unit::Documents {
+                    docs
+                } else {
+                    sentences
+                };
+                units
+                    .iter()
+                    .map(|(p, count)| {
+                        let n: u32 = p.iter().sum();
+                        let s: f64 = p.iter().zip(values).map(|(&k, v)| k as f64 * v).sum();
+                        *count as f64 * (s / n.max(1) as f64)
+                    })
+                    .sum()
+            }
+        };
         let w = (w * 1e6).round() / 1e6;
         if w == 0.0 {
             0.0

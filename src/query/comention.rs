@@ -180,13 +180,8 @@ fn nested(a: &str, b: &str) -> bool {
     ta.iter().all(|t| tb.contains(t)) || tb.iter().all(|t| ta.contains(t))
 }
 
-/// The most-mentioned `vars` variables, paired up: pairs named together in sentences without a
-/// claim between them and with no causal claim either way, most co-mentioned first.
-pub fn co_mention_pairs(
-    g: &ClaimGraph,
-    store: &mut Store,
-    vars: usize,
-) -> Result<Vec<CoMention>, StoreError> {
+/// The `vars` most-mentioned variables (ties by key), whose pairs [`co_mention_pairs`] counts.
+pub fn co_mention_nodes(g: &ClaimGraph, vars: usize) -> Vec<NodeIndex> {
     let mut nodes: Vec<NodeIndex> = g.graph.node_indices().collect();
     nodes.sort_by(|&x, &y| {
         g.graph[y]
@@ -195,6 +190,17 @@ pub fn co_mention_pairs(
             .then_with(|| g.graph[x].key.cmp(&g.graph[y].key))
     });
     nodes.truncate(vars);
+    nodes
+}
+
+/// The most-mentioned `vars` variables, paired up: pairs named together in sentences without a
+/// claim between them and with no causal claim either way, most co-mentioned first.
+pub fn co_mention_pairs(
+    g: &ClaimGraph,
+    store: &mut Store,
+    vars: usize,
+) -> Result<Vec<CoMention>, StoreError> {
+    let nodes = co_mention_nodes(g, vars);
     let mut sets = Vec::with_capacity(nodes.len());
     for &n in &nodes {
         let terms = key_terms(&g.graph[n].key);

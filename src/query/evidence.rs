@@ -1,12 +1,13 @@
 //! Evidence: the sentences behind a relation or a chain, fetched from the store for the rows
 //! the graph points at.
 
-use super::load::Loaded;
+use super::load::{relations_graph, Loaded};
 use crate::claim::{Modality, Polarity};
-use crate::graph::{ClaimGraph, Hop, Relation};
+use crate::error::StoreError;
+use crate::graph::{hop_rows, ClaimGraph, Hop, Relation};
 use crate::store::Store;
 use serde::Serialize;
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashSet};
 
 /// One evidence sentence with its place, as the analyses print it.
 #[derive(Debug, Clone, Serialize)]
@@ -41,6 +42,24 @@ pub fn evidence_text(g: &ClaimGraph, store: &Store, r: usize) -> (String, String
     }
 }
 
+/// The first `n` of `rows` (rows of `g`) with their sentences from the store.
+fn evidence_lines(g: &ClaimGraph, store: &Store, rows: &[usize], n: usize) -> Vec<EvidenceLine> {
+    rows.iter()
+        .take(n)
+        .map(|&r| {
+            let row = &g.rows[r];
+            let (location, sentence) = evidence_text(g, store, r);
+            EvidenceLine {
+                location,
+                polarity: row.polarity,
+                modality: row.modality,
+                cue: row.cue.clone(),
+                sentence,
+            }
+        })
+        .collect()
+}
+
 fn modality_rank(m: Modality) -> u8 {
     match m {
         Modality::Asserted => 0,
@@ -70,20 +89,50 @@ pub fn strongest_rows(g: &ClaimGraph, rel: &Relation, n: usize) -> Vec<usize> {
 impl Loaded {
     /// The first `n` of `rows` (graph row indices) with their sentences from the store.
     pub fn evidence(&self, rows: &[usize], n: usize) -> Vec<EvidenceLine> {
-        rows.iter()
-            .take(n)
-            .map(|&r| {
-                let row = &self.graph.rows[r];
-                let (location, sentence) = evidence_text(&self.graph, &self.store, r);
-                EvidenceLine {
-                    location,
-                    polarity: row.polarity,
-                    modality: row.modality,
-                    cue: row.cue.clone(),
-                    sentence,
-                }
+        evidence_lines(&self.graph, &self.store, rows, n)
+    }
+
+    /// The hops of each chain (or cycle) with their first `n` evidence sentences. In a graph
+    /// built from aggregates, which has no rows, the rows of the hops' edges are read first
+    /// (through the postings), and only when evidence is asked for.
+    pub fn chains_evidence<'a>(
+        &self,
+        chains: &[&'a [Hop]],
+        n: usize,
+    ) -> Result<Vec<Vec<HopEvidence<'a>>>, StoreError> {
+        if !self.from_aggregates {
+            return Ok(chains.iter().map(|h| self.hops(h, n)).collect());
+        }
+        let wanted: HashSet<(String, String)> = if n == 0 {
+            HashSet::new()
+        } else {
+            chains
+                .iter()
+                .flat_map(|h| h.iter())
+                .map(|h| (h.cause.clone(), h.effect.clone()))
+                .collect()
+        };
+        let sub = relations_graph(&self.store, &self.aliases, &wanted)?;
+        Ok(chains
+            .iter()
+            .map(|hops| {
+                hops.iter()
+                    .map(|h| {
+                        let rows = match (sub.index.get(&h.cause), sub.index.get(&h.effect)) {
+                            (Some(&a), Some(&b)) => sub
+                                .edge(a, b)
+                                .map(|rel| hop_rows(&sub, rel))
+                                .unwrap_or_default(),
+                            _ => Vec::new(),
+                        };
+                        HopEvidence {
+                            hop: h,
+                            evidence: evidence_lines(&sub, &self.store, &rows, n),
+                        }
+                    })
+                    .collect()
             })
-            .collect()
+            .collect())
     }
 
     /// The strongest `n` rows of a relation (`strongest_rows`: plain assertions first, one per document before a second) with their sentences.

@@ -18,6 +18,7 @@
 //! Architecture invariant: queries never print; every count in a query's answer counts
 //! statements in text, not evidence that a causation is real.
 
+mod aggregate;
 mod comention;
 mod evidence;
 mod load;
@@ -28,11 +29,14 @@ mod top;
 mod variables;
 
 pub use crate::graph::{conflicts, Conflict, ConflictKind};
-pub use comention::{claim_sentences, co_mention_pairs, CoMention, MentionIndex};
+pub use aggregate::{
+    aggregate, conflict_candidates, graph_from_aggregates, AggRelation, AggVariable, Aggregated,
+};
+pub use comention::{claim_sentences, co_mention_nodes, co_mention_pairs, CoMention, MentionIndex};
 pub use evidence::{EvidenceLine, HopEvidence};
-pub use load::{load, load_naming, Loaded};
+pub use load::{load, load_aggregated, load_naming, load_relations, relations_graph, Loaded};
 pub use lookup::{lookup, Looked, VarMatch};
-pub use overview::{corpus_summary, heaviest_edges, CorpusSummary};
+pub use overview::{corpus_summary, corpus_summary_of, heaviest_edges, CorpusSummary};
 pub use pair::{pair_report, DirectionSummary, Evidence, PairGraph, PairQuery, PairReport};
-pub use top::{top_relations, TopRelation};
+pub use top::{top_from_aggregates, top_relations, TopRelation};
 pub use variables::{abbreviation_list, alias_file, Nearby, SortBy, VariableRow};

@@ -1,5 +1,6 @@
 //! The corpus at a glance, and the heaviest part of its graph: what a summary page opens with.
 
+use super::aggregate::Aggregated;
 use super::load::Loaded;
 use crate::claim::{Kind, Modality, Polarity};
 use crate::corpus::Skipped;
@@ -51,6 +52,32 @@ pub fn corpus_summary(loaded: &Loaded) -> CorpusSummary {
         *s.by_kind.entry(r.kind).or_default() += 1;
         *s.by_polarity.entry(r.polarity).or_default() += 1;
         *s.by_modality.entry(r.modality).or_default() += 1;
+    }
+    s
+}
+
+/// [`corpus_summary`] of a graph built from aggregates: the claims by kind, polarity and
+/// modality are summed from the relations' counts.
+pub fn corpus_summary_of(loaded: &Loaded, agg: &Aggregated) -> CorpusSummary {
+    let mut s = corpus_summary(loaded);
+    // The graph's rows are only those read for evidence.
+    s.claims = 0;
+    s.by_kind.clear();
+    s.by_polarity.clear();
+    s.by_modality.clear();
+    for r in &agg.relations {
+        s.claims += r.total;
+        if r.total > 0 {
+            *s.by_kind.entry(r.kind).or_default() += r.total;
+        }
+        for (p, ms) in &r.counts().by {
+            for (m, n) in ms {
+                if *n > 0 {
+                    *s.by_polarity.entry(*p).or_default() += n;
+                    *s.by_modality.entry(*m).or_default() += n;
+                }
+            }
+        }
     }
     s
 }

@@ -41,8 +41,8 @@ impl DirectionSummary {
         let c = &r.counts;
         DirectionSummary {
             claims: c.total,
-            documents: r.docs.len(),
-            sentences: r.sentences.len(),
+            documents: r.documents(),
+            sentences: r.sentence_count(),
             asserted: c.modality(Modality::Asserted),
             hedged: c.modality(Modality::Hedged),
             negated: c.modality(Modality::Negated),

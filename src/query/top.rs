@@ -1,5 +1,6 @@
 //! `top`: the most-stated relations, causal and association.
 
+use super::aggregate::{AggRelation, Aggregated};
 use crate::claim::{Kind, Modality};
 use crate::graph::{ClaimGraph, Relation, Sign};
 use petgraph::graph::NodeIndex;
@@ -30,7 +31,7 @@ pub struct TopRelation {
 pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<TopRelation> {
     let mut out = Vec::new();
     let mut push = |kind: Kind, a: NodeIndex, b: NodeIndex, rel: &Relation| {
-        if rel.docs.len() < min_docs || rel.counts.total < min_claims {
+        if rel.documents() < min_docs || rel.counts.total < min_claims {
             return;
         }
         let first = rel
@@ -44,7 +45,7 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
             effect: g.graph[b].label.clone(),
             cause_key: g.graph[a].key.clone(),
             effect_key: g.graph[b].key.clone(),
-            documents: rel.docs.len(),
+            documents: rel.documents(),
             claims: rel.counts.total,
             asserted: rel.counts.modality(Modality::Asserted),
             hedged: rel.counts.modality(Modality::Hedged),
@@ -73,6 +74,13 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
         };
         push(Kind::Association, a, b, rel);
     }
+    rank(&mut out);
+    out
+}
+
+/// Ranked by distinct documents, then claims, then the keys and the kind: a total order, so no
+/// two relations tie.
+fn rank(out: &mut [TopRelation]) {
     out.sort_by(|x, y| {
         y.documents
             .cmp(&x.documents)
@@ -81,7 +89,66 @@ pub fn top_relations(g: &ClaimGraph, min_docs: usize, min_claims: usize) -> Vec<
             .then_with(|| x.effect_key.cmp(&y.effect_key))
             .then(x.kind.cmp(&y.kind))
     });
-    out
+}
+
+/// [`top_relations`] from a store's aggregates, the first `limit` (0: all): the same lines as
+/// from the graph of every row with no filter. Only the lines kept are built.
+pub fn top_from_aggregates(
+    agg: &Aggregated,
+    min_docs: usize,
+    min_claims: usize,
+    limit: usize,
+) -> Vec<TopRelation> {
+    // An association is shown as its first claim states it (see `top_relations`).
+    fn ends(rel: &AggRelation) -> (&str, &str) {
+        if rel.kind == Kind::Association && rel.first_cause == rel.b {
+            (&rel.b, &rel.a)
+        } else {
+            (&rel.a, &rel.b)
+        }
+    }
+    let mut kept: Vec<(&AggRelation, &str, &str)> = agg
+        .relations
+        .iter()
+        .filter(|r| r.docs >= min_docs && r.total >= min_claims)
+        .map(|r| {
+            let (a, b) = ends(r);
+            (r, a, b)
+        })
+        .collect();
+    // The order of `rank`.
+    kept.sort_unstable_by(|x, y| {
+        y.0.docs
+            .cmp(&x.0.docs)
+            .then(y.0.total.cmp(&x.0.total))
+            .then_with(|| x.1.cmp(y.1))
+            .then_with(|| x.2.cmp(y.2))
+            .then(x.0.kind.cmp(&y.0.kind))
+    });
+    if limit > 0 {
+        kept.truncate(limit);
+    }
+    kept.into_iter()
+        .map(|(rel, a, b)| {
+            let c = &rel.counts();
+            TopRelation {
+                kind: rel.kind,
+                cause: agg.label(a),
+                effect: agg.label(b),
+                cause_key: a.to_string(),
+                effect_key: b.to_string(),
+                documents: rel.docs,
+                claims: c.total,
+                asserted: c.modality(Modality::Asserted),
+                hedged: c.modality(Modality::Hedged),
+                negated: c.modality(Modality::Negated),
+                conditional: c.modality(Modality::Conditional),
+                question: c.modality(Modality::Question),
+                sign: Sign::of_counts(c),
+                first: format!("{}:{}", rel.first_doc, rel.first_line),
+            }
+        })
+        .collect()
 }
 
 #[cfg(test)]

@@ -6,8 +6,8 @@ use crate::claim::Modality;
 use crate::compare::Summary as ComparisonSummary;
 use crate::error::StoreError;
 use crate::graph::{ClaimGraph, Relation, Sign};
-use crate::query::{self, ConflictKind, Loaded};
-use std::collections::{BTreeMap, BTreeSet, HashMap};
+use crate::query::{self, Aggregated, ConflictKind, Loaded};
+use std::collections::{BTreeMap, BTreeSet, HashMap, HashSet};
 
 /// What to gather beside the graph.
 pub struct Sources<'a> {
@@ -17,6 +17,48 @@ pub struct Sources<'a> {
     pub pair: Option<(&'a str, &'a str)>,
     /// With `--compare`: the per-model, per-family summaries of `hearsay compare`.
     pub comparison: Option<Vec<ComparisonSummary>>,
+    /// The store's aggregates, when `loaded` was built from them ([`query::load_aggregated`]):
+    /// the relations whose rows the page shows are then read, and no other row.
+    pub aggregated: Option<&'a Aggregated>,
+}
+
+/// In a graph built from aggregates, read the rows of what the page shows sentences of or
+/// counts rows of: the conflict candidates, the pictured edges, the `--pair` relations and
+/// the associations among the co-mention variables.
+fn hydrate(
+    loaded: &mut Loaded,
+    agg: &Aggregated,
+    pair: Option<(&str, &str)>,
+    opts: &Options,
+) -> Result<(), StoreError> {
+    let g = &loaded.graph;
+    let mut causal = query::conflict_candidates(agg, 1);
+    let mut assoc = HashSet::new();
+    for e in query::heaviest_edges(g, opts.edges).edges {
+        causal.insert((e.source, e.target));
+    }
+    let ordered = |a: &str, b: &str| {
+        if a <= b {
+            (a.to_string(), b.to_string())
+        } else {
+            (b.to_string(), a.to_string())
+        }
+    };
+    if let Some((x, y)) = pair {
+        let (x, y) = (loaded.lookup(x).0.key, loaded.lookup(y).0.key);
+        causal.insert((x.clone(), y.clone()));
+        causal.insert((y.clone(), x.clone()));
+        assoc.insert(ordered(&x, &y));
+    }
+    let nodes = query::co_mention_nodes(g, opts.co_mention_vars);
+    for (i, &a) in nodes.iter().enumerate() {
+        for &b in &nodes[i + 1..] {
+            if g.association(a, b).is_some() {
+                assoc.insert(ordered(&g.graph[a].key, &g.graph[b].key));
+            }
+        }
+    }
+    loaded.hydrate(&causal, &assoc)
 }
 
 /// Gather the report's data.
@@ -25,7 +67,14 @@ pub fn collect(
     src: Sources<'_>,
     opts: &Options,
 ) -> Result<Report, StoreError> {
-    let mut top = query::top_relations(&loaded.graph, 1, 1);
+    let agg = src.aggregated.filter(|_| loaded.from_aggregates);
+    if let Some(agg) = agg {
+        hydrate(loaded, agg, src.pair, opts)?;
+    }
+    let mut top = match agg {
+        Some(agg) => query::top_from_aggregates(agg, 1, 1, opts.rows),
+        None => query::top_relations(&loaded.graph, 1, 1),
+    };
     top.truncate(opts.rows);
     let mut co_mentions = loaded.co_mention_pairs(opts.co_mention_vars)?;
     co_mentions.truncate(opts.rows);
@@ -51,12 +100,21 @@ pub fn collect(
     conflicts.truncate(opts.rows);
     Ok(Report {
         title: opts.title.clone(),
-        summary: query::corpus_summary(loaded),
+        summary: match agg {
+            Some(agg) => query::corpus_summary_of(loaded, agg),
+            None => query::corpus_summary(loaded),
+        },
         nodes,
         edges,
         support_per_edge: g.edges().map(|(_, _, r)| r.support()).collect(),
         both_ways: both_ways(g),
-        families: family_counts(g, src.families),
+        families: match agg {
+            Some(agg) => family_counts_of(
+                agg.cues.iter().map(|(c, n)| (c.as_str(), *n as usize)),
+                src.families,
+            ),
+            None => family_counts_of(g.rows.iter().map(|r| (r.cue.as_str(), 1)), src.families),
+        },
         top,
         conflicts,
         co_mentions,
@@ -111,7 +169,7 @@ fn picture(
             target: slot[e.target.as_str()],
             claims: rel.counts.total,
             support: rel.support(),
-            documents: rel.docs.len(),
+            documents: rel.documents(),
             weight: e.weight,
             modality,
             polarity,
@@ -168,12 +226,16 @@ fn both_ways(g: &ClaimGraph) -> Vec<BothWays> {
     out
 }
 
-/// Claims per cue family (cues unknown to the pattern set count under "other").
-fn family_counts(g: &ClaimGraph, families: &HashMap<String, String>) -> Vec<(String, usize)> {
+/// Claims per cue family (cues unknown to the pattern set count under "other"), from claims
+/// per cue.
+fn family_counts_of<'a>(
+    cues: impl Iterator<Item = (&'a str, usize)>,
+    families: &'a HashMap<String, String>,
+) -> Vec<(String, usize)> {
     let mut m: BTreeMap<&str, usize> = BTreeMap::new();
-    for r in &g.rows {
-        let f = families.get(&r.cue).map(String::as_str).unwrap_or("other");
-        *m.entry(f).or_default() += 1;
+    for (cue, n) in cues {
+        let f = families.get(cue).map(String::as_str).unwrap_or("other");
+        *m.entry(f).or_default() += n;
     }
     let mut v: Vec<(String, usize)> = m.into_iter().map(|(k, n)| (k.to_string(), n)).collect();
     v.sort_by(|x, y| y.1.cmp(&x.1).then_with(|| x.0.cmp(&y.0)));

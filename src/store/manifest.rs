@@ -21,9 +21,11 @@ use std::path::Path;
 /// records a changed file no longer has). 5: every segment has postings (`seg-NNNNNN.post`,
 /// variable key to rows), which `pair` and `claims --cause/--effect/--var` read instead of every
 /// row; claim records are zstd-compressed in blocks (`seg-NNNNNN.jsonl.zst`, a claim's place is
-/// its block and its bytes within); a version 4 store has neither. 6: every commit writes the
-/// store's vocabulary (`vocabulary-NNNNNN.json.zst`: per file, abbreviation definitions and the
-/// heads of variable keys), which `variables` and `--roll-up` read.
+/// its block and its bytes within); a version 4 store has neither. 6: every live segment has
+/// aggregate tables (`seg-NNNNNN.<live rows>.agg`: per variable key and per relation), which
+/// the aggregate-reading queries read instead of the rows, and every commit writes the store's
+/// vocabulary (`vocabulary-NNNNNN.json.zst`: per file, abbreviation definitions and the heads of
+/// variable keys), which `variables` and `--roll-up` read; a version 5 store has neither.
 pub(super) const STORE_VERSION: u32 = 6;
 
 /// One input file as the store knows it.

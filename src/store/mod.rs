@@ -38,6 +38,7 @@
 //! [`ClaimRow`], [`ClaimRef`]). The store reads files through [`crate::corpus`] and extracts
 //! with [`crate::extract`]; it never uses the graph or anything above it.
 
+mod aggregates;
 mod index;
 mod manifest;
 mod merge;
@@ -52,6 +53,9 @@ mod writer;
 #[cfg(test)]
 mod tests;
 
+pub use aggregates::{
+    weight_class, Aggregator, Grid, KeyAggregate, Profile, RelationAggregate, SegmentAggregates,
+};
 pub use index::key_terms;
 pub use manifest::{FileEntry, Manifest};
 pub use merge::{FileRecord, FileStart, Merge, SentenceRecord};

@@ -1,6 +1,7 @@
 //! Reading a store: the manifest, the compact rows the graph is built from, the full claim
 //! records they point at, and sentence lookups in the search index.
 
+use super::aggregates::{self, SegmentAggregates};
 use super::index::SentenceIndex;
 use super::manifest::{load, seg_name, Manifest};
 use super::postings::Postings;
@@ -35,7 +36,7 @@ const CACHED_BLOCKS: usize = 16;
 const MAX_BLOCK: u64 = 64 << 20;
 
 /// A segment's rows: postcard records back to back.
-fn decode_rows<'a, T: Deserialize<'a>>(
+pub(super) fn decode_rows<'a, T: Deserialize<'a>>(
     path: &Path,
     mut bytes: &'a [u8],
 ) -> Result<Vec<T>, StoreError> {
@@ -49,6 +50,49 @@ fn decode_rows<'a, T: Deserialize<'a>>(
         bytes = rest;
     }
     Ok(out)
+}
+
+/// Every row of a segment's rows file with its row number, decoded as a stream (1 MiB read at
+/// a time), so that a pass over a segment holds one row, not the file.
+pub(super) fn for_each_row(
+    path: &Path,
+    mut f: impl FnMut(u64, ClaimRow),
+) -> Result<(), StoreError> {
+    const CHUNK: usize = 1 << 20;
+    let mut file = File::open(path).map_err(|e| StoreError::io(path, e))?;
+    let mut buf: Vec<u8> = Vec::new();
+    let (mut start, mut n, mut eof) = (0usize, 0u64, false);
+    loop {
+        if start < buf.len() {
+            match postcard::take_from_bytes::<ClaimRow>(&buf[start..]) {
+                Ok((row, rest)) => {
+                    start = buf.len() - rest.len();
+                    f(n, row);
+                    n += 1;
+                    continue;
+                }
+                // A row cut by the end of the buffer: read on (a row is far below MAX_BLOCK).
+                Err(_) if !eof && buf.len() - start < MAX_BLOCK as usize => {}
+                Err(e) => {
+                    return Err(StoreError::Corrupt {
+                        path: path.to_path_buf(),
+                        message: format!("row {n}: {e}"),
+                    })
+                }
+            }
+        } else if eof {
+            return Ok(());
+        }
+        buf.drain(..start);
+        start = 0;
+        let old = buf.len();
+        buf.resize(old + CHUNK, 0);
+        let got = file
+            .read(&mut buf[old..])
+            .map_err(|e| StoreError::io(path, e))?;
+        buf.truncate(old + got);
+        eof = got == 0;
+    }
 }
 
 impl Store {
@@ -107,8 +151,22 @@ impl Store {
     pub fn rows_naming(
         &self,
         post: &PostingIndex,
-        mut wanted: impl FnMut(&str) -> bool,
+        wanted: impl FnMut(&str) -> bool,
     ) -> Result<Vec<ClaimRow>, StoreError> {
+        Ok(self
+            .rows_naming_at(post, wanted)?
+            .into_iter()
+            .map(|(_, r)| r)
+            .collect())
+    }
+
+    /// [`Store::rows_naming`] with each row's ordinal in corpus order (as [`Store::ordinals`]
+    /// gives it).
+    pub fn rows_naming_at(
+        &self,
+        post: &PostingIndex,
+        mut wanted: impl FnMut(&str) -> bool,
+    ) -> Result<Vec<(u64, ClaimRow)>, StoreError> {
         let mut by_seg: HashMap<u32, Vec<(usize, ClaimRow)>> = HashMap::new();
         for (seg, p) in &post.segs {
             let at = p.rows(&mut wanted)?;
@@ -142,7 +200,7 @@ impl Store {
             by_seg.insert(*seg, kept);
         }
         let mut out = Vec::new();
-        for f in &self.manifest.files {
+        for (fi, f) in self.manifest.files.iter().enumerate() {
             if f.claims == 0 {
                 continue;
             }
@@ -156,10 +214,45 @@ impl Store {
                 let (a, b) = (a as usize, b as usize);
                 let from = rows.partition_point(|(i, _)| *i < a);
                 let to = rows.partition_point(|(i, _)| *i < b);
-                out.extend(rows[from..to.max(from)].iter().map(|(_, r)| r.clone()));
+                out.extend(
+                    rows[from..to.max(from)]
+                        .iter()
+                        .map(|(i, r)| (((fi as u64) << 32) | *i as u64, r.clone())),
+                );
             }
         }
         Ok(out)
+    }
+
+    /// The aggregates of every live segment (`aggregates`), with the segment's number.
+    pub fn aggregates(&self) -> Result<Vec<(u32, SegmentAggregates)>, StoreError> {
+        let mut out = Vec::new();
+        for seg in self.manifest.segments() {
+            let p = self.dir.join(aggregates::file_name(&self.manifest, seg));
+            out.push((seg, SegmentAggregates::open(&p)?));
+        }
+        Ok(out)
+    }
+
+    /// Where rows of each segment are in corpus order: a function from (segment, row number)
+    /// to an ordinal that sorts as [`Store::rows`] lists the rows (the file's place in the
+    /// manifest, then the row number), `None` for a row no file owns.
+    pub fn ordinals(&self) -> impl Fn(u32, u64) -> Option<u64> + '_ {
+        let mut ranges: Vec<(u32, u64, u64, u64)> = Vec::new();
+        for (i, f) in self.manifest.files.iter().enumerate() {
+            if f.claims == 0 {
+                continue;
+            }
+            for (a, b) in f.row_ranges() {
+                ranges.push((f.segment, a, b, i as u64));
+            }
+        }
+        ranges.sort_unstable();
+        move |seg, row| {
+            let at = ranges.partition_point(|r| (r.0, r.1) <= (seg, row));
+            let r = ranges.get(at.checked_sub(1)?)?;
+            (r.0 == seg && row < r.2).then_some((r.3 << 32) | row)
+        }
     }
 
     /// The full claim record a row points at.

@@ -1,6 +1,7 @@
 //! Writing a store: a new segment of claim records and rows, sentences into the search index,
 //! and at commit the manifest that switches the store to them.
 
+use super::aggregates;
 use super::index::{open_index, Fields};
 use super::manifest::{
     load, seg_name, segment_number, write_atomic, FileEntry, Manifest, STORE_VERSION,
@@ -373,6 +374,7 @@ impl StoreWriter {
             skipped,
             failed,
         };
+        aggregates::write_missing(&self.dir, &manifest)?;
         let json = serde_json::to_vec_pretty(&manifest).map_err(|e| StoreError::Corrupt {
             path: self.dir.clone(),
             message: e.to_string(),
@@ -385,7 +387,9 @@ impl StoreWriter {
             for e in rd.flatten() {
                 let name = e.file_name().to_string_lossy().into_owned();
                 if let Some(n) = segment_number(&name) {
-                    if !live.contains(&n) {
+                    let stale_aggregates = aggregates::is_aggregate_file(&name)
+                        && name != aggregates::file_name(&manifest, n);
+                    if !live.contains(&n) || stale_aggregates {
                         let _ = fs::remove_file(e.path());
                     }
                 }

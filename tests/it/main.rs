@@ -1,6 +1,7 @@
 //! Integration tests: the real `hearsay` binary over the demo corpus, temporary stores and the
 //! shared external datasets. One binary, topic modules.
 
+mod aggregates;
 mod common;
 mod compare;
 mod compare_stats;

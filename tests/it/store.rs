@@ -432,7 +432,7 @@ fn every_store_file_damaged_in_turn_gives_an_error_naming_it() {
         }
     }
     files.sort();
-    for ext in [".post", ".rows", ".jsonl.zst", "manifest.json"] {
+    for ext in [".post", ".rows", ".agg", ".jsonl.zst", "manifest.json"] {
         assert!(
             files.iter().any(|f| f.to_string_lossy().ends_with(ext)),
             "no {ext} file in {files:?}"
@@ -484,7 +484,8 @@ fn every_store_file_damaged_in_turn_gives_an_error_naming_it() {
 
 /// Scan, change one file and delete another, re-scan: every query reads the same answers as a
 /// fresh scan of the corpus as it now is (the re-scanned store keeps the old segment, whose
-/// postings still list the changed file's old rows: the manifest must leave them out).
+/// postings still list the changed file's old rows: the manifest must leave them out, and the
+/// old segment's aggregate tables are rebuilt from its live rows).
 #[test]
 fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     let tmp = tempfile::tempdir().unwrap();
@@ -522,12 +523,19 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     assert_eq!(again["files_removed"], 1, "{again}");
     let fresh = tmp.path().join("fresh");
     scan(&corpus, &fresh);
+    let vars = tmp.path().join("vars.txt");
+    std::fs::write(&vars, format!("{x}\n{y}\nthe weather\n")).unwrap();
+    let vars = vars.to_str().unwrap();
     let answers = |s: &std::path::Path| -> Vec<Vec<u8>> {
-        let q: [&[&str]; 10] = [
+        let q: [&[&str]; 14] = [
             &["top", "-n", "0"],
             &["conflicts"],
             &["cycles"],
             &["graph", "--to", "graphml"],
+            &["graph", "--to", "json", "--weight-by", "sentences"],
+            &["matrix", "--vars", vars],
+            &["report"],
+            &["conflicts", "--limit", "0", "--min-confidence", "0"],
             &["claims"],
             &["claims", "--cause", &x],
             &["claims", "--var", &y],
@@ -566,7 +574,7 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     }
 }
 
-/// A store of an older layout (version 5: no vocabulary file) is refused by
+/// A store of an older layout (version 5: no aggregate tables, no vocabulary file) is refused by
 /// every query with its version named and a request to scan again; never read in part.
 #[test]
 fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
