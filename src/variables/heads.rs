@@ -424,7 +424,7 @@ mod tests {
 
     /// Accuracy on 144 hand-labelled variable phrases from the BECAUSE, SemEval-2010 Task 8
     /// and eLife texts (tests/data/heads/README.md says how they were drawn and labelled; each
-    /// dataset's SOURCE.txt under /work/shared/data names it). The head must match exactly
+    /// dataset's SOURCE.txt under ../shared/data names it). The head must match exactly
     /// (ignoring case); the full split must also match every qualifier in order.
     #[test]
     fn labelled_phrases_accuracy() {

@@ -160,7 +160,7 @@ fn forward(store: &Path, opts: &[&str], x: &str, y: &str) -> (u64, String) {
 }
 
 /// A store of `tests/data/rollup/`: sentences of four eLife articles, copied verbatim (SOURCE:
-/// /work/shared/data/elife-articles/SOURCE.txt; CC BY, each article's DOI is
+/// ../shared/data/elife-articles/SOURCE.txt; CC BY, each article's DOI is
 /// 10.7554/eLife.NNNNN for its file name; tests/data/rollup/README.md).
 fn rollup_store(dir: &Path) -> (PathBuf, PathBuf) {
     let corpus = dir.join("corpus");
@@ -256,7 +256,7 @@ fn abbreviations(store: &Path) -> Vec<(String, Vec<(String, u64)>)> {
 /// file, and a short form defined two ways stays split, is listed with both meanings, and is
 /// no longer merged. Sentences as in `pair_answers_by_abbreviation_long_form_and_head`; the
 /// second meaning is elife01293's own "reactive oxygen (ROS)" (SOURCE:
-/// /work/shared/data/elife-articles/SOURCE.txt).
+/// ../shared/data/elife-articles/SOURCE.txt).
 #[test]
 fn rescans_keep_stored_abbreviations_per_file() {
     let tmp = tempfile::tempdir().unwrap();

@@ -7,7 +7,8 @@ columns `is_definition`, `short` and `long` by reading the sentence.
 """
 import os, random, re, sys
 
-ROOT = "/work/shared/data/elife-articles/articles"
+DATA = os.environ.get("HEARSAY_SHARED_DATA", os.path.join(os.path.dirname(__file__), "../../../../shared/data"))
+ROOT = os.path.join(DATA, "elife-articles/articles")
 SEED = 20031
 N = 520
 SKIP = re.compile(r"^(fig|figure|table|video|supplementary|equation|eq\.|see|e\.g|i\.e|ref|reviewed)", re.I)

@@ -11,7 +11,7 @@ Phrases are the input heads.rs sees in use: spans of claims. They are labelled b
 """
 import json, os, random, re, subprocess, sys, tempfile
 
-DATA = "/work/shared/data"
+DATA = os.environ.get("HEARSAY_SHARED_DATA", os.path.join(os.path.dirname(__file__), "../../../../shared/data"))
 BIN = sys.argv[1]
 
 def extract(paths):
