@@ -48,10 +48,7 @@ const HEADERS: &[&str] = &[
 pub fn run(g: &Global, a: &ClaimsArgs) -> Result<ExitCode> {
     let filter = a.filter.to_filter();
     let (store, normalizer, aliases) = g.query_parts()?;
-    let key = |s: &Option<String>| {
-        s.as_ref()
-            .map(|s| aliases.resolve(&normalizer.key(s)).to_string())
-    };
+    let key = |s: &Option<String>| s.as_ref().map(|s| aliases.query_key(&normalizer, s));
     let (cause, effect, var) = (key(&a.cause), key(&a.effect), key(&a.var));
     // A claim printed names one of the variables asked for: only their rows are read (through
     // the store's postings), in the same order as the whole graph's rows.

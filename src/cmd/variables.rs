@@ -210,12 +210,38 @@ pub fn no_variable_note(loaded: &hearsay::query::Loaded, name: &str) -> String {
         })
         .collect();
     super::escape(&format!(
-        "no variable \"{name}\" in the claims (key \"{}\"){}",
+        "no variable \"{name}\" in the claims (key \"{}\"){}{}",
         m.key,
         if list.is_empty() {
             String::new()
         } else {
             format!("; did you mean: {}", list.join(", "))
-        }
+        },
+        head_level_hint(loaded, name)
     ))
+}
+
+/// At the variable level, a qualified name whose head is a variable ("nitrogen runoff from
+/// fields" when only "nitrogen runoff" is stated) is answered by `--roll-up heads`: say so, with
+/// the head's counts, rather than leave the user to guess the option.
+fn head_level_hint(loaded: &hearsay::query::Loaded, name: &str) -> String {
+    if loaded.aliases.level() != hearsay::variables::rollup::Level::Variable {
+        return String::new();
+    }
+    let split = hearsay::variables::heads::split(name);
+    if split.is_bare() {
+        return String::new();
+    }
+    match loaded.lookup(&split.head) {
+        (_, Some(n)) => {
+            let v = &loaded.graph.graph[n];
+            format!(
+                "; its head \"{}\" is a variable ({}, {}): --roll-up heads counts at that level",
+                v.label,
+                super::output::count(v.mentions, "claim"),
+                super::output::count(v.docs, "document")
+            )
+        }
+        _ => String::new(),
+    }
 }

@@ -26,7 +26,7 @@ pub type Looked = (VarMatch, Option<NodeIndex>);
 
 /// Find a variable by a name the user typed.
 pub fn lookup(g: &ClaimGraph, normalizer: &Normalizer, aliases: &Aliases, query: &str) -> Looked {
-    let key = aliases.resolve(&normalizer.key(query)).to_string();
+    let key = aliases.query_key(normalizer, query);
     let node = g.index.get(&key).copied();
     let mut suggestions = Vec::new();
     if node.is_none() && !key.is_empty() {

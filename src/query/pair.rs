@@ -221,7 +221,7 @@ impl PairQuery {
         filter: &Filter,
         whole_graph: bool,
     ) -> Result<PairGraph, StoreError> {
-        let key = |q: &str| self.aliases.resolve(&self.normalizer.key(q)).to_string();
+        let key = |q: &str| self.aliases.query_key(&self.normalizer, q);
         let (kx, ky) = (key(x), key(y));
         let aliases = &self.aliases;
         let rows = self.store.rows_naming(&self.postings, |k| {

@@ -178,6 +178,21 @@ impl Aliases {
     pub fn is_empty(&self) -> bool {
         self.map.is_empty()
     }
+
+    /// The variable a name typed in a query stands for. At the head level, a qualified name
+    /// that no stored variable has ("nitrogen runoff from the farms") counts as its head, as
+    /// the stored qualified variables do; otherwise this is `resolve` of the name's key.
+    pub fn query_key(&self, normalizer: &Normalizer, query: &str) -> String {
+        let key = normalizer.key(query);
+        if self.level == rollup::Level::Head && !self.map.contains_key(&key) {
+            let head = heads::split(query).head;
+            let head_key = normalizer.key(&head);
+            if !head_key.is_empty() {
+                return self.resolve(&head_key).to_string();
+            }
+        }
+        self.resolve(&key).to_string()
+    }
 }
 
 #[cfg(test)]

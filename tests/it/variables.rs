@@ -219,6 +219,21 @@ fn pair_answers_by_abbreviation_long_form_and_head() {
         forward(&store, heads, "ROS", "activation of microglia"),
         (1, "head".into())
     );
+    // A qualified name that no article writes ("MEND in HeLa cells") is asked as its head at
+    // the head level, as the stored qualified variables are; at the default level it is unknown.
+    assert_eq!(
+        forward(&store, heads, "ROS", "MEND in HeLa cells"),
+        (2, "head".into())
+    );
+    let out = run(&store, &["pair", "ROS", "MEND in HeLa cells"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(3), "{err}");
+    assert!(
+        err.to_lowercase()
+            .contains("its head \"mend\" is a variable")
+            && err.contains("--roll-up heads"),
+        "{err}"
+    );
     // The table says the level too.
     let out = run(
         &store,
