@@ -134,21 +134,9 @@ fn aggregate_tables_answer_as_the_rows_on_elife_articles() {
     };
     std::fs::write(corpus.join("one.jsonl"), records(0..30)).unwrap();
     let store = tmp.path().join("store");
-    succeeded(
-        hearsay()
-            .arg("--store")
-            .arg(&store)
-            .args(["-q", "scan"])
-            .arg(&corpus),
-    );
+    scan_quietly(&store, &corpus);
     std::fs::write(corpus.join("two.jsonl"), records(30..60)).unwrap();
-    succeeded(
-        hearsay()
-            .arg("--store")
-            .arg(&store)
-            .args(["-q", "scan"])
-            .arg(&corpus),
-    );
+    scan_quietly(&store, &corpus);
     let aggs = std::fs::read_dir(&store)
         .unwrap()
         .filter(|e| {

@@ -108,6 +108,17 @@ pub fn copy_tree(from: &Path, to: &Path) {
     }
 }
 
+/// Scan `corpus` into `store` (quietly; a failed scan fails the test).
+pub fn scan_quietly(store: &Path, corpus: &Path) -> std::process::Output {
+    succeeded(
+        hearsay()
+            .arg("--store")
+            .arg(store)
+            .args(["-q", "scan"])
+            .arg(corpus),
+    )
+}
+
 /// Scan the invented demo corpus into `dir/store` and return the store's path.
 pub fn demo_store_in(dir: &Path) -> PathBuf {
     let store = dir.join("store");

@@ -167,13 +167,7 @@ fn rollup_store(dir: &Path) -> (PathBuf, PathBuf) {
     copy_tree(&root().join("tests/data/rollup"), &corpus);
     std::fs::remove_file(corpus.join("README.md")).unwrap();
     let store = dir.join("store");
-    succeeded(
-        hearsay()
-            .arg("--store")
-            .arg(&store)
-            .args(["-q", "scan"])
-            .arg(&corpus),
-    );
+    scan_quietly(&store, &corpus);
     (corpus, store)
 }
 
