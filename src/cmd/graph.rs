@@ -120,41 +120,64 @@ pub fn run(g: &Global, a: &GraphArgs) -> Result<ExitCode> {
         }
         return Ok(ExitCode::SUCCESS);
     }
-    let mut buf: Vec<u8> = Vec::new();
-    match to {
-        To::Json => export::write_json(&mut buf, &e)?,
-        To::Graphml => export::write_graphml(&mut buf, &e).map_err(|x| anyhow::anyhow!(x))?,
-        To::Gexf => export::write_gexf(&mut buf, &e).map_err(|x| anyhow::anyhow!(x))?,
-        To::Dot => export::write_dot(&mut buf, &e)?,
-        To::Csv => {
-            let Some(p) = &a.output else {
-                anyhow::bail!("--format csv writes an edge list and a node list: give -o FILE (the nodes go beside it: -o edges.csv also writes edges.nodes.csv)");
-            };
-            let (mut edges, mut nodes) = (Vec::new(), Vec::new());
-            export::write_edges_csv(&mut edges, &e)?;
-            export::write_nodes_csv(&mut nodes, &e)?;
-            buf = super::output::neutralise_csv(&edges)?;
-            let nodes = super::output::neutralise_csv(&nodes)?;
-            let np = nodes_path(p);
-            std::fs::write(&np, &nodes)
-                .with_context(|| format!("cannot write {}", np.display()))?;
+    let summary = || {
+        if !g.quiet {
+            eprintln!(
+                "hearsay: {} nodes, {} edges; {}",
+                e.nodes.len(),
+                e.edges.len(),
+                e.weight_rule
+            );
         }
+    };
+    if let To::Csv = to {
+        let Some(p) = &a.output else {
+            anyhow::bail!("--format csv writes an edge list and a node list: give -o FILE (the nodes go beside it: -o edges.csv also writes edges.nodes.csv)");
+        };
+        let (mut edges, mut nodes) = (Vec::new(), Vec::new());
+        export::write_edges_csv(&mut edges, &e)?;
+        export::write_nodes_csv(&mut nodes, &e)?;
+        let edges = super::output::neutralise_csv(&edges)?;
+        let nodes = super::output::neutralise_csv(&nodes)?;
+        let np = nodes_path(p);
+        std::fs::write(&np, &nodes).with_context(|| format!("cannot write {}", np.display()))?;
+        summary();
+        std::fs::write(p, &edges).with_context(|| format!("cannot write {}", p.display()))?;
+        return Ok(ExitCode::SUCCESS);
     }
-    if !g.quiet {
-        eprintln!(
-            "hearsay: {} nodes, {} edges; {}",
-            e.nodes.len(),
-            e.edges.len(),
-            e.weight_rule
-        );
-    }
-    match &a.output {
-        Some(p) => {
-            std::fs::write(p, &buf).with_context(|| format!("cannot write {}", p.display()))?
-        }
-        None => std::io::stdout().lock().write_all(&buf)?,
-    }
+    summary();
+    // The other formats are written as they are made, never held whole: a graph of a large
+    // store is tens of megabytes of XML.
+    let (mut out, name): (Box<dyn Write>, String) = match &a.output {
+        Some(p) => (
+            Box::new(
+                std::fs::File::create(p)
+                    .with_context(|| format!("cannot write {}", p.display()))?,
+            ),
+            p.display().to_string(),
+        ),
+        None => (Box::new(std::io::stdout().lock()), "standard output".into()),
+    };
+    let mut out = std::io::BufWriter::with_capacity(1 << 16, &mut out);
+    let written: Result<()> = match to {
+        To::Json => export::write_json(&mut out, &e).map_err(Into::into),
+        To::Graphml => export::write_graphml(&mut out, &e).map_err(xml_error),
+        To::Gexf => export::write_gexf(&mut out, &e).map_err(xml_error),
+        To::Dot => export::write_dot(&mut out, &e).map_err(Into::into),
+        To::Csv => Ok(()),
+    };
+    written
+        .and_then(|()| out.flush().map_err(Into::into))
+        .with_context(|| format!("cannot write {name}"))?;
     Ok(ExitCode::SUCCESS)
+}
+
+/// An XML writer's error, its I/O error kept as one (so a closed pipe still ends quietly).
+fn xml_error(e: quick_xml::Error) -> anyhow::Error {
+    match e {
+        quick_xml::Error::Io(io) => std::io::Error::new(io.kind(), io.to_string()).into(),
+        other => anyhow::anyhow!(other),
+    }
 }
 
 /// `edges.csv` → `edges.nodes.csv`.
