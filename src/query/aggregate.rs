@@ -14,7 +14,7 @@ use crate::claim::{Kind, Modality, Polarity};
 use crate::error::StoreError;
 use crate::graph::WeightSpec;
 use crate::graph::{ClaimGraph, Counts, Relation, Totals, Variable};
-use crate::store::{weight_class, Aggregator, Grid, Profile, RelationAggregate, Store};
+use crate::store::{weight_class, Aggregator, Grid, Profile, RelationAggregate, Store, TableScope};
 use crate::variables::Aliases;
 use rustc_hash::{FxHashMap, FxHashSet};
 use std::collections::{BTreeMap, HashMap, HashSet};
@@ -162,8 +162,15 @@ fn classes_of(g: &Grid) -> [u64; 5] {
     c
 }
 
-/// The row number in a segment's ordinal (its file's place in the segment above it).
+/// The row number in a stored ordinal (its file's place above it).
 const ROW: u64 = 0xffff_ffff;
+
+fn scope_name(scope: TableScope) -> String {
+    match scope {
+        TableScope::Segment(seg) => format!("segment {seg}"),
+        TableScope::Store => "the store's summed table".to_string(),
+    }
+}
 
 fn counts_of(g: &Grid) -> Counts {
     let mut c = Counts::default();
@@ -310,10 +317,12 @@ fn label_of(forms: &[&[(String, u32)]]) -> String {
 pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreError> {
     let segs = store.aggregates()?;
     let ordinal = store.ordinals();
-    let mismatch = |seg: u32, row: u64| StoreError::Corrupt {
+    let mismatch = |scope: TableScope, row: u64| StoreError::Corrupt {
         path: store.dir.clone(),
         message: format!(
-            "the aggregates of segment {seg} name row {row}, which no file of the manifest owns"
+            "the aggregates of {} name row {}, which no file of the manifest owns",
+            scope_name(scope),
+            row & ROW
         ),
     };
     // How many stored keys each variable has.
@@ -371,7 +380,7 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
         let res: Vec<&str> = s.keys.iter().map(|k| aliases.resolve(&k.key)).collect();
         for (k, r) in s.keys.iter().zip(&res) {
             if !merged.contains(r) {
-                let first = ordinal(*seg, k.first & ROW).ok_or_else(|| mismatch(*seg, k.first))?;
+                let first = ordinal(*seg, k.first).ok_or_else(|| mismatch(*seg, k.first))?;
                 add_var(&mut vars, r, k, first);
             }
         }
@@ -380,13 +389,16 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
                 let (Some(&ra), Some(&rb)) = (res.get(e.a as usize), res.get(e.b as usize)) else {
                     return Err(StoreError::Corrupt {
                         path: store.dir.clone(),
-                        message: format!("the aggregates of segment {seg} name a key they lack"),
+                        message: format!(
+                            "the aggregates of {} name a key they lack",
+                            scope_name(*seg)
+                        ),
                     });
                 };
                 if merged.contains(ra) || merged.contains(rb) || ra == rb {
                     continue;
                 }
-                let first = ordinal(*seg, e.first & ROW).ok_or_else(|| mismatch(*seg, e.first))?;
+                let first = ordinal(*seg, e.first).ok_or_else(|| mismatch(*seg, e.first))?;
                 let cause = if e.forward { ra } else { rb };
                 acc.add(kind, ra, rb, e, first, cause);
             }

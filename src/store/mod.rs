@@ -12,6 +12,8 @@
 //!                    rebuilding the graph fast
 //! seg-NNNNNN.post    postings: each variable key of the segment and the rows naming it, so a
 //!                    query about a few variables reads only their rows (see `postings`)
+//! seg-NNNNNN.<live>.agg  the segment's aggregate tables over its live rows (see `aggregates`)
+//! summed.<live>.agg  their sum, when there are two or more segments (see `compact`)
 //! index/             a tantivy index with one entry per sentence, for search and co-mentions
 //! vocabulary-NNNNNN.json.zst  per file, the abbreviations its documents define and the heads
 //!                    of its variable keys, for the generation NNNNNN (see `vocabulary`)
@@ -39,6 +41,7 @@
 //! with [`crate::extract`]; it never uses the graph or anything above it.
 
 mod aggregates;
+mod compact;
 mod index;
 mod manifest;
 mod merge;
@@ -56,10 +59,11 @@ mod tests;
 pub use aggregates::{
     weight_class, Aggregator, Grid, KeyAggregate, Profile, RelationAggregate, SegmentAggregates,
 };
+pub use compact::compact;
 pub use index::key_terms;
 pub use manifest::{FileEntry, Manifest};
 pub use merge::{FileRecord, FileStart, Merge, SentenceRecord};
-pub use read::{PostingIndex, Store};
+pub use read::{PostingIndex, Store, TableScope};
 #[cfg(test)]
 pub(crate) use rows::test_row;
 pub use rows::{doc_id, ClaimRef, ClaimRow};

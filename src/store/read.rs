@@ -2,6 +2,7 @@
 //! records they point at, and sentence lookups in the search index.
 
 use super::aggregates::{self, SegmentAggregates};
+use super::compact;
 use super::index::SentenceIndex;
 use super::manifest::{load, seg_name, Manifest};
 use super::postings::Postings;
@@ -224,34 +225,59 @@ impl Store {
         Ok(out)
     }
 
-    /// The aggregates of every live segment (`aggregates`), with the segment's number.
-    pub fn aggregates(&self) -> Result<Vec<(u32, SegmentAggregates)>, StoreError> {
+    /// The aggregate tables a whole-graph query sums: the store's summed table when the store
+    /// has one for its live rows (see `compact`), else each live segment's table. Each comes
+    /// with its [`TableScope`], which [`Store::ordinals`] needs to place its first claims.
+    pub fn aggregates(&self) -> Result<Vec<(TableScope, SegmentAggregates)>, StoreError> {
+        let segs = self.manifest.segments();
+        if segs.len() > 1 {
+            let p = self.dir.join(compact::summed_name(&self.manifest));
+            // A store committed before compaction existed has none: its segments' tables
+            // answer the same, only slower.
+            if p.exists() {
+                return Ok(vec![(TableScope::Store, SegmentAggregates::open(&p)?)]);
+            }
+        }
         let mut out = Vec::new();
-        for seg in self.manifest.segments() {
+        for seg in segs {
             let p = self.dir.join(aggregates::file_name(&self.manifest, seg));
-            out.push((seg, SegmentAggregates::open(&p)?));
+            out.push((TableScope::Segment(seg), SegmentAggregates::open(&p)?));
         }
         Ok(out)
     }
 
-    /// Where rows of each segment are in corpus order: a function from (segment, row number)
-    /// to an ordinal that sorts as [`Store::rows`] lists the rows (the file's place in the
-    /// manifest, then the row number), `None` for a row no file owns.
-    pub fn ordinals(&self) -> impl Fn(u32, u64) -> Option<u64> + '_ {
+    /// Where claims are in corpus order: a function from a table's scope and a first-claim
+    /// ordinal stored in it to an ordinal that sorts as [`Store::rows`] lists the rows (the
+    /// file's place in the manifest, then the row number), `None` for a row no file owns.
+    /// Ordinals of [`Store::rows_naming_at`] are of the same kind.
+    pub fn ordinals(&self) -> impl Fn(TableScope, u64) -> Option<u64> + '_ {
+        const ROW: u64 = 0xffff_ffff;
         let mut ranges: Vec<(u32, u64, u64, u64)> = Vec::new();
+        // The manifest place of each file with claims, by its place among those files.
+        let mut with_claims: Vec<u64> = Vec::new();
         for (i, f) in self.manifest.files.iter().enumerate() {
             if f.claims == 0 {
                 continue;
             }
+            with_claims.push(i as u64);
             for (a, b) in f.row_ranges() {
                 ranges.push((f.segment, a, b, i as u64));
             }
         }
         ranges.sort_unstable();
-        move |seg, row| {
-            let at = ranges.partition_point(|r| (r.0, r.1) <= (seg, row));
-            let r = ranges.get(at.checked_sub(1)?)?;
-            (r.0 == seg && row < r.2).then_some((r.3 << 32) | row)
+        move |scope, stored| {
+            let row = stored & ROW;
+            match scope {
+                TableScope::Segment(seg) => {
+                    let at = ranges.partition_point(|r| (r.0, r.1) <= (seg, row));
+                    let r = ranges.get(at.checked_sub(1)?)?;
+                    (r.0 == seg && row < r.2).then_some((r.3 << 32) | row)
+                }
+                TableScope::Store => {
+                    let place = with_claims.get(usize::try_from(stored >> 32).ok()?)?;
+                    Some((place << 32) | row)
+                }
+            }
         }
     }
 
@@ -321,6 +347,14 @@ impl Store {
         };
         index.sentence_ids_with(groups)
     }
+}
+
+/// What an aggregate table covers: one segment's live rows, or the whole store's (the summed
+/// table `compact` writes).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TableScope {
+    Segment(u32),
+    Store,
 }
 
 /// The postings of a store's live segments (see [`Store::postings`]).

@@ -374,13 +374,14 @@ impl StoreWriter {
             skipped,
             failed,
         };
-        aggregates::write_missing(&self.dir, &manifest)?;
+        super::compact::compact(&self.dir, &manifest)?;
         let json = serde_json::to_vec_pretty(&manifest).map_err(|e| StoreError::Corrupt {
             path: self.dir.clone(),
             message: e.to_string(),
         })?;
         write_atomic(&self.dir.join("manifest.json"), &json)?;
         Vocabulary::remove_others(&self.dir, generation);
+        super::compact::remove_stale(&self.dir, &manifest);
         // Segments nothing refers to any more (and leftovers of killed scans) can go.
         let live = manifest.segments();
         if let Ok(rd) = fs::read_dir(&self.dir) {
