@@ -17,7 +17,7 @@ opposite-signs (X → Y stated as an increase and as a decrease or prevention), 
 asserted-and-denied (X → Y stated, and denied with \"not\" or \"has no effect on\"). Ranked by the \
 claims on both sides together, then by how even the split is.\n\nA conflict is between \
 statements in text; it says nothing about which is right.\n\nWithout a filter or --dedupe, the \
-store's aggregate tables say which relations can conflict and only their claim rows are read; a \
+store's aggregate tables rank the conflicts and only the claim rows of those shown are read; a \
 filter or --dedupe reads every claim row."
 )]
 pub struct ConflictsArgs {
@@ -46,18 +46,22 @@ struct ConflictOut<'a> {
 
 pub fn run(g: &Global, a: &ConflictsArgs) -> Result<ExitCode> {
     let filter = a.filter.to_filter();
-    let loaded = if filter.is_empty() && !a.dedupe {
-        // The aggregate tables say which edges can be conflicts; only their rows are read.
+    let (loaded, rank) = if filter.is_empty() && !a.dedupe {
+        // The aggregate tables rank the conflicts; only the rows of those shown are read.
         let (store, normalizer, aliases) = g.query_parts()?;
         let agg =
             query::aggregate(&store, &aliases).context("cannot read the store's aggregates")?;
-        let wanted = query::conflict_candidates(&agg, a.min_claims);
-        query::load_relations(store, normalizer, aliases, &agg, &wanted)
-            .context("cannot read the store's claims")?
+        let rank = query::ranked_conflicts(&agg, a.min_claims, a.limit);
+        let loaded = query::load_relations(store, normalizer, aliases, &agg, &rank.relations())
+            .context("cannot read the store's claims")?;
+        (loaded, Some(rank))
     } else {
-        g.load(&filter, a.dedupe)?
+        (g.load(&filter, a.dedupe)?, None)
     };
     let mut cs = graph::conflicts(&loaded.graph, a.min_claims);
+    if let Some(rank) = &rank {
+        cs.retain(|c| rank.keeps(c));
+    }
     if a.limit > 0 {
         cs.truncate(a.limit);
     }

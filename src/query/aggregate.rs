@@ -17,7 +17,7 @@ use crate::graph::{ClaimGraph, Counts, Relation, Totals, Variable};
 use crate::store::{weight_class, Aggregator, Grid, Profile, RelationAggregate, Store, TableScope};
 use crate::variables::Aliases;
 use rustc_hash::{FxHashMap, FxHashSet};
-use std::collections::{BTreeMap, HashMap, HashSet};
+use std::collections::BTreeMap;
 
 /// One variable's counts.
 #[derive(Debug, Clone, Default)]
@@ -436,58 +436,4 @@ pub fn aggregate(store: &Store, aliases: &Aliases) -> Result<Aggregated, StoreEr
         .collect();
     out.relations = acc.rels;
     Ok(out)
-}
-
-/// The causal edges that can be conflicts with at least `min_claims` claims a side
-/// ([`crate::graph::conflicts`]), by their counts alone: an edge stated as an increase and as a
-/// decrease, stated and denied, or stated in both directions (then both directions). Every
-/// conflict of the whole graph is among them.
-pub fn conflict_candidates(agg: &Aggregated, min_claims: usize) -> HashSet<(String, String)> {
-    let min = min_claims.max(1);
-    let stated = |c: &Counts, ps: &[Polarity]| -> usize {
-        ps.iter()
-            .map(|&p| {
-                if p == Polarity::None {
-                    0
-                } else {
-                    c.stated(p)
-                        - c.by
-                            .get(&p)
-                            .and_then(|m| m.get(&Modality::Question))
-                            .copied()
-                            .unwrap_or(0)
-                }
-            })
-            .sum()
-    };
-    let all = [
-        Polarity::Increase,
-        Polarity::Decrease,
-        Polarity::Unsigned,
-        Polarity::Prevent,
-    ];
-    let mut statements: HashMap<(&str, &str), usize> = HashMap::new();
-    let mut out = HashSet::new();
-    for r in agg.relations.iter().filter(|r| r.kind == Kind::Causal) {
-        let c = &r.counts();
-        let s = stated(c, &all);
-        let denied = c.modality(Modality::Negated) + c.polarity(Polarity::None)
-            - c.by
-                .get(&Polarity::None)
-                .and_then(|m| m.get(&Modality::Negated))
-                .copied()
-                .unwrap_or(0);
-        let inc = stated(c, &[Polarity::Increase]);
-        let dec = stated(c, &[Polarity::Decrease, Polarity::Prevent]);
-        if (inc >= min && dec >= min) || (s >= min && denied >= min) {
-            out.insert((r.a.clone(), r.b.clone()));
-        }
-        statements.insert((r.a.as_str(), r.b.as_str()), s);
-    }
-    for (&(a, b), &s) in &statements {
-        if s >= min && statements.get(&(b, a)).is_some_and(|&t| t >= min) {
-            out.insert((a.to_string(), b.to_string()));
-        }
-    }
-    out
 }

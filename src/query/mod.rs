@@ -20,6 +20,7 @@
 
 mod aggregate;
 mod comention;
+mod conflicts;
 mod evidence;
 mod load;
 mod lookup;
@@ -29,10 +30,9 @@ mod top;
 mod variables;
 
 pub use crate::graph::{conflicts, Conflict, ConflictKind};
-pub use aggregate::{
-    aggregate, conflict_candidates, graph_from_aggregates, AggRelation, AggVariable, Aggregated,
-};
+pub use aggregate::{aggregate, graph_from_aggregates, AggRelation, AggVariable, Aggregated};
 pub use comention::{claim_sentences, co_mention_nodes, co_mention_pairs, CoMention, MentionIndex};
+pub use conflicts::{ranked_conflicts, ConflictRank, RankedConflict};
 pub use evidence::{EvidenceLine, HopEvidence};
 pub use load::{load, load_aggregated, load_naming, load_relations, relations_graph, Loaded};
 pub use lookup::{lookup, Looked, VarMatch};

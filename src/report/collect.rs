@@ -6,7 +6,7 @@ use crate::claim::Modality;
 use crate::compare::Summary as ComparisonSummary;
 use crate::error::StoreError;
 use crate::graph::{ClaimGraph, Relation, Sign};
-use crate::query::{self, Aggregated, ConflictKind, Loaded};
+use crate::query::{self, Aggregated, ConflictKind, ConflictRank, Loaded};
 use std::collections::{BTreeMap, BTreeSet, HashMap, HashSet};
 
 /// What to gather beside the graph.
@@ -23,16 +23,16 @@ pub struct Sources<'a> {
 }
 
 /// In a graph built from aggregates, read the rows of what the page shows sentences of or
-/// counts rows of: the conflict candidates, the pictured edges, the `--pair` relations and
+/// counts rows of: the conflicts shown (ranked from the tables), the pictured edges, the `--pair` relations and
 /// the associations among the co-mention variables.
 fn hydrate(
     loaded: &mut Loaded,
-    agg: &Aggregated,
+    shown: &ConflictRank,
     pair: Option<(&str, &str)>,
     opts: &Options,
 ) -> Result<(), StoreError> {
     let g = &loaded.graph;
-    let mut causal = query::conflict_candidates(agg, 1);
+    let mut causal = shown.relations();
     let mut assoc = HashSet::new();
     for e in query::heaviest_edges(g, opts.edges).edges {
         causal.insert((e.source, e.target));
@@ -68,8 +68,16 @@ pub fn collect(
     opts: &Options,
 ) -> Result<Report, StoreError> {
     let agg = src.aggregated.filter(|_| loaded.from_aggregates);
-    if let Some(agg) = agg {
-        hydrate(loaded, agg, src.pair, opts)?;
+    // From the tables: every conflict (which pictured edges are disputed) and those shown
+    // (whose rows are read).
+    let ranked = agg.map(|agg| {
+        (
+            query::ranked_conflicts(agg, 1, 0),
+            query::ranked_conflicts(agg, 1, opts.rows),
+        )
+    });
+    if let Some((_, shown)) = &ranked {
+        hydrate(loaded, shown, src.pair, opts)?;
     }
     let mut top = match agg {
         Some(agg) => query::top_from_aggregates(agg, 1, 1, opts.rows),
@@ -88,15 +96,15 @@ pub fn collect(
     let g = &loaded.graph;
     let mut conflicts = query::conflicts(g, 1);
     // A conflict marks the edges it is about: both of them when the two directions are stated.
-    let disputed: BTreeSet<(&str, &str)> = conflicts
-        .iter()
-        .flat_map(|c| {
-            let (x, y) = (c.x.as_str(), c.y.as_str());
-            let both = c.kind == ConflictKind::BothDirections;
-            std::iter::once((x, y)).chain(both.then_some((y, x)))
-        })
-        .collect();
+    let disputed: BTreeSet<(&str, &str)> = match &ranked {
+        Some((all, _)) => disputed_edges(all.chosen.iter().map(|c| (c.kind, &c.x, &c.y))),
+        None => disputed_edges(conflicts.iter().map(|c| (c.kind, &c.x, &c.y))),
+    };
     let (nodes, edges) = picture(loaded, opts, &disputed);
+    if let Some((_, shown)) = &ranked {
+        // Relations read for the picture or the pair may make conflicts not among those shown.
+        conflicts.retain(|c| shown.keeps(c));
+    }
     conflicts.truncate(opts.rows);
     Ok(Report {
         title: opts.title.clone(),
@@ -121,6 +129,19 @@ pub fn collect(
         pair,
         comparison: src.comparison,
     })
+}
+
+/// The edges conflicts are about: both of them when the two directions are stated.
+fn disputed_edges<'a>(
+    conflicts: impl Iterator<Item = (ConflictKind, &'a String, &'a String)>,
+) -> BTreeSet<(&'a str, &'a str)> {
+    conflicts
+        .flat_map(|(kind, x, y)| {
+            let (x, y) = (x.as_str(), y.as_str());
+            let both = kind == ConflictKind::BothDirections;
+            std::iter::once((x, y)).chain(both.then_some((y, x)))
+        })
+        .collect()
 }
 
 fn hedged_heavy(rel: &Relation) -> bool {
