@@ -6,7 +6,7 @@ use crate::error::StoreError;
 use crate::graph::{drop_near_duplicates, ClaimGraph, Filter};
 use crate::store::Store;
 use crate::variables::{Aliases, Normalizer};
-use std::collections::HashSet;
+use std::collections::{HashMap, HashSet};
 
 /// A store with its graph, ready for queries.
 pub struct Loaded {
@@ -97,15 +97,26 @@ pub fn relations_graph_with(
     causal: &HashSet<(String, String)>,
     associations: &HashSet<(String, String)>,
 ) -> Result<ClaimGraph, StoreError> {
-    let ends: HashSet<&str> = causal
-        .iter()
-        .chain(associations)
-        .flat_map(|(a, b)| [a.as_str(), b.as_str()])
-        .collect();
+    // Each end a group of raw keys; only rows naming both ends of a wanted relation are read.
+    let mut ends: HashMap<&str, usize> = HashMap::new();
+    let mut pairs = Vec::new();
+    for (a, b) in causal.iter().chain(associations) {
+        let mut ids = [0usize; 2];
+        for (id, k) in ids.iter_mut().zip([a.as_str(), b.as_str()]) {
+            let n = ends.len();
+            *id = *ends.entry(k).or_insert(n);
+        }
+        pairs.push((ids[0], ids[1]));
+    }
     let mut rows = Vec::new();
     if !ends.is_empty() {
         let postings = store.postings()?;
-        rows = store.rows_naming(&postings, |k| ends.contains(aliases.resolve(k)))?;
+        rows = store.rows_naming_pairs(
+            &postings,
+            ends.len(),
+            |k| ends.get(aliases.resolve(k)).copied(),
+            &pairs,
+        )?;
         rows.retain(|r| {
             let (c, e) = (aliases.resolve(&r.cause), aliases.resolve(&r.effect));
             match r.kind {

@@ -164,12 +164,23 @@ impl Postings {
 
     /// The rows naming any key `wanted` accepts, each once, in row order.
     pub fn rows(&self, mut wanted: impl FnMut(&str) -> bool) -> Result<Vec<u32>, StoreError> {
-        let mut out = Vec::new();
+        let mut lists = self.grouped_rows(1, |k| wanted(k).then_some(0))?;
+        Ok(lists.pop().unwrap_or_default())
+    }
+
+    /// The rows naming each of `groups` groups of keys (`group` says which group a key is in,
+    /// if any): per group, each row once, in row order.
+    pub fn grouped_rows(
+        &self,
+        groups: usize,
+        mut group: impl FnMut(&str) -> Option<usize>,
+    ) -> Result<Vec<Vec<u32>>, StoreError> {
+        let mut lists: Vec<Vec<u32>> = vec![Vec::new(); groups];
         let mut buf = Vec::new();
         for (k, at, n) in &self.dir {
-            if !wanted(k) {
+            let Some(out) = group(k).and_then(|g| lists.get_mut(g)) else {
                 continue;
-            }
+            };
             buf.resize(*n as usize, 0);
             self.file
                 .read_exact_at(&mut buf, *at)
@@ -188,9 +199,11 @@ impl Postings {
                 out.push(row);
             }
         }
-        out.sort_unstable();
-        out.dedup();
-        Ok(out)
+        for l in &mut lists {
+            l.sort_unstable();
+            l.dedup();
+        }
+        Ok(lists)
     }
 }
 

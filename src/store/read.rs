@@ -99,6 +99,44 @@ impl Store {
             .collect())
     }
 
+    /// [`Store::rows_naming_at`] narrowed to pairs: `group` puts a raw key in a group of keys
+    /// (or none), and a row is read when it names a key of each group of one of `pairs` (as
+    /// cause or effect, either way round). A caller that wants the rows of a few relations
+    /// reads those rows and few others, not every row of their ends.
+    pub fn rows_naming_pairs(
+        &self,
+        post: &PostingIndex,
+        groups: usize,
+        mut group: impl FnMut(&str) -> Option<usize>,
+        pairs: &[(usize, usize)],
+    ) -> Result<Vec<ClaimRow>, StoreError> {
+        let rows = self.rows_at(post, |p| {
+            let lists = p.grouped_rows(groups, &mut group)?;
+            let mut out = Vec::new();
+            for &(a, b) in pairs {
+                let (Some(x), Some(y)) = (lists.get(a), lists.get(b)) else {
+                    continue;
+                };
+                let (mut i, mut j) = (0, 0);
+                while i < x.len() && j < y.len() {
+                    match x[i].cmp(&y[j]) {
+                        std::cmp::Ordering::Less => i += 1,
+                        std::cmp::Ordering::Greater => j += 1,
+                        std::cmp::Ordering::Equal => {
+                            out.push(x[i]);
+                            i += 1;
+                            j += 1;
+                        }
+                    }
+                }
+            }
+            out.sort_unstable();
+            out.dedup();
+            Ok(out)
+        })?;
+        Ok(rows.into_iter().map(|(_, r)| r).collect())
+    }
+
     /// [`Store::rows_naming`] with each row's ordinal in corpus order (as [`Store::ordinals`]
     /// gives it).
     pub fn rows_naming_at(
@@ -106,9 +144,19 @@ impl Store {
         post: &PostingIndex,
         mut wanted: impl FnMut(&str) -> bool,
     ) -> Result<Vec<(u64, ClaimRow)>, StoreError> {
+        self.rows_at(post, |p| p.rows(&mut wanted))
+    }
+
+    /// The live rows of each segment that `chosen` picks from its postings (row numbers in
+    /// order), in the order of [`Store::rows`], with their ordinals.
+    fn rows_at(
+        &self,
+        post: &PostingIndex,
+        mut chosen: impl FnMut(&Postings) -> Result<Vec<u32>, StoreError>,
+    ) -> Result<Vec<(u64, ClaimRow)>, StoreError> {
         let mut by_seg: HashMap<u32, Vec<(usize, ClaimRow)>> = HashMap::new();
         for (seg, p) in &post.segs {
-            let at = p.rows(&mut wanted)?;
+            let at = chosen(p)?;
             let kept = if at.is_empty() {
                 Vec::new()
             } else {
