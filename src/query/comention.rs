@@ -201,13 +201,15 @@ pub fn co_mention_pairs(
     vars: usize,
 ) -> Result<Vec<CoMention>, StoreError> {
     let nodes = co_mention_nodes(g, vars);
+    // Sentence positions in the index, not ids: a frequent variable names a share of every
+    // sentence of the corpus, and only the few sentences two of them share need their ids.
     let mut sets = Vec::with_capacity(nodes.len());
     for &n in &nodes {
         let terms = key_terms(&g.graph[n].key);
         sets.push(if terms.is_empty() {
-            BTreeSet::new()
+            Vec::new()
         } else {
-            store.sentence_ids_with(&[&terms])?
+            store.sentence_positions_with(&[&terms])?
         });
     }
     let mut out = Vec::new();
@@ -220,13 +222,12 @@ pub fn co_mention_pairs(
             {
                 continue;
             }
+            let both = store.sentence_ids_at(&intersection(&sets[i], &sets[j]))?;
             let sentences = unclaimed(
                 g,
                 Some(a),
                 Some(b),
-                sets[i]
-                    .intersection(&sets[j])
-                    .map(|(d, s)| (d.as_str(), *s)),
+                both.iter().map(|(d, s)| (d.as_str(), *s)),
             );
             if sentences > 0 {
                 out.push(CoMention {
@@ -244,6 +245,23 @@ pub fn co_mention_pairs(
             .then_with(|| (&x.a, &x.b).cmp(&(&y.a, &y.b)))
     });
     Ok(out)
+}
+
+/// The elements two sorted lists share.
+fn intersection(a: &[u64], b: &[u64]) -> Vec<u64> {
+    let (mut i, mut j, mut out) = (0, 0, Vec::new());
+    while i < a.len() && j < b.len() {
+        match a[i].cmp(&b[j]) {
+            std::cmp::Ordering::Less => i += 1,
+            std::cmp::Ordering::Greater => j += 1,
+            std::cmp::Ordering::Equal => {
+                out.push(a[i]);
+                i += 1;
+                j += 1;
+            }
+        }
+    }
+    out
 }
 
 impl super::load::Loaded {

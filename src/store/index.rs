@@ -16,7 +16,7 @@ use tantivy::tokenizer::{
     LowerCaser, SimpleTokenizer, StopWordFilter, TextAnalyzer, Token, TokenFilter, TokenStream,
     Tokenizer,
 };
-use tantivy::{DocAddress, Index, IndexReader, Term};
+use tantivy::{DocAddress, Index, ReloadPolicy, Searcher, Term};
 
 const TOKENIZER: &str = "hearsay_en";
 
@@ -198,11 +198,17 @@ pub fn key_terms(key: &str) -> Vec<String> {
         .collect()
 }
 
+fn searcher_segments(s: &Searcher) -> usize {
+    s.segment_readers().len()
+}
+
 /// The index of a store opened for queries.
 pub(super) struct SentenceIndex {
-    /// Kept open for as long as its reader is used.
+    /// Kept open for as long as its searcher is used.
     _index: Index,
-    reader: IndexReader,
+    /// One view of the index for the life of the query, so that positions found by one call
+    /// name the same sentences in the next (a scan committing meanwhile changes nothing here).
+    searcher: Searcher,
     fields: Fields,
     dir: PathBuf,
 }
@@ -211,11 +217,15 @@ impl SentenceIndex {
     /// Open the index of the store at `dir` for queries.
     pub(super) fn open(dir: &Path) -> Result<SentenceIndex, StoreError> {
         let index = open_index(dir, false, &[])?;
-        let reader = index.reader()?;
+        let searcher = index
+            .reader_builder()
+            .reload_policy(ReloadPolicy::Manual)
+            .try_into()?
+            .searcher();
         let fields = Fields::of(&index);
         Ok(SentenceIndex {
             _index: index,
-            reader,
+            searcher,
             fields,
             dir: dir.to_path_buf(),
         })
@@ -243,14 +253,40 @@ impl SentenceIndex {
         &self,
         groups: &[&[String]],
     ) -> Result<BTreeSet<(String, u64)>, StoreError> {
-        let mut out = BTreeSet::new();
+        self.sentence_ids_at(&self.positions_with(groups)?)
+    }
+
+    /// Where in the index every sentence containing every term of each group is, sorted: a
+    /// sentence's position is its index segment × 2³² + its document number there, 8
+    /// bytes, where its (document, start) is a string and a number.
+    pub(super) fn positions_with(&self, groups: &[&[String]]) -> Result<Vec<u64>, StoreError> {
         let Some(q) = self.terms_query(groups) else {
-            return Ok(out);
+            return Ok(Vec::new());
         };
-        let searcher = self.reader.searcher();
-        let mut hits: Vec<DocAddress> =
-            searcher.search(&q, &DocSetCollector)?.into_iter().collect();
+        let mut hits: Vec<u64> = self
+            .searcher
+            .search(&q, &DocSetCollector)?
+            .into_iter()
+            .map(|a| (u64::from(a.segment_ord) << 32) | u64::from(a.doc_id))
+            .collect();
         hits.sort_unstable();
+        Ok(hits)
+    }
+
+    /// The (document, sentence start) of the sentences at `positions` (from
+    /// [`Self::positions_with`]).
+    pub(super) fn sentence_ids_at(
+        &self,
+        positions: &[u64],
+    ) -> Result<BTreeSet<(String, u64)>, StoreError> {
+        let mut out = BTreeSet::new();
+        let mut hits: Vec<DocAddress> = positions
+            .iter()
+            .map(|&p| DocAddress::new((p >> 32) as u32, (p & 0xffff_ffff) as u32))
+            .filter(|a| (a.segment_ord as usize) < searcher_segments(&self.searcher))
+            .collect();
+        hits.sort_unstable();
+        let searcher = &self.searcher;
         let column_error = |e: tantivy::TantivyError| StoreError::Corrupt {
             path: self.dir.join("index"),
             message: format!("sentence columns: {e}"),

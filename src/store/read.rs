@@ -315,6 +315,35 @@ impl Store {
         };
         index.sentence_ids_with(groups)
     }
+
+    /// The positions in the sentence index of every sentence that contains every term of each
+    /// group, sorted: numbers that [`Store::sentence_ids_at`] turns into (document, sentence
+    /// start), valid for this opened store. A set of positions is a sixth the memory of the
+    /// ids, so a query that intersects many sets keeps positions and asks for ids last.
+    pub fn sentence_positions_with(
+        &mut self,
+        groups: &[&[String]],
+    ) -> Result<Vec<u64>, StoreError> {
+        self.sentence_index()?.positions_with(groups)
+    }
+
+    /// The (document, sentence start) of the sentences at `positions`.
+    pub fn sentence_ids_at(
+        &mut self,
+        positions: &[u64],
+    ) -> Result<BTreeSet<(String, u64)>, StoreError> {
+        self.sentence_index()?.sentence_ids_at(positions)
+    }
+
+    fn sentence_index(&mut self) -> Result<&SentenceIndex, StoreError> {
+        if self.index.is_none() {
+            self.index = Some(SentenceIndex::open(&self.dir)?);
+        }
+        self.index.as_ref().ok_or_else(|| StoreError::Corrupt {
+            path: self.dir.join("index"),
+            message: "the sentence index did not open".into(),
+        })
+    }
 }
 
 /// What an aggregate table covers: one segment's live rows, or the whole store's (the summed
