@@ -40,6 +40,7 @@
 
 mod aggregates;
 mod index;
+mod link;
 mod manifest;
 mod merge;
 mod postings;
@@ -57,6 +58,7 @@ pub use aggregates::{
     weight_class, Aggregator, Grid, KeyAggregate, Profile, RelationAggregate, SegmentAggregates,
 };
 pub use index::key_terms;
+pub use link::{link, LinkReport};
 pub use manifest::{FileEntry, Manifest};
 pub use merge::{FileRecord, FileStart, Merge, SentenceRecord};
 pub use read::{PostingIndex, Store};

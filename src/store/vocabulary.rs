@@ -61,8 +61,42 @@ fn file_name(generation: u64) -> String {
 /// zstd level of the vocabulary file (the library's default trade of speed for size).
 const LEVEL: i32 = 3;
 
-fn path_of(dir: &Path, generation: u64) -> PathBuf {
+pub(super) fn path_of(dir: &Path, generation: u64) -> PathBuf {
     dir.join(file_name(generation))
+}
+
+/// How a vocabulary file is framed: `{"files":{` in one zstd frame, the files' entries in
+/// frames of their own, `}}` in a last frame. The file is one valid zstd stream (frames
+/// concatenate) holding the JSON, and the entries of several stores' files join by copying
+/// their frames, with a frame holding a comma between them: `link` never decodes them.
+struct Framing {
+    open: Vec<u8>,
+    comma: Vec<u8>,
+    close: Vec<u8>,
+}
+
+const OPEN: &[u8] = br#"{"files":{"#;
+const CLOSE: &[u8] = b"}}";
+
+impl Framing {
+    fn new(p: &Path) -> Result<Framing, StoreError> {
+        let frame = |b: &[u8]| zstd::bulk::compress(b, LEVEL).map_err(|e| StoreError::io(p, e));
+        Ok(Framing {
+            open: frame(OPEN)?,
+            comma: frame(b",")?,
+            close: frame(CLOSE)?,
+        })
+    }
+
+    /// The files' entries of a vocabulary's JSON: what is between its opening and closing.
+    fn body_of_json<'a>(&self, p: &Path, json: &'a [u8]) -> Result<&'a [u8], StoreError> {
+        json.strip_prefix(OPEN)
+            .and_then(|b| b.strip_suffix(CLOSE))
+            .ok_or_else(|| StoreError::Corrupt {
+                path: p.to_path_buf(),
+                message: "not a vocabulary: the JSON is no {\"files\": {...}} object".into(),
+            })
+    }
 }
 
 impl Vocabulary {
@@ -87,15 +121,71 @@ impl Vocabulary {
         Ok(v)
     }
 
-    /// Write this generation's file (atomically), before the manifest that names it.
+    /// Write this generation's file (atomically), before the manifest that names it: the JSON
+    /// in three zstd frames, its opening, its files and its closing (see [`Framing`]).
     pub(super) fn write(&self, dir: &Path, generation: u64) -> Result<(), StoreError> {
+        let p = path_of(dir, generation);
         let json = serde_json::to_vec(self).map_err(|e| StoreError::Corrupt {
-            path: dir.to_path_buf(),
+            path: p.clone(),
             message: e.to_string(),
         })?;
-        let p = path_of(dir, generation);
-        let bytes = zstd::bulk::compress(&json, LEVEL).map_err(|e| StoreError::io(&p, e))?;
+        let framing = Framing::new(&p)?;
+        let body = framing.body_of_json(&p, &json)?;
+        let mut bytes = framing.open.clone();
+        if !body.is_empty() {
+            bytes.extend(zstd::bulk::compress(body, LEVEL).map_err(|e| StoreError::io(&p, e))?);
+        }
+        bytes.extend_from_slice(&framing.close);
         write_atomic(&p, &bytes)
+    }
+
+    /// Join the vocabularies of stores that hold different files into `dir`'s file of
+    /// `generation`, without decoding them: the frames of each one's files are copied between
+    /// one opening and one closing frame, with a comma frame between them. A file not framed so
+    /// (written by another zstd) is decompressed and its files compressed again.
+    pub(super) fn link(
+        parts: &[(PathBuf, u64)],
+        dir: &Path,
+        generation: u64,
+    ) -> Result<(), StoreError> {
+        let p = path_of(dir, generation);
+        let framing = Framing::new(&p)?;
+        let mut out = framing.open.clone();
+        let mut first = true;
+        for (part, part_generation) in parts {
+            let from = path_of(part, *part_generation);
+            let bytes = fs::read(&from).map_err(|e| StoreError::io(&from, e))?;
+            let raw = bytes
+                .strip_prefix(framing.open.as_slice())
+                .and_then(|b| b.strip_suffix(framing.close.as_slice()));
+            let body = match raw {
+                Some(body) => body.to_vec(),
+                None => {
+                    let json = zstd::stream::decode_all(bytes.as_slice()).map_err(|e| {
+                        StoreError::Corrupt {
+                            path: from.clone(),
+                            message: e.to_string(),
+                        }
+                    })?;
+                    let body = framing.body_of_json(&from, &json)?;
+                    if body.is_empty() {
+                        Vec::new()
+                    } else {
+                        zstd::bulk::compress(body, LEVEL).map_err(|e| StoreError::io(&p, e))?
+                    }
+                }
+            };
+            if body.is_empty() {
+                continue;
+            }
+            if !first {
+                out.extend_from_slice(&framing.comma);
+            }
+            first = false;
+            out.extend(body);
+        }
+        out.extend_from_slice(&framing.close);
+        write_atomic(&p, &out)
     }
 
     /// Remove every generation's file but `generation`'s (after its manifest is on disk).

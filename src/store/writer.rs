@@ -43,6 +43,19 @@ const CLAIM_BLOCK: usize = 64 * 1024;
 /// zstd level of the claim blocks (the library's default trade of speed for size).
 const CLAIM_LEVEL: i32 = 3;
 
+/// Take the store's lock (`dir/lock`), held until the file is dropped: one writer at a time.
+pub(super) fn lock(dir: &Path) -> Result<File, StoreError> {
+    let lock_path = dir.join("lock");
+    let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
+    // Only a lock held elsewhere is "another scan"; a file system that cannot lock is an I/O
+    // error with its own reason.
+    match lock.try_lock() {
+        Ok(()) => Ok(lock),
+        Err(std::fs::TryLockError::WouldBlock) => Err(StoreError::Locked { lock: lock_path }),
+        Err(std::fs::TryLockError::Error(e)) => Err(StoreError::io(&lock_path, e)),
+    }
+}
+
 /// A scan's writer: holds the lock, writes a new segment and index entries as files come, and
 /// switches the store to them at commit. Claims and rows go to disk as they are added, so its
 /// memory is the file entries and the index writer's budget, whatever the corpus size.
@@ -86,17 +99,7 @@ impl StoreWriter {
     ) -> Result<StoreWriter, StoreError> {
         let unindexed: Vec<String> = crate::variables::dropped_words(lexicon).collect();
         fs::create_dir_all(dir).map_err(|e| StoreError::io(dir, e))?;
-        let lock_path = dir.join("lock");
-        let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
-        // Only a lock held elsewhere is "another scan"; a file system that cannot lock is an
-        // I/O error with its own reason.
-        match lock.try_lock() {
-            Ok(()) => {}
-            Err(std::fs::TryLockError::WouldBlock) => {
-                return Err(StoreError::Locked { lock: lock_path });
-            }
-            Err(std::fs::TryLockError::Error(e)) => return Err(StoreError::io(&lock_path, e)),
-        }
+        let lock = lock(dir)?;
         let old = match load(dir) {
             Ok(m) => m,
             Err(StoreError::Missing(_)) => Manifest::default(),
