@@ -220,6 +220,7 @@ impl StoreWriter {
             self.begin(FileEntry::new(path));
         }
         self.start_vocabulary(path);
+        self.vocabulary.focus(path)?;
         self.vocabulary.add_claims(path, claims);
         let corrupt = |dir: &Path, e: postcard::Error| StoreError::Corrupt {
             path: dir.to_path_buf(),
@@ -301,6 +302,7 @@ impl StoreWriter {
         text: &str,
     ) -> Result<(), StoreError> {
         self.start_vocabulary(file);
+        self.vocabulary.focus(file)?;
         self.vocabulary
             .add_sentence(file, id, text, &self.normalizer);
         let f = self.fields;
