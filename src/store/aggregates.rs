@@ -15,8 +15,7 @@
 //! rows in exactly one segment, so distinct-document counts of one key add up across segments.
 
 use super::manifest::{seg_name, Manifest};
-use super::read::for_each_row;
-use super::rows::ClaimRow;
+use super::rows::{ClaimRow, RowsFile};
 use crate::claim::{Kind, Modality, Polarity};
 use crate::error::StoreError;
 use serde::{Deserialize, Serialize};
@@ -403,9 +402,9 @@ pub(super) fn write_missing(dir: &Path, manifest: &Manifest) -> Result<(), Store
             let r = ranges.get(at.checked_sub(1)?)?;
             (row < r.1).then_some((r.2 << 32) | row)
         };
-        let rows_path = dir.join(seg_name(seg, "rows"));
+        let rows = RowsFile::open(&dir.join(seg_name(seg, "rows")), seg)?;
         let mut last: HashMap<String, u64> = HashMap::new();
-        for_each_row(&rows_path, |i, r| {
+        rows.for_each(|i, r| {
             if live(i).is_some() {
                 match last.get_mut(&r.doc) {
                     Some(l) => *l = i,
@@ -416,7 +415,7 @@ pub(super) fn write_missing(dir: &Path, manifest: &Manifest) -> Result<(), Store
             }
         })?;
         let mut agg = Aggregator::default();
-        for_each_row(&rows_path, |i, r| {
+        rows.for_each(|i, r| {
             if let Some(ordinal) = live(i) {
                 agg.add(&r, &r.cause, &r.effect, ordinal);
                 if last.get(&r.doc) == Some(&i) {

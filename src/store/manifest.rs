@@ -26,7 +26,7 @@ use std::path::Path;
 /// the aggregate-reading queries read instead of the rows, and every commit writes the store's
 /// vocabulary (`vocabulary-NNNNNN.json.zst`: per file, abbreviation definitions and the heads of
 /// variable keys), which `variables` and `--roll-up` read; a version 5 store has neither.
-pub(super) const STORE_VERSION: u32 = 6;
+pub(super) const STORE_VERSION: u32 = 7;
 
 /// One input file as the store knows it.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]

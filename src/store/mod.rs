@@ -8,8 +8,8 @@
 //!                    zstd-compressed in blocks of about 64 KiB (one frame a block), so that
 //!                    `zstdcat` gives the JSON Lines and a claim is read by decompressing its
 //!                    block only
-//! seg-NNNNNN.rows    the same claims in compact form (postcard records back to back), for
-//!                    rebuilding the graph fast
+//! seg-NNNNNN.rows    the same claims in compact form (postcard records in zstd blocks of
+//!                    about 8 KiB, see `rows`), for rebuilding the graph fast
 //! seg-NNNNNN.post    postings: each variable key of the segment and the rows naming it, so a
 //!                    query about a few variables reads only their rows (see `postings`)
 //! index/             a tantivy index with one entry per sentence, for search and co-mentions

@@ -5,11 +5,11 @@
 //! One file a segment, `seg-NNNNNN.post`, written when the segment is committed:
 //!
 //! ```text
-//! magic      8 bytes   "HSPOST1\n"
-//! lists      16 bytes an entry, little-endian: row number (u32), byte offset of the row in
-//!            seg-NNNNNN.rows (u64), byte length of the row (u32); one list a key, in key order,
-//!            each list in row order
-//! directory  postcard: Vec<(key, first entry, entries)>, keys sorted and distinct
+//! magic      8 bytes   "HSPOST2\n"
+//! lists      one a key, in key order: the key's row numbers in row order as gaps (the first row,
+//!            then each row minus the one before), postcard `Vec<u32>` (each a varint)
+//! directory  one zstd frame of postcard: Vec<(key, byte offset of its list, byte length)>,
+//!            keys sorted and distinct
 //! footer     8 bytes   byte offset of the directory (u64, little-endian)
 //! ```
 //!
@@ -26,37 +26,39 @@ use std::io::{BufWriter, Write};
 use std::os::unix::fs::FileExt;
 use std::path::{Path, PathBuf};
 
-const MAGIC: &[u8; 8] = b"HSPOST1\n";
-const ENTRY: usize = 16;
+const MAGIC: &[u8; 8] = b"HSPOST2\n";
 
-/// Where one row of a segment is: its number and its bytes in the rows file.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
-pub(crate) struct RowAt {
-    pub row: u32,
-    pub offset: u64,
-    pub len: u32,
+/// A decompressed directory may be at most this large.
+const MAX_DIRECTORY: usize = 1 << 30;
+
+fn corrupt(path: &Path, message: String) -> StoreError {
+    StoreError::Corrupt {
+        path: path.to_path_buf(),
+        message,
+    }
 }
 
-/// The postings of the segment being written, kept in memory until commit (16 bytes a key
-/// occurrence: about 32 bytes a claim).
+/// The postings of the segment being written, kept in memory until commit (4 bytes a key
+/// occurrence: about 8 bytes a claim).
 #[derive(Debug, Default)]
 pub(crate) struct PostingsBuilder {
-    lists: BTreeMap<String, Vec<RowAt>>,
+    lists: BTreeMap<String, Vec<u32>>,
 }
 
 impl PostingsBuilder {
-    pub fn add(&mut self, cause: &str, effect: &str, at: RowAt) {
-        self.push(cause, at);
+    /// Rows must be added in row order.
+    pub fn add(&mut self, cause: &str, effect: &str, row: u32) {
+        self.push(cause, row);
         if effect != cause {
-            self.push(effect, at);
+            self.push(effect, row);
         }
     }
 
-    fn push(&mut self, key: &str, at: RowAt) {
+    fn push(&mut self, key: &str, row: u32) {
         match self.lists.get_mut(key) {
-            Some(l) => l.push(at),
+            Some(l) => l.push(row),
             None => {
-                self.lists.insert(key.to_string(), vec![at]);
+                self.lists.insert(key.to_string(), vec![row]);
             }
         }
     }
@@ -71,23 +73,24 @@ impl PostingsBuilder {
         let mut w = BufWriter::new(File::create(path).map_err(io)?);
         w.write_all(MAGIC).map_err(io)?;
         let mut dir: Vec<(&str, u64, u32)> = Vec::with_capacity(self.lists.len());
-        let mut next = 0u64;
+        let mut at = MAGIC.len() as u64;
+        let mut gaps = Vec::new();
         for (key, list) in &self.lists {
-            dir.push((key, next, list.len() as u32));
-            for e in list {
-                w.write_all(&e.row.to_le_bytes()).map_err(io)?;
-                w.write_all(&e.offset.to_le_bytes()).map_err(io)?;
-                w.write_all(&e.len.to_le_bytes()).map_err(io)?;
+            gaps.clear();
+            let mut before = 0;
+            for (i, &row) in list.iter().enumerate() {
+                gaps.push(if i == 0 { row } else { row - before });
+                before = row;
             }
-            next += list.len() as u64;
+            let bytes = postcard::to_stdvec(&gaps).map_err(|e| corrupt(path, e.to_string()))?;
+            w.write_all(&bytes).map_err(io)?;
+            dir.push((key, at, bytes.len() as u32));
+            at += bytes.len() as u64;
         }
-        let dir_at = MAGIC.len() as u64 + next * ENTRY as u64;
-        let bytes = postcard::to_stdvec(&dir).map_err(|e| StoreError::Corrupt {
-            path: path.to_path_buf(),
-            message: e.to_string(),
-        })?;
-        w.write_all(&bytes).map_err(io)?;
-        w.write_all(&dir_at.to_le_bytes()).map_err(io)?;
+        let bytes = postcard::to_stdvec(&dir).map_err(|e| corrupt(path, e.to_string()))?;
+        let frame = zstd::bulk::compress(&bytes, 3).map_err(io)?;
+        w.write_all(&frame).map_err(io)?;
+        w.write_all(&at.to_le_bytes()).map_err(io)?;
         w.into_inner().map_err(|e| io(e.into_error()))
     }
 }
@@ -98,52 +101,54 @@ impl PostingsBuilder {
 pub(crate) struct Postings {
     path: PathBuf,
     file: File,
-    /// (key, first entry, entries), sorted by key.
+    /// (key, byte offset, byte length of its list), sorted by key.
     dir: Vec<(String, u64, u32)>,
 }
 
 impl Postings {
     pub fn open(path: &Path) -> Result<Postings, StoreError> {
-        let corrupt = |message: String| StoreError::Corrupt {
-            path: path.to_path_buf(),
-            message,
-        };
         let file = File::open(path).map_err(|e| StoreError::io(path, e))?;
         let len = file.metadata().map_err(|e| StoreError::io(path, e))?.len();
         if len < (MAGIC.len() + 8) as u64 {
-            return Err(corrupt(format!(
-                "{len} bytes: too short for a postings file"
-            )));
+            return Err(corrupt(
+                path,
+                format!("{len} bytes: too short for a postings file"),
+            ));
         }
         let mut head = [0u8; 8];
         file.read_exact_at(&mut head, 0)
             .map_err(|e| StoreError::io(path, e))?;
         if &head != MAGIC {
-            return Err(corrupt("not a postings file (bad magic bytes)".into()));
+            return Err(corrupt(
+                path,
+                "not a postings file (bad magic bytes)".into(),
+            ));
         }
         let mut foot = [0u8; 8];
         file.read_exact_at(&mut foot, len - 8)
             .map_err(|e| StoreError::io(path, e))?;
         let dir_at = u64::from_le_bytes(foot);
-        if dir_at < MAGIC.len() as u64
-            || dir_at > len - 8
-            || !(dir_at - MAGIC.len() as u64).is_multiple_of(ENTRY as u64)
-        {
-            return Err(corrupt(format!("directory offset {dir_at} out of range")));
+        if dir_at < MAGIC.len() as u64 || dir_at > len - 8 {
+            return Err(corrupt(
+                path,
+                format!("directory offset {dir_at} out of range"),
+            ));
         }
-        let mut bytes = vec![0u8; (len - 8 - dir_at) as usize];
-        file.read_exact_at(&mut bytes, dir_at)
+        let mut frame = vec![0u8; (len - 8 - dir_at) as usize];
+        file.read_exact_at(&mut frame, dir_at)
             .map_err(|e| StoreError::io(path, e))?;
+        let bytes = zstd::bulk::decompress(&frame, MAX_DIRECTORY)
+            .map_err(|e| corrupt(path, format!("directory: {e}")))?;
         let dir: Vec<(String, u64, u32)> =
-            postcard::from_bytes(&bytes).map_err(|e| corrupt(format!("directory: {e}")))?;
-        let entries = (dir_at - MAGIC.len() as u64) / ENTRY as u64;
-        for (k, first, n) in &dir {
-            if first.checked_add(*n as u64).is_none_or(|end| end > entries) {
-                return Err(corrupt(format!("list of \"{k}\" out of range")));
+            postcard::from_bytes(&bytes).map_err(|e| corrupt(path, format!("directory: {e}")))?;
+        for (k, at, n) in &dir {
+            if *at < MAGIC.len() as u64 || at.checked_add(*n as u64).is_none_or(|end| end > dir_at)
+            {
+                return Err(corrupt(path, format!("list of \"{k}\" out of range")));
             }
         }
         if dir.windows(2).any(|w| w[0].0 >= w[1].0) {
-            return Err(corrupt("directory keys out of order".into()));
+            return Err(corrupt(path, "directory keys out of order".into()));
         }
         Ok(Postings {
             path: path.to_path_buf(),
@@ -158,25 +163,29 @@ impl Postings {
     }
 
     /// The rows naming any key `wanted` accepts, each once, in row order.
-    pub fn rows(&self, mut wanted: impl FnMut(&str) -> bool) -> Result<Vec<RowAt>, StoreError> {
+    pub fn rows(&self, mut wanted: impl FnMut(&str) -> bool) -> Result<Vec<u32>, StoreError> {
         let mut out = Vec::new();
-        for (k, first, n) in &self.dir {
+        let mut buf = Vec::new();
+        for (k, at, n) in &self.dir {
             if !wanted(k) {
                 continue;
             }
-            let mut buf = vec![0u8; *n as usize * ENTRY];
+            buf.resize(*n as usize, 0);
             self.file
-                .read_exact_at(&mut buf, MAGIC.len() as u64 + first * ENTRY as u64)
+                .read_exact_at(&mut buf, *at)
                 .map_err(|e| StoreError::io(&self.path, e))?;
-            for e in buf.chunks_exact(ENTRY) {
-                let u32_at = |i: usize| u32::from_le_bytes([e[i], e[i + 1], e[i + 2], e[i + 3]]);
-                let mut off = [0u8; 8];
-                off.copy_from_slice(&e[4..12]);
-                out.push(RowAt {
-                    row: u32_at(0),
-                    offset: u64::from_le_bytes(off),
-                    len: u32_at(12),
-                });
+            let gaps: Vec<u32> = postcard::from_bytes(&buf)
+                .map_err(|e| corrupt(&self.path, format!("list of \"{k}\": {e}")))?;
+            let mut row = 0u32;
+            for (i, g) in gaps.into_iter().enumerate() {
+                row = if i == 0 {
+                    g
+                } else {
+                    row.checked_add(g).ok_or_else(|| {
+                        corrupt(&self.path, format!("list of \"{k}\": row past 2^32"))
+                    })?
+                };
+                out.push(row);
             }
         }
         out.sort_unstable();
@@ -194,11 +203,7 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let p = dir.path().join("seg-000001.post");
         let mut b = PostingsBuilder::default();
-        let at = |row: u32| RowAt {
-            row,
-            offset: row as u64 * 10,
-            len: 10,
-        };
+        let at = |row: u32| row;
         b.add("rain", "flood", at(0));
         b.add("flood", "flood", at(1));
         b.add("drought", "rain", at(2));
@@ -221,15 +226,8 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let p = dir.path().join("seg-000001.post");
         let mut b = PostingsBuilder::default();
-        b.add(
-            "rain",
-            "flood",
-            RowAt {
-                row: 0,
-                offset: 0,
-                len: 3,
-            },
-        );
+        b.add("rain", "flood", 0);
+        b.add("rain", "drought", 7);
         b.write(&p).unwrap().sync_all().unwrap();
         let good = std::fs::read(&p).unwrap();
         for bad in [

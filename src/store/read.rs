@@ -5,13 +5,12 @@ use super::aggregates::{self, SegmentAggregates};
 use super::index::SentenceIndex;
 use super::manifest::{load, seg_name, Manifest};
 use super::postings::Postings;
-use super::rows::{ClaimRef, ClaimRow};
+use super::rows::{ClaimRef, ClaimRow, RowsFile};
 use super::writer::CLAIMS_EXT;
 use crate::claim::Claim;
 use crate::error::StoreError;
-use serde::Deserialize;
 use std::collections::{BTreeSet, HashMap};
-use std::fs::{self, File};
+use std::fs::File;
 use std::io::{Read, Seek, SeekFrom};
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
@@ -35,66 +34,6 @@ const CACHED_BLOCKS: usize = 16;
 /// after the record that crosses it; a record is at most a sentence and its spans).
 const MAX_BLOCK: u64 = 64 << 20;
 
-/// A segment's rows: postcard records back to back.
-pub(super) fn decode_rows<'a, T: Deserialize<'a>>(
-    path: &Path,
-    mut bytes: &'a [u8],
-) -> Result<Vec<T>, StoreError> {
-    let mut out = Vec::new();
-    while !bytes.is_empty() {
-        let (row, rest) = postcard::take_from_bytes(bytes).map_err(|e| StoreError::Corrupt {
-            path: path.to_path_buf(),
-            message: format!("row {}: {e}", out.len()),
-        })?;
-        out.push(row);
-        bytes = rest;
-    }
-    Ok(out)
-}
-
-/// Every row of a segment's rows file with its row number, decoded as a stream (1 MiB read at
-/// a time), so that a pass over a segment holds one row, not the file.
-pub(super) fn for_each_row(
-    path: &Path,
-    mut f: impl FnMut(u64, ClaimRow),
-) -> Result<(), StoreError> {
-    const CHUNK: usize = 1 << 20;
-    let mut file = File::open(path).map_err(|e| StoreError::io(path, e))?;
-    let mut buf: Vec<u8> = Vec::new();
-    let (mut start, mut n, mut eof) = (0usize, 0u64, false);
-    loop {
-        if start < buf.len() {
-            match postcard::take_from_bytes::<ClaimRow>(&buf[start..]) {
-                Ok((row, rest)) => {
-                    start = buf.len() - rest.len();
-                    f(n, row);
-                    n += 1;
-                    continue;
-                }
-                // A row cut by the end of the buffer: read on (a row is far below MAX_BLOCK).
-                Err(_) if !eof && buf.len() - start < MAX_BLOCK as usize => {}
-                Err(e) => {
-                    return Err(StoreError::Corrupt {
-                        path: path.to_path_buf(),
-                        message: format!("row {n}: {e}"),
-                    })
-                }
-            }
-        } else if eof {
-            return Ok(());
-        }
-        buf.drain(..start);
-        start = 0;
-        let old = buf.len();
-        buf.resize(old + CHUNK, 0);
-        let got = file
-            .read(&mut buf[old..])
-            .map_err(|e| StoreError::io(path, e))?;
-        buf.truncate(old + got);
-        eof = got == 0;
-    }
-}
-
 impl Store {
     /// Open an existing store.
     pub fn open(dir: &Path) -> Result<Store, StoreError> {
@@ -112,8 +51,7 @@ impl Store {
         let mut by_seg: HashMap<u32, Vec<ClaimRow>> = HashMap::new();
         for seg in self.manifest.segments() {
             let p = self.dir.join(seg_name(seg, "rows"));
-            let bytes = fs::read(&p).map_err(|e| StoreError::io(&p, e))?;
-            by_seg.insert(seg, decode_rows(&p, &bytes)?);
+            by_seg.insert(seg, RowsFile::open(&p, seg)?.all()?);
         }
         let mut out = Vec::new();
         for f in &self.manifest.files {
@@ -170,33 +108,15 @@ impl Store {
         let mut by_seg: HashMap<u32, Vec<(usize, ClaimRow)>> = HashMap::new();
         for (seg, p) in &post.segs {
             let at = p.rows(&mut wanted)?;
-            let path = self.dir.join(seg_name(*seg, "rows"));
-            let mut kept = Vec::with_capacity(at.len());
-            if !at.is_empty() {
-                let f = File::open(&path).map_err(|e| StoreError::io(&path, e))?;
-                let size = f.metadata().map_err(|e| StoreError::io(&path, e))?.len();
-                let mut buf = Vec::new();
-                for a in at {
-                    if a.offset.saturating_add(a.len as u64) > size {
-                        return Err(StoreError::Corrupt {
-                            path: path.clone(),
-                            message: format!(
-                                "row {} at {}+{} past the end ({size} bytes)",
-                                a.row, a.offset, a.len
-                            ),
-                        });
-                    }
-                    buf.resize(a.len as usize, 0);
-                    std::os::unix::fs::FileExt::read_exact_at(&f, &mut buf, a.offset)
-                        .map_err(|e| StoreError::io(&path, e))?;
-                    let row: ClaimRow =
-                        postcard::from_bytes(&buf).map_err(|e| StoreError::Corrupt {
-                            path: path.clone(),
-                            message: format!("row {}: {e}", a.row),
-                        })?;
-                    kept.push((a.row as usize, row));
-                }
-            }
+            let kept = if at.is_empty() {
+                Vec::new()
+            } else {
+                let rows = RowsFile::open(&self.dir.join(seg_name(*seg, "rows")), *seg)?;
+                rows.read(&at)?
+                    .into_iter()
+                    .map(|(i, r)| (i as usize, r))
+                    .collect()
+            };
             by_seg.insert(*seg, kept);
         }
         let mut out = Vec::new();

@@ -6,9 +6,9 @@ use super::index::{open_index, Fields};
 use super::manifest::{
     load, seg_name, segment_number, write_atomic, FileEntry, Manifest, STORE_VERSION,
 };
-use super::postings::{PostingsBuilder, RowAt};
+use super::postings::PostingsBuilder;
 use super::result::{FileResult, Spilled, SpilledRecord};
-use super::rows::{ClaimRef, ClaimRow};
+use super::rows::{ClaimRef, ClaimRow, RowsWriter};
 use super::vocabulary::Vocabulary;
 use crate::claim::Claim;
 use crate::corpus::Skipped;
@@ -65,14 +65,12 @@ pub struct StoreWriter {
     pub(super) old: Manifest,
     segment: u32,
     jsonl: Option<BufWriter<File>>,
-    rows_out: Option<BufWriter<File>>,
+    rows_out: Option<RowsWriter>,
     /// Rows written to the new segment so far.
     rows: u64,
     /// Claim records (JSON Lines) of the block not yet compressed, and where it will start in
     /// the claim file.
     block: Vec<u8>,
-    /// Bytes of rows written to the new segment so far.
-    row_bytes: u64,
     /// The new segment's postings (key to rows), written at commit.
     postings: PostingsBuilder,
     offset: u64,
@@ -146,7 +144,6 @@ impl StoreWriter {
             rows_out: None,
             rows: 0,
             block: Vec::new(),
-            row_bytes: 0,
             postings: PostingsBuilder::default(),
             offset: 0,
             index_writer,
@@ -222,19 +219,13 @@ impl StoreWriter {
         self.start_vocabulary(path);
         self.vocabulary.focus(path)?;
         self.vocabulary.add_claims(path, claims);
-        let corrupt = |dir: &Path, e: postcard::Error| StoreError::Corrupt {
-            path: dir.to_path_buf(),
-            message: e.to_string(),
-        };
         if self.jsonl.is_none() {
             let p = self.dir.join(seg_name(self.segment, CLAIMS_EXT));
             self.jsonl = Some(BufWriter::new(
                 File::create(&p).map_err(|e| StoreError::io(&p, e))?,
             ));
             let p = self.dir.join(seg_name(self.segment, "rows"));
-            self.rows_out = Some(BufWriter::new(
-                File::create(&p).map_err(|e| StoreError::io(&p, e))?,
-            ));
+            self.rows_out = Some(RowsWriter::create(&p)?);
         }
         let first = self.rows;
         let (Some(w), Some(rw)) = (self.jsonl.as_mut(), self.rows_out.as_mut()) else {
@@ -256,26 +247,14 @@ impl StoreWriter {
             if self.block.len() >= CLAIM_BLOCK {
                 self.offset += flush_block(w, &mut self.block, &self.dir)?;
             }
-            let row = postcard::to_stdvec(&ClaimRow::from_claim(c, at))
-                .map_err(|e| corrupt(&self.dir, e))?;
-            rw.write_all(&row)
-                .map_err(|e| StoreError::io(&self.dir, e))?;
-            let (Ok(number), Ok(len)) = (u32::try_from(self.rows), u32::try_from(row.len())) else {
+            let Ok(number) = u32::try_from(self.rows) else {
                 return Err(StoreError::Corrupt {
                     path: self.dir.clone(),
-                    message: "a segment holds at most 2^32 rows of at most 4 GB each".into(),
+                    message: "a segment holds at most 2^32 rows".into(),
                 });
             };
-            self.postings.add(
-                &c.cause.key,
-                &c.effect.key,
-                RowAt {
-                    row: number,
-                    offset: self.row_bytes,
-                    len,
-                },
-            );
-            self.row_bytes += row.len() as u64;
+            rw.push(&ClaimRow::from_claim(c, at))?;
+            self.postings.add(&c.cause.key, &c.effect.key, number);
             self.rows += 1;
         }
         let (segment, rows) = (self.segment, self.rows);
@@ -349,13 +328,16 @@ impl StoreWriter {
         if let Some(w) = self.jsonl.as_mut() {
             flush_block(w, &mut self.block, &self.dir)?;
         }
-        for w in [self.jsonl.take(), self.rows_out.take()]
-            .into_iter()
-            .flatten()
-        {
-            let f = w
-                .into_inner()
-                .map_err(|e| StoreError::io(&self.dir, e.into_error()))?;
+        let rows = self.rows_out.take().map(RowsWriter::finish).transpose()?;
+        let jsonl = self
+            .jsonl
+            .take()
+            .map(|w| {
+                w.into_inner()
+                    .map_err(|e| StoreError::io(&self.dir, e.into_error()))
+            })
+            .transpose()?;
+        for f in [jsonl, rows].into_iter().flatten() {
             f.sync_all().map_err(|e| StoreError::io(&self.dir, e))?;
         }
         if !self.postings.is_empty() {
