@@ -213,6 +213,7 @@ fn link_locked(
         .map(|p| (p.dir.clone(), p.manifest.generation))
         .collect();
     let vocabulary = super::vocabulary::path_of(out, manifest.generation);
+    placed.files.push(vocabulary.with_extension("tmp"));
     placed.files.push(vocabulary);
     Vocabulary::link(&vocabularies, out, manifest.generation)?;
     aggregates::write_missing(out, &manifest)?;

@@ -21,6 +21,7 @@ use crate::variables::Normalizer;
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fs;
+use std::io::Write;
 use std::path::{Path, PathBuf};
 
 /// One abbreviation definition as stored: where, the two forms as written, and the long form's
@@ -241,7 +242,13 @@ impl Vocabulary {
     ) -> Result<(), StoreError> {
         let p = path_of(dir, generation);
         let framing = Framing::new(&p)?;
-        let mut out = framing.open.clone();
+        // Written as it is joined, one part in memory at a time: the joined file grows with the
+        // parts (41.5 MB for 32 eLife copies), the memory does not.
+        let tmp = p.with_extension("tmp");
+        let file = fs::File::create(&tmp).map_err(|e| StoreError::io(&tmp, e))?;
+        let mut out = std::io::BufWriter::new(file);
+        let mut put = |bytes: &[u8]| out.write_all(bytes).map_err(|e| StoreError::io(&tmp, e));
+        put(&framing.open)?;
         let mut first = true;
         for (part, part_generation) in parts {
             let from = path_of(part, *part_generation);
@@ -270,13 +277,17 @@ impl Vocabulary {
                 continue;
             }
             if !first {
-                out.extend_from_slice(&framing.comma);
+                put(&framing.comma)?;
             }
             first = false;
-            out.extend(body);
+            put(&body)?;
         }
-        out.extend_from_slice(&framing.close);
-        write_atomic(&p, &out)
+        put(&framing.close)?;
+        let file = out
+            .into_inner()
+            .map_err(|e| StoreError::io(&tmp, e.into_error()))?;
+        file.sync_all().map_err(|e| StoreError::io(&tmp, e))?;
+        fs::rename(&tmp, &p).map_err(|e| StoreError::io(&p, e))
     }
 
     /// Remove every generation's file but `generation`'s (after its manifest is on disk).
