@@ -5,7 +5,7 @@
 //! ```text
 //! manifest.json      the one file that says what the store holds (written last, atomically)
 //! seg-NNNNNN.jsonl.zst  full claim records, one JSON object a line (the documented schema),
-//!                    zstd-compressed in blocks of about 64 KiB (one frame a block), so that
+//!                    zstd-compressed in blocks of about 128 KiB (one frame a block), so that
 //!                    `zstdcat` gives the JSON Lines and a claim is read by decompressing its
 //!                    block only
 //! seg-NNNNNN.rows    the same claims in compact form (postcard records in zstd blocks of

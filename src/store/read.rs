@@ -27,10 +27,10 @@ pub struct Store {
     blocks: Mutex<Vec<(u32, u64, Vec<u8>)>>,
 }
 
-/// How many decompressed claim blocks a store keeps (at most 64 KiB and a record each).
+/// How many decompressed claim blocks a store keeps (at most 128 KiB and a record each).
 const CACHED_BLOCKS: usize = 16;
 
-/// A decompressed claim block may be at most this large (blocks are written at 64 KiB and end
+/// A decompressed claim block may be at most this large (blocks are written at 128 KiB and end
 /// after the record that crosses it; a record is at most a sentence and its spans).
 const MAX_BLOCK: u64 = 64 << 20;
 
