@@ -42,6 +42,9 @@ pub enum StoreError {
         line: usize,
         message: String,
     },
+    /// A part store `link` cannot join: not a store, locked, or at odds with another part.
+    #[error("part {part}: {reason}")]
+    Part { part: PathBuf, reason: String },
     #[error(
         "store {path} has schema {found}, this hearsay reads {expected}; rescan into a new store"
     )]

@@ -12,6 +12,7 @@ mod eval;
 mod explain;
 mod extract;
 mod graph;
+mod link;
 mod matrix;
 mod merge;
 mod output;
@@ -118,6 +119,9 @@ pub enum Command {
     Extract(extract::ExtractArgs),
     /// Build a store from `extract` JSON Lines shards (the reduce step for pipelines and clusters).
     Merge(merge::MergeArgs),
+    /// Join part stores written by `scan` into one store, without reading their claims (the
+    /// reduce step when each partition of a cluster job scans its own files).
+    Link(link::LinkArgs),
     /// What the corpus says about two variables, in each direction, with evidence.
     Pair(pair::PairArgs),
     /// The most-stated relations.
@@ -215,6 +219,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Questions(a) => questions::run(g, a),
         Command::Graph(a) => graph::run(g, a),
         Command::Merge(a) => merge::run(g, a),
+        Command::Link(a) => link::run(g, a),
         Command::Paths(a) => paths::run(g, a),
         Command::Conflicts(a) => conflicts::run(g, a),
         Command::Cycles(a) => cycles::run(g, a),

@@ -328,3 +328,120 @@ impl SentenceIndex {
         Ok(out)
     }
 }
+
+/// The sentence index of a store being linked from parts (see `link`): the parts' index
+/// segments are added to the output's index as they are (tantivy segments are immutable files
+/// named by a unique id), and one meta file lists them all.
+pub(super) struct IndexLink {
+    dir: PathBuf,
+    meta: tantivy::IndexMeta,
+    /// The meta and managed-files list before the link, to put back on failure.
+    old_meta: Vec<u8>,
+    old_managed: Option<Vec<u8>>,
+    managed: BTreeSet<PathBuf>,
+}
+
+/// tantivy's list of the files it manages (and may delete once no segment uses them).
+const MANAGED: &str = ".managed.json";
+
+impl IndexLink {
+    /// The output store's index (created if need be); it must hold no sentences.
+    pub(super) fn open(out: &Path) -> Result<IndexLink, StoreError> {
+        let index = open_index(out, true, &[])?;
+        let meta = index.load_metas()?;
+        let dir = out.join("index");
+        if !meta.segments.is_empty() {
+            return Err(StoreError::Corrupt {
+                path: dir,
+                message: "the search index already holds sentences; link into a new store".into(),
+            });
+        }
+        let meta_path = dir.join("meta.json");
+        let old_meta = fs::read(&meta_path).map_err(|e| StoreError::io(&meta_path, e))?;
+        let managed_path = dir.join(MANAGED);
+        let old_managed = fs::read(&managed_path).ok();
+        let managed = match &old_managed {
+            Some(bytes) => serde_json::from_slice(bytes).map_err(|e| StoreError::Corrupt {
+                path: managed_path.clone(),
+                message: e.to_string(),
+            })?,
+            None => BTreeSet::new(),
+        };
+        Ok(IndexLink {
+            dir,
+            meta,
+            old_meta,
+            old_managed,
+            managed,
+        })
+    }
+
+    /// Add the index segments of the part store at `part`: its segment files are given to
+    /// `place` (which hard-links or copies them into the output index and remembers them), and
+    /// its segments join the meta. Its schema and settings must be the output's.
+    pub(super) fn add(
+        &mut self,
+        part: &Path,
+        mut place: impl FnMut(&Path, &Path) -> Result<(), StoreError>,
+    ) -> Result<(), StoreError> {
+        let from = part.join("index");
+        if !from.join("meta.json").exists() {
+            return Err(StoreError::Corrupt {
+                path: from,
+                message: "search index missing".into(),
+            });
+        }
+        let meta = Index::open_in_dir(&from)?.load_metas()?;
+        if meta.schema != self.meta.schema || meta.index_settings != self.meta.index_settings {
+            return Err(StoreError::Corrupt {
+                path: from,
+                message: "the search index has another schema or other settings than this \
+                          hearsay writes"
+                    .into(),
+            });
+        }
+        for file in meta.list_segment_files() {
+            let src = from.join(&file);
+            // The list names every file a segment may have; those it has are on disk.
+            if src.exists() {
+                place(&src, &self.dir.join(&file))?;
+                self.managed.insert(file);
+            }
+        }
+        self.meta.opstamp = self.meta.opstamp.max(meta.opstamp);
+        self.meta.segments.extend(meta.segments);
+        Ok(())
+    }
+
+    /// Write the meta file that makes the added segments the index's, with `payload` (the
+    /// store generation, as a scan's commit writes it).
+    pub(super) fn commit(&mut self, payload: &str) -> Result<(), StoreError> {
+        self.meta.payload = Some(payload.to_string());
+        let mut managed: BTreeSet<PathBuf> = self.managed.clone();
+        managed.insert(PathBuf::from("meta.json"));
+        let corrupt = |e: serde_json::Error| StoreError::Corrupt {
+            path: self.dir.clone(),
+            message: e.to_string(),
+        };
+        let mut list = serde_json::to_vec(&managed).map_err(corrupt)?;
+        list.push(b'\n');
+        super::manifest::write_atomic(&self.dir.join(MANAGED), &list)?;
+        let mut meta = serde_json::to_vec_pretty(&self.meta).map_err(corrupt)?;
+        meta.push(b'\n');
+        super::manifest::write_atomic(&self.dir.join("meta.json"), &meta)
+    }
+
+    /// Put the meta and managed-files list back as they were before the link.
+    pub(super) fn restore(&self) {
+        let _ = super::manifest::write_atomic(&self.dir.join("meta.json"), &self.old_meta);
+        let managed = self.dir.join(MANAGED);
+        match &self.old_managed {
+            Some(bytes) => {
+                let _ = super::manifest::write_atomic(&managed, bytes);
+            }
+            None => {
+                let _ = fs::remove_file(managed);
+            }
+        }
+    }
+}

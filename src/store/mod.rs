@@ -43,6 +43,7 @@
 mod aggregates;
 mod compact;
 mod index;
+mod link;
 mod manifest;
 mod merge;
 mod postings;
@@ -61,6 +62,7 @@ pub use aggregates::{
 };
 pub use compact::compact;
 pub use index::key_terms;
+pub use link::{link, LinkReport};
 pub use manifest::{FileEntry, Manifest};
 pub use merge::{FileRecord, FileStart, Merge, SentenceRecord};
 pub use read::{PostingIndex, Store, TableScope};

@@ -47,6 +47,19 @@ const CLAIM_BLOCK: usize = 128 * 1024;
 /// level 15 8.86 MB at 5 MB/s (too slow for a scan).
 const CLAIM_LEVEL: i32 = 9;
 
+/// Take the store's lock (`dir/lock`), held until the file is dropped: one writer at a time.
+pub(super) fn lock(dir: &Path) -> Result<File, StoreError> {
+    let lock_path = dir.join("lock");
+    let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
+    // Only a lock held elsewhere is "another scan"; a file system that cannot lock is an I/O
+    // error with its own reason.
+    match lock.try_lock() {
+        Ok(()) => Ok(lock),
+        Err(std::fs::TryLockError::WouldBlock) => Err(StoreError::Locked { lock: lock_path }),
+        Err(std::fs::TryLockError::Error(e)) => Err(StoreError::io(&lock_path, e)),
+    }
+}
+
 /// A scan's writer: holds the lock, writes a new segment and index entries as files come, and
 /// switches the store to them at commit. Claims and rows go to disk as they are added, so its
 /// memory is the file entries and the index writer's budget, whatever the corpus size.
@@ -88,17 +101,7 @@ impl StoreWriter {
     ) -> Result<StoreWriter, StoreError> {
         let unindexed: Vec<String> = crate::variables::dropped_words(lexicon).collect();
         fs::create_dir_all(dir).map_err(|e| StoreError::io(dir, e))?;
-        let lock_path = dir.join("lock");
-        let lock = File::create(&lock_path).map_err(|e| StoreError::io(&lock_path, e))?;
-        // Only a lock held elsewhere is "another scan"; a file system that cannot lock is an
-        // I/O error with its own reason.
-        match lock.try_lock() {
-            Ok(()) => {}
-            Err(std::fs::TryLockError::WouldBlock) => {
-                return Err(StoreError::Locked { lock: lock_path });
-            }
-            Err(std::fs::TryLockError::Error(e)) => return Err(StoreError::io(&lock_path, e)),
-        }
+        let lock = lock(dir)?;
         let old = match load(dir) {
             Ok(m) => m,
             Err(StoreError::Missing(_)) => Manifest::default(),
@@ -218,6 +221,7 @@ impl StoreWriter {
             self.begin(FileEntry::new(path));
         }
         self.start_vocabulary(path);
+        self.vocabulary.focus(path)?;
         self.vocabulary.add_claims(path, claims);
         if self.jsonl.is_none() {
             let p = self.dir.join(seg_name(self.segment, CLAIMS_EXT));
@@ -281,6 +285,7 @@ impl StoreWriter {
         text: &str,
     ) -> Result<(), StoreError> {
         self.start_vocabulary(file);
+        self.vocabulary.focus(file)?;
         self.vocabulary
             .add_sentence(file, id, text, &self.normalizer);
         let f = self.fields;

@@ -232,3 +232,72 @@ pub fn eval_json(format: &str, gold: &Path) -> serde_json::Value {
     let first = out.stdout.split(|&b| b == b'\n').next().unwrap();
     serde_json::from_slice(first).unwrap()
 }
+
+/// What a store answers to every query command, each output as printed (`--format json`
+/// unless the command writes its own format): the whole-graph queries in every format, the
+/// report page, the claims, and the look-ups of `x` and `y` (`vars`: a variable list file for
+/// `matrix`). Two stores of the same documents must give the same bytes.
+pub fn every_answer(store: &Path, x: &str, y: &str, vars: &Path) -> Vec<(String, Vec<u8>)> {
+    let vars = vars.to_str().expect("a UTF-8 path");
+    let queries: [&[&str]; 24] = [
+        &["top", "-n", "0"],
+        &["top", "-n", "0", "--format", "csv"],
+        &["conflicts"],
+        &["conflicts", "--limit", "0", "--min-confidence", "0"],
+        &["cycles"],
+        &["graph", "--format", "graphml"],
+        &["graph", "--format", "gexf"],
+        &["graph", "--format", "dot"],
+        &["graph", "--format", "json", "--weight-by", "sentences"],
+        &["graph", "--format", "json"],
+        &["graph", "--evidence"],
+        &["matrix", "--vars", vars],
+        &["report"],
+        &["report", "--pair", x, y],
+        &["claims"],
+        &["claims", "--cause", x],
+        &["claims", "--var", y],
+        &["pair", x, y],
+        &["pair", y, x],
+        &["paths", x, y],
+        &["variables", "-n", "0"],
+        &["variables", "--abbreviations", "-n", "0"],
+        &["--roll-up", "heads", "top", "-n", "0"],
+        &["--roll-up", "abbreviations", "top", "-n", "0"],
+    ];
+    queries
+        .iter()
+        .map(|args| {
+            let mut cmd = hearsay();
+            cmd.arg("--store").arg(store);
+            if !args.contains(&"--format") {
+                cmd.args(["--format", "json"]);
+            }
+            let out = cmd.args(*args).output().expect("runs");
+            assert!(
+                out.status.success(),
+                "{args:?}: {}",
+                String::from_utf8_lossy(&out.stderr)
+            );
+            (args.join(" "), out.stdout)
+        })
+        .collect()
+}
+
+/// The first query whose answers differ between two stores, with both answers (as text).
+pub fn first_different_answer(a: &[(String, Vec<u8>)], b: &[(String, Vec<u8>)]) -> Option<String> {
+    a.iter().zip(b).find(|(x, y)| x != y).map(|(x, y)| {
+        format!(
+            "`{}` differs:\n{}\n---\n{}",
+            x.0,
+            String::from_utf8_lossy(&x.1)
+                .chars()
+                .take(3000)
+                .collect::<String>(),
+            String::from_utf8_lossy(&y.1)
+                .chars()
+                .take(3000)
+                .collect::<String>()
+        )
+    })
+}

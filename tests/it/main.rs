@@ -14,6 +14,7 @@ mod graph_analyses;
 mod groups;
 mod hostile;
 mod layering;
+mod link;
 mod merge;
 mod pair_fast;
 mod quality;
