@@ -157,6 +157,8 @@ pub struct CueSet {
     anchor_cues: Vec<Vec<usize>>,
     anchor_glued: Vec<bool>,
     anchors: Vec<String>,
+    /// Cue id → the first cue with that id (every claim asks for its cue's family).
+    by_id: rustc_hash::FxHashMap<String, usize>,
     /// Unique per cue set built in this process: names the set in per-thread scratch space.
     id: u64,
 }
@@ -535,6 +537,10 @@ impl CueSet {
             .build(&anchors)
             .map_err(|e| format!("cannot build the cue prefilter: {e}"))?;
         let anchor_glued = anchors.iter().map(|a| a.starts_with('-')).collect();
+        let mut by_id = rustc_hash::FxHashMap::default();
+        for (ci, c) in cues.iter().enumerate() {
+            by_id.entry(c.spec.id.clone()).or_insert(ci);
+        }
         static NEXT_ID: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
         Ok(CueSet {
             cues,
@@ -542,16 +548,16 @@ impl CueSet {
             anchor_cues,
             anchor_glued,
             anchors,
+            by_id,
             id: NEXT_ID.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         })
     }
 
     /// The family of the cue with id `cue` ("" when there is none), for confidence features.
     pub fn family(&self, cue: &str) -> &str {
-        self.cues
-            .iter()
-            .find(|c| c.spec.id == cue)
-            .map_or("", |c| c.spec.family.as_str())
+        self.by_id
+            .get(cue)
+            .map_or("", |&ci| self.cues[ci].spec.family.as_str())
     }
 
     /// The prefilter's literal strings (one per line in `patterns list --literals`), without the
