@@ -340,9 +340,9 @@ impl Extractor {
         for i in 0..matches.len() {
             if results[i].is_err() && noun_uses[i].is_none() {
                 let (a, b) = cue_tokens[i];
-                for k in a..b {
-                    if blocked[k] {
-                        blocked[k] = false;
+                for (k, word) in blocked.iter_mut().enumerate().take(b).skip(a) {
+                    if *word {
+                        *word = false;
                         freed.push(k);
                     }
                 }
