@@ -103,7 +103,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
             }
             match r {
                 Ok((text, n, b)) => {
-                    out.write_all(text.as_bytes())?;
+                    out.write_all(&text)?;
                     claims += n;
                     bytes += b;
                 }
@@ -136,7 +136,7 @@ pub fn run(g: &Global, a: &ExtractArgs) -> Result<ExitCode> {
     })
 }
 
-type Extracted = (Result<(String, usize, usize), String>, Vec<String>);
+type Extracted = (Result<(Vec<u8>, usize, usize), String>, Vec<String>);
 
 /// What every input is extracted with.
 struct Job<'a> {
@@ -149,7 +149,8 @@ struct Job<'a> {
 /// The records of one document, and what they count.
 #[derive(Default)]
 struct DocOut {
-    text: String,
+    /// JSON Lines, written in place (serde_json writes UTF-8).
+    text: Vec<u8>,
     claims: usize,
     sentences: u64,
     bytes: usize,
@@ -157,14 +158,17 @@ struct DocOut {
 }
 
 impl DocOut {
-    /// Append one record as a JSON line, or remember why it could not be written.
+    /// Append one record as a JSON line, or remember why it could not be written (and drop
+    /// what was written of it). Serialised straight into the buffer: a string per record grew
+    /// by doubling and was copied again.
     fn push(&mut self, rec: &impl serde::Serialize) {
-        match serde_json::to_string(rec) {
-            Ok(j) => {
-                self.text.push_str(&j);
-                self.text.push('\n');
+        let len = self.text.len();
+        match serde_json::to_writer(&mut self.text, rec) {
+            Ok(()) => self.text.push(b'\n'),
+            Err(e) => {
+                self.text.truncate(len);
+                self.failed = Some(e.to_string());
             }
-            Err(e) => self.failed = Some(e.to_string()),
         }
     }
 }
@@ -253,7 +257,7 @@ impl Job<'_> {
         self.file_start(input, &mut start);
         let (warnings, r) = corpus::read_batched(input, self.opts, |batch| {
             if docs == 0 {
-                out.write_all(start.text.as_bytes())?;
+                out.write_all(&start.text)?;
             }
             docs += batch.len() as u64;
             let outs: Vec<DocOut> = batch
@@ -265,7 +269,7 @@ impl Job<'_> {
                 })
                 .collect();
             for o in outs {
-                out.write_all(o.text.as_bytes())?;
+                out.write_all(&o.text)?;
                 claims += o.claims;
                 bytes += o.bytes;
                 sentences += o.sentences;
@@ -296,7 +300,7 @@ impl Job<'_> {
             o.text = start.text;
         }
         self.file_record(input, docs, &mut o);
-        out.write_all(o.text.as_bytes())?;
+        out.write_all(&o.text)?;
         Ok(Ok((claims, bytes)))
     }
 }

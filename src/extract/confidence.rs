@@ -258,6 +258,36 @@ pub struct TaggedSentence<'a> {
     offset: usize,
     tokens: Vec<Token>,
     tags: Vec<Tag>,
+    /// What the sentence-wide features read, found once for all the sentence's claims.
+    facts: std::cell::OnceCell<SentenceFacts>,
+}
+
+/// The sentence-wide facts the features read: the same for every claim of a sentence.
+#[derive(Debug, Clone, Copy)]
+struct SentenceFacts {
+    /// Word tokens.
+    words: usize,
+    /// Whether the text holds ';', '(', '"', ':'.
+    marks: [bool; 4],
+    method_word: bool,
+    /// "we" or "our" among the tokens.
+    we: bool,
+    /// "Figure" or "Fig." in the text.
+    figure: bool,
+    /// The last word token.
+    last_word: Option<usize>,
+}
+
+/// Membership in one of the word lists below, through a hash set made once: the lists are
+/// asked about every word of every claim's sentence and spans.
+type WordSet = std::sync::OnceLock<rustc_hash::FxHashSet<&'static str>>;
+static METHOD_SET: WordSet = std::sync::OnceLock::new();
+static CLAUSE_SET: WordSet = std::sync::OnceLock::new();
+static AUXILIARY_SET: WordSet = std::sync::OnceLock::new();
+
+fn listed(set: &'static WordSet, list: &'static [&'static str], w: &str) -> bool {
+    set.get_or_init(|| list.iter().copied().collect())
+        .contains(w)
 }
 
 impl<'a> TaggedSentence<'a> {
@@ -271,6 +301,7 @@ impl<'a> TaggedSentence<'a> {
             offset,
             tokens,
             tags,
+            facts: std::cell::OnceCell::new(),
         }
     }
 
@@ -288,7 +319,25 @@ impl<'a> TaggedSentence<'a> {
             offset,
             tokens,
             tags,
+            facts: std::cell::OnceCell::new(),
         }
+    }
+
+    fn facts(&self) -> SentenceFacts {
+        *self.facts.get_or_init(|| SentenceFacts {
+            words: self.tokens.iter().filter(|t| t.word).count(),
+            marks: [";", "(", "\"", ":"].map(|mark| self.text.contains(mark)),
+            method_word: self
+                .tokens
+                .iter()
+                .any(|t| t.word && listed(&METHOD_SET, METHOD_WORDS, &t.lower)),
+            we: self
+                .tokens
+                .iter()
+                .any(|t| t.lower == "we" || t.lower == "our"),
+            figure: self.text.contains("Figure") || self.text.contains("Fig."),
+            last_word: self.tokens.iter().rposition(|t| t.word),
+        })
     }
 
     /// Token indices of a document byte range, when it lies inside this sentence.
@@ -448,34 +497,32 @@ pub fn visit_features(
     if c.cross_sentence {
         f("cross_sentence", None);
     }
-    let sentence_words = s.tokens.iter().filter(|t| t.word).count();
+    let facts = s.facts();
+    let sentence_words = facts.words;
     f(
         "sentence_words",
         Some(bucket(sentence_words, &SENTENCE_WORDS)),
     );
-    for (mark, name) in [
-        (";", "sentence_semicolon"),
-        ("(", "sentence_paren"),
-        ("\"", "sentence_quote"),
-        (":", "sentence_colon"),
-    ] {
-        if s.text.contains(mark) {
+    for (has, name) in facts.marks.iter().zip([
+        "sentence_semicolon",
+        "sentence_paren",
+        "sentence_quote",
+        "sentence_colon",
+    ]) {
+        if *has {
             f(name, None);
         }
     }
-    if s.tokens
-        .iter()
-        .any(|t| t.word && METHOD_WORDS.contains(&t.lower.as_str()))
-    {
+    if facts.method_word {
         f("sentence_method_word", None);
     }
-    if s.tokens.iter().any(|t| t.lower == "we" || t.lower == "our") {
+    if facts.we {
         f("sentence_we", None);
     }
-    if s.text.contains("Figure") || s.text.contains("Fig.") {
+    if facts.figure {
         f("sentence_figure", None);
     }
-    let last_word = s.tokens.iter().rposition(|t| t.word);
+    let last_word = facts.last_word;
     let mut inside = 0;
     let mut ranges = [None, None];
     let cause_first = c.cause.start <= c.effect.start;
@@ -512,10 +559,10 @@ pub fn visit_features(
             f(k.no_noun, None);
         }
         let lowers = || s.tokens[r.clone()].iter().map(|t| t.lower.as_str());
-        if lowers().any(|w| CLAUSE_WORDS.contains(&w)) {
+        if lowers().any(|w| listed(&CLAUSE_SET, CLAUSE_WORDS, w)) {
             f(k.clause_word, None);
         }
-        if lowers().any(|w| AUXILIARIES.contains(&w)) {
+        if lowers().any(|w| listed(&AUXILIARY_SET, AUXILIARIES, w)) {
             f(k.auxiliary, None);
         }
         if let Some(b) = last {

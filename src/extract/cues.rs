@@ -12,7 +12,7 @@ use crate::patterns::{CueSpec, PatternSet, PatternToken, Role};
 use aho_corasick::{AhoCorasick, AhoCorasickBuilder, AhoCorasickKind, MatchKind};
 use regex_automata::meta::Regex as MetaRegex;
 use regex_automata::util::captures::Captures;
-use regex_automata::{Anchored, Input};
+use regex_automata::{Anchored, Input, PatternID};
 use std::collections::{BTreeSet, HashMap};
 use std::sync::Arc;
 
@@ -28,12 +28,15 @@ pub struct CompiledCue {
     /// (`\S.{0,160}?`, about 1 600 automaton states a slot), built on first need. `None` when
     /// no slot is bounded.
     exact: Option<Exact>,
-    /// Capture-group indexes (into `group_names`) of the bounded inner slots.
+    /// Capture-group indexes (into `groups`) of the bounded inner slots.
     bounded: Vec<usize>,
     /// Where a match starts relative to a prefilter hit of this cue's anchor.
     start: MatchStart,
-    /// Capture-group names of the inner slots, `s0`, `s1`, …
-    group_names: Vec<String>,
+    /// Capture-group indexes of the inner slots, named `s0`, `s1`, … in the pattern: looked up
+    /// once here, since a look-up by name hashes the name at every match. The exact regex is
+    /// the same pattern with other slot bodies (no groups in them), so its groups have the
+    /// same indexes.
+    groups: Vec<usize>,
     /// The slot that lies before the first literal, if any.
     pub left: Option<Role>,
     /// The slot that lies after the last literal, if any.
@@ -59,10 +62,9 @@ impl CompiledCue {
     fn exact_regex(&self, sentence: &str, found: &[Captures]) -> Option<&MetaRegex> {
         let too_long = found.iter().any(|caps| {
             self.bounded.iter().any(|&gi| {
-                caps.get_group_by_name(&self.group_names[gi])
-                    .is_some_and(|g| {
-                        g.len() > SLOT_CHARS && sentence[g.range()].chars().count() > SLOT_CHARS
-                    })
+                caps.get_group(self.groups[gi]).is_some_and(|g| {
+                    g.len() > SLOT_CHARS && sentence[g.range()].chars().count() > SLOT_CHARS
+                })
             })
         });
         if too_long {
@@ -155,6 +157,8 @@ pub struct CueSet {
     anchor_cues: Vec<Vec<usize>>,
     anchor_glued: Vec<bool>,
     anchors: Vec<String>,
+    /// Cue id → the first cue with that id (every claim asks for its cue's family).
+    by_id: rustc_hash::FxHashMap<String, usize>,
     /// Unique per cue set built in this process: names the set in per-thread scratch space.
     id: u64,
 }
@@ -429,10 +433,17 @@ fn compile(
         prefilter: scans,
         regex: std::sync::OnceLock::new(),
     });
-    let group_names = (0..inner.len()).map(|i| format!("s{i}")).collect();
+    let groups = (0..inner.len())
+        .map(|i| {
+            regex
+                .group_info()
+                .to_index(PatternID::ZERO, &format!("s{i}"))
+                .unwrap_or(usize::MAX)
+        })
+        .collect();
     Ok(CompiledCue {
         start,
-        group_names,
+        groups,
         glued_last,
         verb_first,
         reject_after: rejects.get(&spec.reject_after, true)?,
@@ -526,6 +537,10 @@ impl CueSet {
             .build(&anchors)
             .map_err(|e| format!("cannot build the cue prefilter: {e}"))?;
         let anchor_glued = anchors.iter().map(|a| a.starts_with('-')).collect();
+        let mut by_id = rustc_hash::FxHashMap::default();
+        for (ci, c) in cues.iter().enumerate() {
+            by_id.entry(c.spec.id.clone()).or_insert(ci);
+        }
         static NEXT_ID: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
         Ok(CueSet {
             cues,
@@ -533,16 +548,16 @@ impl CueSet {
             anchor_cues,
             anchor_glued,
             anchors,
+            by_id,
             id: NEXT_ID.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         })
     }
 
     /// The family of the cue with id `cue` ("" when there is none), for confidence features.
     pub fn family(&self, cue: &str) -> &str {
-        self.cues
-            .iter()
-            .find(|c| c.spec.id == cue)
-            .map_or("", |c| c.spec.family.as_str())
+        self.by_id
+            .get(cue)
+            .map_or("", |&ci| self.cues[ci].spec.family.as_str())
     }
 
     /// The prefilter's literal strings (one per line in `patterns list --literals`), without the
@@ -657,7 +672,7 @@ impl CueSet {
     fn accept(&self, ci: usize, sentence: &str, caps: &Captures, found: &mut Vec<CueMatch>) {
         let cue = &self.cues[ci];
         let Some(m) = caps.get_match() else { return };
-        let group = |gi: usize| caps.get_group_by_name(&cue.group_names[gi]);
+        let group = |gi: usize| caps.get_group(cue.groups[gi]);
         // "After the cue" means after its first run of literal words: for "since CAUSE ,
         // EFFECT" that is right after "since".
         let lit_end = (0..cue.inner.len())
@@ -830,6 +845,30 @@ mod tests {
                 ids(&scanned)
             );
         }
+    }
+
+    /// The slot groups are read by the fast regex's indexes from either regex's captures: every
+    /// built-in cue's exact regex must number its slot groups as the fast one does.
+    #[test]
+    fn exact_regexes_number_slot_groups_alike() {
+        let s = set();
+        let mut checked = 0;
+        for c in &s.cues {
+            let Some(exact) = c.exact.as_ref().and_then(Exact::regex) else {
+                continue;
+            };
+            for (i, &gi) in c.groups.iter().enumerate() {
+                let name = format!("s{i}");
+                assert_eq!(
+                    exact.group_info().to_index(PatternID::ZERO, &name),
+                    Some(gi),
+                    "{}",
+                    c.spec.id
+                );
+                checked += 1;
+            }
+        }
+        assert!(checked > 10, "only {checked} slot groups checked");
     }
 
     #[test]

@@ -58,9 +58,27 @@ pub fn tokenize(sentence: &str) -> Vec<Token> {
             word: first.is_some_and(char::is_alphanumeric),
             capital: first.is_some_and(char::is_uppercase),
             tag: None,
-        })
+        });
+        true
     });
     out
+}
+
+/// Whether `text` has a word and the lower-case form of each of its words (the tokens
+/// [`tokenize`] marks `word`) passes `pred`. Stops at the first word that fails, and builds no
+/// tokens: span checks ask this of every claim's slots.
+pub fn every_word(text: &str, mut pred: impl FnMut(&str) -> bool) -> bool {
+    let (mut any, mut all) = (false, true);
+    each_token_span(text, |start, end| {
+        let s = &text[start..end];
+        if !s.chars().next().is_some_and(char::is_alphanumeric) {
+            return true;
+        }
+        any = true;
+        all = pred(&lower_word(s));
+        all
+    });
+    any && all
 }
 
 /// Unicode `White_Space` in ASCII: what the token regex's `\S` skips (note: vertical tab too).
@@ -73,15 +91,19 @@ fn ascii_space(b: u8) -> bool {
 #[cfg(test)]
 fn token_spans(s: &str) -> Vec<(usize, usize)> {
     let mut out = Vec::with_capacity(s.len() / 5 + 1);
-    each_token_span(s, |a, b| out.push((a, b)));
+    each_token_span(s, |a, b| {
+        out.push((a, b));
+        true
+    });
     out
 }
 
-/// Call `f` with the byte range of each of the token regex's matches, in order. Tokenising was
+/// Call `f` with the byte range of each of the token regex's matches, in order, until it
+/// returns `false`. Tokenising was
 /// a tenth of extraction, most of it the regex stepping through UTF-8: a token made of ASCII is
 /// found here by hand, and only a token that starts with, or runs into, a non-ASCII character
 /// is left to the regex.
-fn each_token_span(s: &str, mut f: impl FnMut(usize, usize)) {
+fn each_token_span(s: &str, mut f: impl FnMut(usize, usize) -> bool) {
     let b = s.as_bytes();
     let mut i = 0;
     // The regex's match from `at` (a place where a match may start), or `None` when none is left.
@@ -135,7 +157,9 @@ fn each_token_span(s: &str, mut f: impl FnMut(usize, usize)) {
         };
         match token {
             Some(m) => {
-                f(m.0, m.1);
+                if !f(m.0, m.1) {
+                    break;
+                }
                 i = m.1;
             }
             None => break,
@@ -220,6 +244,20 @@ mod token_tests {
             "[aZ09 .'\\-,;()\t\u{b}\u{c}\r\n\u{0}\u{7f}µαé\u{301}\u{345}’‘“”—…\u{a0}\u{2009}\u{2013}\u{2160}\u{b2}]{0,30}"
         ).expect("valid regex")) {
             prop_assert_eq!(token_spans(&s), by_regex(&s));
+        }
+    }
+
+    proptest! {
+        /// `every_word` answers what a filter over `tokenize`'s words does.
+        #[test]
+        fn every_word_agrees_with_the_tokens(s in proptest::string::string_regex(
+            "(two|Two|40|°C|%|x|é|,|-| |’s){0,6}"
+        ).expect("valid regex")) {
+            let pred = |w: &str| w.starts_with(|c: char| c.is_ascii_digit()) || w == "two" || w == "°c";
+            let toks = tokenize(&s);
+            let mut words = toks.iter().filter(|t| t.word).peekable();
+            let expected = words.peek().is_some() && words.all(|t| pred(&t.lower));
+            prop_assert_eq!(every_word(&s, pred), expected);
         }
     }
 

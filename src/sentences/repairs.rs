@@ -177,21 +177,25 @@ pub(super) fn citation_run(text: &str, mut pos: usize, e: usize) -> Option<usize
     }
 }
 
-/// The last '(' or '[' in `bytes[from..to]` that is not closed before `to`.
+/// The last '(' or '[' in `bytes[from..to]` that is not closed before `to`. The two kinds of
+/// bracket are counted apart, so each is found with a reverse memchr over its own two bytes
+/// and the later of the two is the answer; most windows hold no bracket at all.
 pub(super) fn unclosed_open(bytes: &[u8], from: usize, to: usize) -> Option<usize> {
-    let (mut paren, mut square) = (0usize, 0usize);
-    for i in (from..to).rev() {
-        match bytes[i] {
-            b')' => paren += 1,
-            b']' => square += 1,
-            b'(' if paren == 0 => return Some(i),
-            b'(' => paren -= 1,
-            b'[' if square == 0 => return Some(i),
-            b'[' => square -= 1,
-            _ => {}
+    let window = &bytes[from..to];
+    let last = |open: u8, close: u8| {
+        let mut depth = 0usize;
+        for k in memchr::memrchr2_iter(open, close, window) {
+            if window[k] == close {
+                depth += 1;
+            } else if depth == 0 {
+                return Some(from + k);
+            } else {
+                depth -= 1;
+            }
         }
-    }
-    None
+        None
+    };
+    last(b'(', b')').max(last(b'[', b']'))
 }
 
 /// Whether `s` ends with a sentence-final stop, possibly followed by closing quotes.

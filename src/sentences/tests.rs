@@ -312,3 +312,39 @@ fn mixed_case_sentence_starts_on_elife_text() {
     }
     assert!(checked > 100, "only {checked} mixed-case starts checked");
 }
+
+/// The last unclosed bracket by a plain reverse walk, both kinds counted apart: what
+/// `repairs::unclosed_open` finds with memchr.
+fn unclosed_open_walk(bytes: &[u8], from: usize, to: usize) -> Option<usize> {
+    let (mut paren, mut square) = (0usize, 0usize);
+    for i in (from..to).rev() {
+        match bytes[i] {
+            b')' => paren += 1,
+            b']' => square += 1,
+            b'(' if paren == 0 => return Some(i),
+            b'(' => paren -= 1,
+            b'[' if square == 0 => return Some(i),
+            b'[' => square -= 1,
+            _ => {}
+        }
+    }
+    None
+}
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(4000))]
+    /// Any text of brackets and other bytes, any window: the memchr search and the walk agree.
+    #[test]
+    fn unclosed_open_agrees_with_the_walk(
+        s in proptest::string::string_regex("[a ()\\[\\]]{0,40}").expect("valid regex"),
+        a in 0usize..41,
+        b in 0usize..41,
+    ) {
+        let n = s.len();
+        let (from, to) = (a.min(b).min(n), a.max(b).min(n));
+        proptest::prop_assert_eq!(
+            repairs::unclosed_open(s.as_bytes(), from, to),
+            unclosed_open_walk(s.as_bytes(), from, to)
+        );
+    }
+}

@@ -29,35 +29,36 @@ pub(super) fn sentence_ends(flat: &str, out: &mut Vec<usize>) {
     }
 }
 
-/// The fast path: `false` when some decision needs the Unicode tables.
+/// The fast path: `false` when some decision needs the Unicode tables. Only terminators and
+/// non-ASCII characters ask for a decision, so the scan jumps from one terminator to the next
+/// (memchr) and looks at the characters in between only when they are not all ASCII.
 fn ascii_context_ends(flat: &str, out: &mut Vec<usize>) -> bool {
     let b = flat.as_bytes();
     let n = b.len();
+    // Paragraph separators (SB4): a flattened block never has them.
+    if memchr::memchr2(b'\n', b'\r', b).is_some() {
+        return false;
+    }
     let mut i = 0;
     while i < n {
-        let c = b[i];
-        if c >= 0x80 {
-            let Some(ch) = flat[i..].chars().next() else {
-                return false;
-            };
-            if may_end_sentence(ch) {
-                return false;
-            }
-            i += ch.len_utf8();
-            continue;
+        let t = memchr::memchr3(b'.', b'!', b'?', &b[i..]).map_or(n, |k| i + k);
+        if !b[i..t].is_ascii()
+            && flat[i..t]
+                .chars()
+                .any(|c| !c.is_ascii() && may_end_sentence(c))
+        {
+            return false;
         }
-        match c {
-            // Paragraph separators (SB4): a flattened block never has them.
-            b'\n' | b'\r' => return false,
-            b'.' | b'!' | b'?' => match after_terminator(b, i) {
-                Some(Next::Break(at)) => {
-                    out.push(at);
-                    i = at;
-                }
-                Some(Next::NoBreak(at)) => i = at,
-                None => return false,
-            },
-            _ => i += 1,
+        if t == n {
+            break;
+        }
+        match after_terminator(b, t) {
+            Some(Next::Break(at)) => {
+                out.push(at);
+                i = at;
+            }
+            Some(Next::NoBreak(at)) => i = at,
+            None => return false,
         }
     }
     if n > 0 {

@@ -26,6 +26,8 @@
 //!
 //! Coordination ("events and challenges") stays in the head.
 
+use compact_str::CompactString;
+
 /// One phrase split into its head and its qualifiers.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct HeadSplit {
@@ -217,10 +219,17 @@ const COMPLEMENT_NOUNS: &[&str] = &[
     "preference",
 ];
 
-/// A word as compared against the lists: lower case, edge punctuation gone.
-fn bare(word: &str) -> String {
-    word.trim_matches(|c: char| !c.is_alphanumeric())
-        .to_lowercase()
+/// A word as compared against the lists: lower case, edge punctuation gone. Inline up to 24
+/// bytes (extraction splits both slots of every claim, a string per word was most of it).
+fn bare(word: &str) -> CompactString {
+    let w = word.trim_matches(|c: char| !c.is_alphanumeric());
+    if w.is_ascii() {
+        let mut lower = CompactString::from(w);
+        lower.make_ascii_lowercase();
+        lower
+    } else {
+        CompactString::from(w.to_lowercase())
+    }
 }
 
 fn is_in(list: &[&str], word: &str) -> bool {
@@ -237,7 +246,7 @@ fn is_number(word: &str) -> bool {
 /// Does the word at `i` start a participial qualifier? An "-ed" word followed by a preposition
 /// or an "-ly" adverb ("made exclusively in"), or an "-ing" word followed by a determiner
 /// ("seizing the system"). `bares` are the words as [`bare`] gives them.
-fn starts_participle(bares: &[String], i: usize) -> bool {
+fn starts_participle(bares: &[CompactString], i: usize) -> bool {
     let w = &bares[i];
     let Some(next) = bares.get(i + 1) else {
         return false;
@@ -255,7 +264,7 @@ fn edge_word(b: &str) -> bool {
 pub fn split(phrase: &str) -> HeadSplit {
     let all: Vec<&str> = phrase.split_whitespace().collect();
     // Each word as the lists see it, once (extraction splits every claim's slots).
-    let all_bare: Vec<String> = all.iter().map(|w| bare(w)).collect();
+    let all_bare: Vec<CompactString> = all.iter().map(|w| bare(w)).collect();
     // 1. Edges.
     let (mut lo, mut hi) = (0, all.len());
     while hi - lo > 1 && edge_word(&all_bare[lo]) {

@@ -2,7 +2,7 @@
 //! when the cue opens its sentence, a pronoun's antecedent), the checks that need both slots,
 //! and the claim records, one per pair of coordinated cause and effect.
 
-use super::{Chosen, Extractor, Origin, SentenceRef, PRONOUNS};
+use super::{Blocked, Chosen, Extractor, Origin, SentenceRef, PRONOUNS};
 use crate::claim::{Claim, Modality, Polarity, Slot, Source, SCHEMA_VERSION};
 use crate::extract::cues::{CueMatch, SlotPlace};
 use crate::extract::tokens::{collapse, tokenize, Token};
@@ -19,7 +19,7 @@ pub(super) struct MatchCtx<'a> {
     /// The sentence's tokens, tagged.
     pub(super) toks: &'a [Token],
     /// Tokens no span may cross: the words of the other cues.
-    pub(super) blocked: &'a [bool],
+    pub(super) blocked: &'a Blocked<'a>,
     pub(super) sent: SentenceRef<'a>,
     pub(super) prev: Option<SentenceRef<'a>>,
     pub(super) origin: &'a Origin<'a>,

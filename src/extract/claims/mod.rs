@@ -44,6 +44,50 @@ pub struct Attempt {
     pub notes: Vec<String>,
 }
 
+/// The words no span may cross (the words of the other cue matches), and the range of them that
+/// one cue match's decision has read. A decision is a pure function of the sentence, the match,
+/// the cause it may inherit and the blocked words it reads, so a decision whose read range holds
+/// none of the words that changed would come out the same: when a failed match frees its words,
+/// only the decisions that read them are made again.
+pub(super) struct Blocked<'a> {
+    words: &'a [bool],
+    /// `[lo, hi)`: the lowest index read and one past the highest (`lo >= hi`: none).
+    read: std::cell::Cell<(usize, usize)>,
+}
+
+impl<'a> Blocked<'a> {
+    fn new(words: &'a [bool]) -> Self {
+        Blocked {
+            words,
+            read: std::cell::Cell::new((usize::MAX, 0)),
+        }
+    }
+
+    /// Whether word `k` is blocked.
+    pub(super) fn at(&self, k: usize) -> bool {
+        self.note(k, k + 1);
+        self.words[k]
+    }
+
+    /// Whether any word of `[a, b)` is blocked.
+    pub(super) fn any_in(&self, a: usize, b: usize) -> bool {
+        self.note(a, b);
+        self.words[a..b].iter().any(|&x| x)
+    }
+
+    fn note(&self, a: usize, b: usize) {
+        if a < b {
+            let (lo, hi) = self.read.get();
+            self.read.set((lo.min(a), hi.max(b)));
+        }
+    }
+
+    /// The range of words read so far.
+    fn read(&self) -> (usize, usize) {
+        self.read.get()
+    }
+}
+
 /// A sentence to extract from, with its place in the document.
 #[derive(Debug, Clone, Copy)]
 pub struct SentenceRef<'a> {
@@ -239,71 +283,78 @@ impl Extractor {
             }
         }
         let sentence_text = std::cell::OnceCell::new();
-        let run = |blocked: &[bool],
-                   inherit: &[Option<Chosen>],
-                   notes_out: &mut Vec<Vec<String>>|
-         -> Vec<Result<Vec<Claim>, String>> {
-            notes_out.clear();
-            matches
-                .iter()
-                .zip(&cue_tokens)
-                .zip(&noun_uses)
-                .zip(inherit)
-                .map(|(((m, &(ca, cb)), nu), inherited)| {
-                    let mut notes = Vec::new();
-                    let r = match nu {
-                        Some(why) => Err(why.clone()),
-                        None => {
-                            let cx = MatchCtx {
-                                m,
-                                ca,
-                                cb,
-                                toks: &toks,
-                                blocked,
-                                sent,
-                                prev,
-                                origin,
-                                sentence_text: &sentence_text,
-                                inherited_cause: inherited.as_ref(),
-                            };
-                            self.claim_for(&cx, &mut notes)
-                        }
+        // One cue match decided: its claims or why none, its notes, and which blocked words the
+        // decision read.
+        let decide = |i: usize, blocked: &[bool], inherited: Option<&Chosen>| {
+            let mut notes = Vec::new();
+            let tracked = Blocked::new(blocked);
+            let (ca, cb) = cue_tokens[i];
+            let r = match &noun_uses[i] {
+                Some(why) => Err(why.clone()),
+                None => {
+                    let cx = MatchCtx {
+                        m: &matches[i],
+                        ca,
+                        cb,
+                        toks: &toks,
+                        blocked: &tracked,
+                        sent,
+                        prev,
+                        origin,
+                        sentence_text: &sentence_text,
+                        inherited_cause: inherited,
                     };
-                    notes_out.push(notes);
-                    r
-                })
-                .collect()
+                    self.claim_for(&cx, &mut notes)
+                }
+            };
+            (r, notes, tracked.read())
         };
-        let mut notes = Vec::new();
-        let mut inherit: Vec<Option<Chosen>> = vec![None; matches.len()];
-        let mut results = run(&blocked, &inherit, &mut notes);
+        let mut results = Vec::with_capacity(matches.len());
+        let mut notes = Vec::with_capacity(matches.len());
+        let mut reads = Vec::with_capacity(matches.len());
+        for i in 0..matches.len() {
+            let (r, n, read) = decide(i, &blocked, None);
+            results.push(r);
+            notes.push(n);
+            reads.push(read);
+        }
         // "The levy raises bus fares and lowers car use": a verb cue with no cause of its own,
-        // coordinated with an earlier verb cue that has one, takes that cause.
-        let mut inherited_any = false;
+        // coordinated with an earlier verb cue that has one, takes that cause. Each takes it
+        // from the first decisions; only the matches that take one are decided again.
+        let mut inherit: Vec<Option<Chosen>> = vec![None; matches.len()];
         for i in 0..matches.len() {
             if results[i].is_ok() || noun_uses[i].is_some() {
                 continue;
             }
             inherit[i] = self.coordinated_cause(&matches, &cue_tokens, &results, &toks, i);
-            inherited_any |= inherit[i].is_some();
         }
-        if inherited_any {
-            results = run(&blocked, &inherit, &mut notes);
+        for (i, inherited) in inherit.iter().enumerate() {
+            if inherited.is_some() {
+                (results[i], notes[i], reads[i]) = decide(i, &blocked, inherited.as_ref());
+            }
         }
         // A cue that gave no claim ("exploding fuel." read as the verb "fuel") must not cut the
-        // spans of the others: unblock its words and decide again.
-        let failed: Vec<usize> = results
-            .iter()
-            .enumerate()
-            .filter(|(i, r)| r.is_err() && noun_uses[*i].is_none())
-            .map(|(i, _)| i)
-            .collect();
-        if !failed.is_empty() {
-            for &i in &failed {
+        // spans of the others: unblock its words and decide again every match whose decision
+        // read one of them. A decision reads nothing else that changed, so the others stand.
+        let mut freed = Vec::new();
+        for i in 0..matches.len() {
+            if results[i].is_err() && noun_uses[i].is_none() {
                 let (a, b) = cue_tokens[i];
-                blocked[a..b].iter_mut().for_each(|x| *x = false);
+                for (k, word) in blocked.iter_mut().enumerate().take(b).skip(a) {
+                    if *word {
+                        *word = false;
+                        freed.push(k);
+                    }
+                }
             }
-            results = run(&blocked, &inherit, &mut notes);
+        }
+        if !freed.is_empty() {
+            for i in 0..matches.len() {
+                let (lo, hi) = reads[i];
+                if freed.iter().any(|&k| lo <= k && k < hi) {
+                    (results[i], notes[i], reads[i]) = decide(i, &blocked, inherit[i].as_ref());
+                }
+            }
         }
         for ((m, result), notes) in matches.iter().zip(results).zip(notes) {
             if let Ok(cs) = &result {

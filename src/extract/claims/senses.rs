@@ -6,7 +6,7 @@ use super::{Chosen, Extractor, SentenceRef, Span};
 use crate::claim::{Kind, Polarity};
 use crate::extract::cues::{CueMatch, SlotPlace};
 use crate::extract::tagger::Tag;
-use crate::extract::tokens::{tokenize, Token};
+use crate::extract::tokens::{every_word, tokenize, Token};
 use crate::patterns::{CueSpec, Role};
 
 /// Words naming a quantity of what follows "of": the head of "most of the noise" is "noise".
@@ -562,14 +562,10 @@ impl Extractor {
     /// A span of only numbers, units, number words, months and seasons: an amount or a date,
     /// not a variable ("40 °C" read as "C", "the 1990s", "two").
     pub(super) fn amount_only(&self, text: &str) -> bool {
-        let toks = tokenize(text);
-        let mut words = toks.iter().filter(|t| t.word).peekable();
-        words.peek().is_some()
-            && words.all(|t| {
-                let w = t.lower.as_str();
-                w.starts_with(|c: char| c.is_ascii_digit())
-                    || self.lexicon.senses.units.contains(w)
-                    || NUMBER_WORDS.contains(&w)
-            })
+        every_word(text, |w| {
+            w.starts_with(|c: char| c.is_ascii_digit())
+                || self.lexicon.senses.units.contains(w)
+                || NUMBER_WORDS.contains(&w)
+        })
     }
 }

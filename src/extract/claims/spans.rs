@@ -1,7 +1,7 @@
 //! Walking out from the cue: the noun phrase or clause on each side, coordinated phrases, the
 //! antecedent of a pronoun, and a chosen span's text and key text.
 
-use super::{Chosen, Extractor, SentenceRef, Span, CLAUSE_CAP_EXTRA, PRONOUNS};
+use super::{Blocked, Chosen, Extractor, SentenceRef, Span, CLAUSE_CAP_EXTRA, PRONOUNS};
 use crate::extract::tagger::Tag;
 use crate::extract::tokens::{collapse, tokenize, Token};
 
@@ -69,7 +69,7 @@ impl Extractor {
         toks: &[Token],
         from: usize,
         noun_cue: bool,
-        blocked: &[bool],
+        blocked: &Blocked<'_>,
         notes: &mut Vec<String>,
     ) -> Span {
         let mut i = from;
@@ -84,11 +84,11 @@ impl Extractor {
                 .is_some_and(|t| t.tag.is_some_and(Tag::is_noun));
         let parenthetical = |k: usize| {
             toks[k].word
-                && !blocked[k]
+                && !blocked.at(k)
                 && self.lexicon.parenthetical.contains(toks[k].lower.as_str())
         };
         loop {
-            if i == 0 || blocked[i - 1] {
+            if i == 0 || blocked.at(i - 1) {
                 break;
             }
             let t = &toks[i - 1];
@@ -132,7 +132,7 @@ impl Extractor {
         let end = i;
         while i > 0
             && end - i < self.lexicon.max_words
-            && !blocked[i - 1]
+            && !blocked.at(i - 1)
             && !self.np_boundary(&toks[i - 1])
             && !(i < end && self.verb_stop(toks, i - 1))
         {
@@ -263,7 +263,7 @@ impl Extractor {
     }
 
     /// Walk forward from token `from`: the noun phrase after a cue.
-    pub(super) fn walk_forward(&self, toks: &[Token], from: usize, blocked: &[bool]) -> Span {
+    pub(super) fn walk_forward(&self, toks: &[Token], from: usize, blocked: &Blocked<'_>) -> Span {
         let mut j = from;
         while j < toks.len() && matches!(toks[j].lower.as_str(), "," | ";" | ":") {
             j += 1;
@@ -292,7 +292,7 @@ impl Extractor {
         }
         while j < toks.len()
             && j - start < self.lexicon.max_words
-            && !blocked[j]
+            && !blocked.at(j)
             && !(self.np_boundary(&toks[j])
                 && !(j == start && self.single_negators.contains(toks[j].lower.as_str())))
             && !self.lexicon.prepositions.contains(toks[j].lower.as_str())
@@ -328,21 +328,21 @@ impl Extractor {
         &self,
         toks: &[Token],
         span: Span,
-        blocked: &[bool],
+        blocked: &Blocked<'_>,
     ) -> Option<usize> {
         let p = span.to;
         if span.is_empty()
             || !toks
                 .get(p)
                 .is_some_and(|t| PP_ATTACH.contains(&t.lower.as_str()))
-            || blocked[p]
+            || blocked.at(p)
             || !toks[p - 1].tag.is_some_and(Tag::is_noun)
         {
             return None;
         }
         let mut j = p + 1;
         while j < toks.len()
-            && !blocked[j]
+            && !blocked.at(j)
             && toks[j].word
             && toks[j].tag.is_some_and(Tag::is_nominal)
             && !self.np_boundary(&toks[j])
@@ -481,7 +481,12 @@ impl Extractor {
 
     /// "Heat, wind and smoke cause delays": the noun phrases coordinated before a slot's span.
     /// The link next to the span must be "and"/"or"; commas may join further ones.
-    pub(super) fn conjuncts_back(&self, toks: &[Token], span: Span, blocked: &[bool]) -> Vec<Span> {
+    pub(super) fn conjuncts_back(
+        &self,
+        toks: &[Token],
+        span: Span,
+        blocked: &Blocked<'_>,
+    ) -> Vec<Span> {
         let mut out = Vec::new();
         let mut from = span.from;
         while from > 0
@@ -501,20 +506,20 @@ impl Extractor {
                 saw_conj |= toks[i - 1].lower != ",";
                 i -= 1;
             }
-            if i == from || (first && !saw_conj) || blocked[i..from].iter().any(|&b| b) {
+            if i == from || (first && !saw_conj) || blocked.any_in(i, from) {
                 break;
             }
             let end = i;
             while i > 0
                 && end - i < self.lexicon.max_words
-                && !blocked[i - 1]
+                && !blocked.at(i - 1)
                 && !self.np_boundary(&toks[i - 1])
             {
                 i -= 1;
             }
             if i == end
                 || (i > 0
-                    && (blocked[i - 1]
+                    && (blocked.at(i - 1)
                         || self
                             .lexicon
                             .auxiliaries
@@ -538,7 +543,7 @@ impl Extractor {
         &self,
         toks: &[Token],
         span: Span,
-        blocked: &[bool],
+        blocked: &Blocked<'_>,
         cue_last: &str,
     ) -> Vec<Span> {
         let mut out: Vec<(Span, bool)> = Vec::new();
@@ -553,11 +558,11 @@ impl Extractor {
                 saw_conj |= toks[k].lower != ",";
                 k += 1;
             }
-            if k == j || blocked[j..k].iter().any(|&b| b) {
+            if k == j || blocked.any_in(j, k) {
                 break;
             }
             // "raises A and lowers B": a coordinated verb phrase, not another slot.
-            if k < toks.len() && (blocked[k] || toks[k].tag.is_some_and(Tag::is_finite_verb)) {
+            if k < toks.len() && (blocked.at(k) || toks[k].tag.is_some_and(Tag::is_finite_verb)) {
                 // "causes smog, acid rain, and contributes to ...": the "and" closed the list.
                 if saw_conj {
                     if let Some(last) = out.last_mut() {
@@ -579,7 +584,7 @@ impl Extractor {
                 break;
             }
             if np.to < toks.len()
-                && (blocked[np.to]
+                && (blocked.at(np.to)
                     || self
                         .lexicon
                         .auxiliaries
