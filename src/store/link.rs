@@ -20,11 +20,11 @@
 //! rewritten, so a hard link never lets a later write to the output reach a part. On an error
 //! everything written is removed and the output's index meta is put back.
 
-use super::{aggregates, compact};
 use super::index::IndexLink;
 use super::manifest::{load, seg_name, segment_number, write_atomic, Manifest};
 use super::vocabulary::Vocabulary;
 use super::writer::{lock, CLAIMS_EXT};
+use super::{aggregates, compact};
 use crate::error::StoreError;
 use std::collections::{BTreeMap, HashMap};
 use std::fs::{self, File};
