@@ -10,11 +10,12 @@ use std::path::{Path, PathBuf};
 use tantivy::collector::DocSetCollector;
 use tantivy::query::{BooleanQuery, Occur, Query, TermQuery};
 use tantivy::schema::{Field, IndexRecordOption, Schema, TextFieldIndexing, TextOptions, FAST};
+use tantivy::store::{Compressor, ZstdCompressor};
 use tantivy::tokenizer::{
     LowerCaser, SimpleTokenizer, StopWordFilter, TextAnalyzer, Token, TokenFilter, TokenStream,
     Tokenizer,
 };
-use tantivy::{DocAddress, Index, ReloadPolicy, Searcher, Term};
+use tantivy::{DocAddress, Index, IndexSettings, ReloadPolicy, Searcher, Term};
 
 const TOKENIZER: &str = "hearsay_en";
 
@@ -174,6 +175,18 @@ impl<T: TokenStream> TokenStream for KeyStemmerStream<'_, T> {
     }
 }
 
+/// The settings of a new index. Its document store holds no field (see [`schema`]), yet it
+/// keeps a 4-byte offset per document, which lz4 hardly shrinks: about 0.97 MB of the eLife
+/// store's 28. zstd at level 9 makes it about 0.64 MB. Indexes made with lz4 stay readable.
+fn settings() -> IndexSettings {
+    IndexSettings {
+        docstore_compression: Compressor::Zstd(ZstdCompressor {
+            compression_level: Some(9),
+        }),
+        ..IndexSettings::default()
+    }
+}
+
 /// Open (or with `create`, create) the store's index. `unindexed` only matters for writing:
 /// queries look terms up directly.
 pub(super) fn open_index(
@@ -187,7 +200,10 @@ pub(super) fn open_index(
         Index::open_in_dir(&idx_dir)?
     } else if create {
         fs::create_dir_all(&idx_dir).map_err(|e| StoreError::io(&idx_dir, e))?;
-        Index::create_in_dir(&idx_dir, schema().0)?
+        Index::builder()
+            .schema(schema().0)
+            .settings(settings())
+            .create_in_dir(&idx_dir)?
     } else {
         return Err(StoreError::Corrupt {
             path: idx_dir,
