@@ -27,7 +27,8 @@ fn semeval2010_task8_cause_effect_precision_and_recall() {
         "precision {p} fell under {PRECISION_FLOOR}"
     );
     assert!(r >= RECALL_FLOOR, "recall {r} fell under {RECALL_FLOOR}");
-    // The issue's target, reached (0.7525): kept as a floor.
+    // 0.7525 was the first target; whole constructions (relatives, reduced relatives, "Y after
+    // X", change nouns kept in the span) took it to 0.8002.
     let f1 = s["f1"].as_f64().unwrap();
     assert!(f1 >= F1_FLOOR, "F1 {f1} fell under {F1_FLOOR}");
     let neg = s["negative_claim_rate"].as_f64().unwrap();
@@ -37,6 +38,6 @@ fn semeval2010_task8_cause_effect_precision_and_recall() {
     );
 }
 
-const PRECISION_FLOOR: f64 = 0.89;
-const RECALL_FLOOR: f64 = 0.64;
-const F1_FLOOR: f64 = 0.75;
+const PRECISION_FLOOR: f64 = 0.91;
+const RECALL_FLOOR: f64 = 0.712;
+const F1_FLOOR: f64 = 0.799;

@@ -28,11 +28,11 @@ fn because_congressional_hearings_precision_recall_and_sign() {
         r["gold_claims"], 281,
         "events with both a Cause and an Effect"
     );
-    assert!(f(&r["precision"]) >= 0.21, "{r}");
-    assert!(f(&r["recall"]) >= 0.11, "{r}");
-    assert!(f(&r["f1"]) >= 0.145, "{r}");
+    assert!(f(&r["precision"]) >= 0.225, "{r}");
+    assert!(f(&r["recall"]) >= 0.117, "{r}");
+    assert!(f(&r["f1"]) >= 0.154, "{r}");
     assert!(f(&r["sign_accuracy"]["accuracy"]) >= 0.9, "{r}");
-    assert!(r["sign_accuracy"]["labelled"].as_u64().unwrap() >= 32);
+    assert!(r["sign_accuracy"]["labelled"].as_u64().unwrap() >= 33);
 }
 
 /// Source: Causal News Corpus V2, training split, subtask 2 (Tan et al. 2022), CC0;
@@ -54,8 +54,8 @@ fn causal_news_corpus_subtask2_claim_level() {
     );
     assert_eq!(r["gold_claims"], 2257, "one gold pair per CSV row");
     assert_eq!(r["documents"], 1624, "rows grouped by sentence");
-    assert!(f(&r["precision"]) >= 0.25, "{r}");
-    assert!(f(&r["recall"]) >= 0.035, "{r}");
+    assert!(f(&r["precision"]) >= 0.257, "{r}");
+    assert!(f(&r["recall"]) >= 0.036, "{r}");
 }
 
 /// Source: Causal News Corpus V2, training split, subtask 1 (sentence causal or not), CC0;
@@ -74,8 +74,8 @@ fn causal_news_corpus_subtask1_sentence_level() {
     );
     assert_eq!(s["sentences"], 3075);
     assert_eq!(s["causal"], 1624);
-    assert!(f(&s["precision"]) >= 0.73, "{s}");
-    assert!(f(&s["recall"]) >= 0.145, "{s}");
+    assert!(f(&s["precision"]) >= 0.74, "{s}");
+    assert!(f(&s["recall"]) >= 0.15, "{s}");
 }
 
 /// Invented data (tests/data/README.md): hedges, negation, questions, conditionals and

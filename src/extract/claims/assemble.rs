@@ -146,24 +146,31 @@ impl Extractor {
                     // "stress-induced insomnia": the modified noun is the word right after.
                     span.to = span.to.min(span.from + 1);
                 }
+                // "damage caused by X and Y was ...", "intoxication from X or Y had ...": the
+                // cue phrase modifies the noun before it (no verb group between them).
+                let reduced = cx.m.effect == SlotPlace::Before
+                    && cx.ca > 0
+                    && toks[cx.ca - 1].word
+                    && !self.verb_group.contains(toks[cx.ca - 1].lower.as_str());
                 let extra = if clause || cue.glued_last {
                     Vec::new()
                 } else {
-                    self.conjuncts_forward(toks, span, blocked, &last_literal)
+                    self.conjuncts_forward(toks, span, blocked, &last_literal, reduced)
                 };
                 (span, extra, "after")
             }
             SlotPlace::Before => {
-                let span = if clause {
-                    self.clause_back(toks, cx.ca)
+                let (span, defined) = if clause {
+                    (self.clause_back(toks, cx.ca), None)
                 } else {
                     self.walk_back(toks, cx.ca, noun_first(&cue.spec), blocked, notes)
                 };
-                let extra = if clause || span.is_empty() {
+                let mut extra = if clause || span.is_empty() {
                     Vec::new()
                 } else {
                     self.conjuncts_back(toks, span, blocked)
                 };
+                extra.extend(defined);
                 (span, extra, "before")
             }
         };
@@ -409,9 +416,9 @@ impl Extractor {
             schema: SCHEMA_VERSION,
             confidence: 0.0, // set by the pipeline (crate::extract::confidence)
             cause: Slot {
-                text: cause.text.clone(),
+                text: cause.lead.as_ref().map_or(&cause.text, |l| &l.1).clone(),
                 key: ckey,
-                start: cause.start,
+                start: cause.lead.as_ref().map_or(cause.start, |l| l.0),
                 end: cause.end,
                 pronoun: cause.pronoun.clone(),
                 head_key: chead_key,
@@ -419,9 +426,9 @@ impl Extractor {
                 qualifiers: chead.qualifiers,
             },
             effect: Slot {
-                text: effect.text.clone(),
+                text: effect.lead.as_ref().map_or(&effect.text, |l| &l.1).clone(),
                 key: ekey,
-                start: effect.start,
+                start: effect.lead.as_ref().map_or(effect.start, |l| l.0),
                 end: effect.end,
                 pronoun: effect.pronoun.clone(),
                 head_key: ehead_key,

@@ -164,6 +164,10 @@ struct Chosen {
     negated: bool,
     /// The pronoun written in the sentence, when the span is its antecedent instead.
     pronoun: Option<String>,
+    /// Where the claim's text starts when it shows more than the span read for the variable:
+    /// "the growth of molds" names the growth, so the claim shows it, while its key, sign and
+    /// head are read from "molds" (byte offset in the document, and the text from there).
+    lead: Option<(usize, String)>,
 }
 
 impl Chosen {
@@ -457,6 +461,7 @@ impl Extractor {
             sign: None,
             negated: false,
             pronoun: first.cause.pronoun.clone(),
+            lead: None,
         })
     }
 

@@ -8,7 +8,13 @@ use crate::extract::tokens::{collapse, Token};
 
 impl Extractor {
     /// Read sign words and change nouns at the start of an effect span.
-    pub(super) fn read_sign(&self, toks: &[Token], s: Span) -> (Span, Option<Polarity>, bool) {
+    /// Also returns where the shown text starts: before a change noun and its link ("the
+    /// growth of molds"), which the span itself leaves out.
+    pub(super) fn read_sign(
+        &self,
+        toks: &[Token],
+        s: Span,
+    ) -> (Span, Option<Polarity>, bool, usize) {
         let l = &self.lexicon;
         let mut s = s;
         let mut negated = false;
@@ -22,6 +28,7 @@ impl Extractor {
             s.from += 1;
         }
         s = self.strip_determiners(toks, s);
+        let shown_from = s.from;
         let mut sign = None;
         if s.to - s.from >= 3
             && toks[s.from + 1].word
@@ -38,7 +45,7 @@ impl Extractor {
                 s = self.strip_determiners(toks, s);
             }
         }
-        (s, sign, negated)
+        (s, sign, negated, shown_from)
     }
 
     pub(super) fn sign_word(&self, w: &str) -> Option<Polarity> {

@@ -63,7 +63,8 @@ impl Extractor {
         }
     }
 
-    /// Walk back from token `from` (exclusive): the verb group, then the noun phrase.
+    /// Walk back from token `from` (exclusive): the verb group, then the noun phrase; and,
+    /// for the antecedent of a relative pronoun after a copula, the copula's subject.
     pub(super) fn walk_back(
         &self,
         toks: &[Token],
@@ -71,17 +72,23 @@ impl Extractor {
         noun_cue: bool,
         blocked: &Blocked<'_>,
         notes: &mut Vec<String>,
-    ) -> Span {
+    ) -> (Span, Option<Span>) {
         let mut i = from;
         while i > 0 && matches!(toks[i - 1].lower.as_str(), "," | ";") {
             i -= 1;
         }
         // "X is one of the commonest causes of Y": before a noun cue, adjectives and adverbs
         // belong to the copula group, not to the slot.
+        // A determiner or adjective right before the cue word makes it a noun whatever its tag
+        // ("one of the commonest causes of death").
         let noun_cue = noun_cue
-            && toks
+            && (toks
                 .get(from)
-                .is_some_and(|t| t.tag.is_some_and(Tag::is_noun));
+                .is_some_and(|t| t.tag.is_some_and(Tag::is_noun))
+                || (from > 0
+                    && toks[from - 1]
+                        .tag
+                        .is_some_and(|g| g.is_adjective() || matches!(g.as_str(), "DT" | "PRP$"))));
         let parenthetical = |k: usize| {
             toks[k].word
                 && !blocked.at(k)
@@ -121,24 +128,92 @@ impl Extractor {
                 join(toks, i, from)
             ));
         }
+        let mut relative = false;
         if i > 0 && matches!(toks[i - 1].lower.as_str(), "which" | "that" | "who") {
             // "X, which in turn reduces Z": the cause is the antecedent of the relative pronoun.
             i -= 1;
             if i > 0 && toks[i - 1].lower == "," {
                 i -= 1;
             }
+            relative = true;
             notes.push("relative pronoun: the slot is its antecedent".into());
         }
-        let end = i;
+        let span = self.np_back(toks, i, blocked);
+        let mut defined = None;
+        if relative {
+            defined = self.defined_subject(toks, span, blocked);
+            if defined.is_some() {
+                notes.push(
+                    "the antecedent is what the clause's subject is said to be: the subject is \
+                     a slot too"
+                        .into(),
+                );
+            }
+        }
+        (span, defined)
+    }
+
+    /// The noun phrase that ends at token `end`, walked back to a boundary. A preposition
+    /// belongs to it only after a noun ("damage to the roof"); after anything else it opens
+    /// the phrase ("caught up in the debt crisis" → "debt crisis").
+    fn np_back(&self, toks: &[Token], end: usize, blocked: &Blocked<'_>) -> Span {
+        let mut i = end;
         while i > 0
             && end - i < self.lexicon.max_words
             && !blocked.at(i - 1)
             && !self.np_boundary(&toks[i - 1])
             && !(i < end && self.verb_stop(toks, i - 1))
+            && !(i < end && self.unattached_preposition(toks, i - 1))
         {
             i -= 1;
         }
         self.strip_determiners(toks, Span { from: i, to: end })
+    }
+
+    /// A preposition at `k` (not "of", which follows nouns and quantities alike) with nothing
+    /// before it to attach to: not a noun, a number, an adjective or a participle ("pyrotechnics
+    /// used during the show", "a dog loose on the road"). Tags must be known.
+    fn unattached_preposition(&self, toks: &[Token], k: usize) -> bool {
+        let w = toks[k].lower.as_str();
+        w != "of"
+            && self.lexicon.prepositions.contains(w)
+            && (k == 0
+                || toks[k - 1].tag.is_some_and(|g| {
+                    !g.is_noun() && !matches!(g.as_str(), "CD" | "JJ" | "VBN" | "VBG")
+                }))
+    }
+
+    /// "Germs are microscopic organisms that cause disease": the antecedent of a relative
+    /// pronoun that is the complement of a copula names what the clause's subject is said to
+    /// be, so the slot is the subject ("germs"). Only a subject that opens its clause.
+    fn defined_subject(&self, toks: &[Token], np: Span, blocked: &Blocked<'_>) -> Option<Span> {
+        let mut k = np.from;
+        while k > 0
+            && self
+                .lexicon
+                .determiners
+                .contains(toks[k - 1].lower.as_str())
+        {
+            k -= 1;
+        }
+        if k < 2 || !matches!(toks[k - 1].lower.as_str(), "is" | "are" | "was" | "were") {
+            return None;
+        }
+        let subject = self.np_back(toks, k - 1, blocked);
+        let mut s = subject.from;
+        while s > 0
+            && self
+                .lexicon
+                .determiners
+                .contains(toks[s - 1].lower.as_str())
+        {
+            s -= 1;
+        }
+        let opens = s == 0 || Self::clause_punct(&toks[s - 1]);
+        let has_noun = toks[subject.from..subject.to]
+            .iter()
+            .any(|t| t.tag.is_some_and(Tag::is_noun));
+        (!subject.is_empty() && opens && has_noun && subject.to == k - 1).then_some(subject)
     }
 
     /// A verb that ends a span walked back: a finite verb, or a base form after "to" or an
@@ -294,7 +369,8 @@ impl Extractor {
             && j - start < self.lexicon.max_words
             && !blocked.at(j)
             && !(self.np_boundary(&toks[j])
-                && !(j == start && self.single_negators.contains(toks[j].lower.as_str())))
+                && !(j == start && self.single_negators.contains(toks[j].lower.as_str()))
+                && !(j > start && self.coordinated_modifier(toks, j)))
             && !self.lexicon.prepositions.contains(toks[j].lower.as_str())
             && !(j > start
                 && toks[j].tag.is_some_and(Tag::is_finite_verb)
@@ -307,6 +383,18 @@ impl Extractor {
             span.to = to;
         }
         span
+    }
+
+    /// "nasal and sinus pressure", "cool and more dense air": an "and"/"or" after an adjective
+    /// joins two modifiers of one noun, not two noun phrases (an adjective ends no phrase).
+    fn coordinated_modifier(&self, toks: &[Token], j: usize) -> bool {
+        matches!(toks[j].lower.as_str(), "and" | "or")
+            && toks[j - 1]
+                .tag
+                .is_some_and(|g| g.as_str() == "JJ" || g.as_str() == "JJR")
+            && toks
+                .get(j + 1)
+                .is_some_and(|t| t.word && t.tag.is_some_and(Tag::is_nominal))
     }
 
     /// A word tagged as a finite verb that cannot be one: right after a determiner or a
@@ -415,10 +503,10 @@ impl Extractor {
         span: Span,
         effect_side: bool,
     ) -> Option<Chosen> {
-        let (span, mut sign, negated) = if effect_side {
+        let (span, mut sign, negated, shown_from) = if effect_side {
             self.read_sign(toks, span)
         } else {
-            (span, None, false)
+            (span, None, false, span.from)
         };
         let mut span = span;
         // "lowers blood pressure only slightly": trailing adverbs are not the variable's.
@@ -443,6 +531,10 @@ impl Extractor {
         let (bs, be) = (toks[span.from].start, toks[span.to - 1].end);
         let text = collapse(&sent.text[bs..be]);
         let key_text = collapse(&sent.text[toks[key_from].start..be]);
+        let lead = (shown_from < span.from).then(|| {
+            let ls = toks[shown_from].start;
+            (sent.offset + ls, collapse(&sent.text[ls..be]))
+        });
         Some(Chosen {
             start: sent.offset + bs,
             end: sent.offset + be,
@@ -451,6 +543,7 @@ impl Extractor {
             sign,
             negated,
             pronoun: None,
+            lead,
         })
     }
 
@@ -545,6 +638,7 @@ impl Extractor {
         span: Span,
         blocked: &Blocked<'_>,
         cue_last: &str,
+        reduced: bool,
     ) -> Vec<Span> {
         let mut out: Vec<(Span, bool)> = Vec::new();
         let mut j = span.to;
@@ -590,6 +684,12 @@ impl Extractor {
                         .auxiliaries
                         .contains(toks[np.to].lower.as_str()))
             {
+                // "The wounds caused by the scourging and the thorns are almost invisible": a
+                // cue phrase inside a noun phrase ends before its sentence's verb, so the last
+                // conjunct is kept; else "and B are" starts a clause of its own.
+                if reduced && saw_conj && !blocked.at(np.to) {
+                    out.push((np, saw_conj));
+                }
                 break;
             }
             out.push((np, saw_conj));

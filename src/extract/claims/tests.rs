@@ -140,7 +140,55 @@ fn basic_spans_sign_and_modality() {
 fn change_nouns_give_the_sign() {
     let e = ex();
     let (_, ef, p, _) = one(&e, "Drought leads to an increase in food prices.");
-    assert_eq!((ef.as_str(), p), ("food prices", Polarity::Increase));
+    // The claim shows the change noun ("the growth of molds" names the growth); its key, sign
+    // and head come from what changes.
+    assert_eq!(
+        (ef.as_str(), p),
+        ("increase in food prices", Polarity::Increase)
+    );
+    let cs = claims(&e, "Drought leads to an increase in food prices.");
+    assert_eq!(cs[0].effect.key, e.normalizer.key("food prices"));
+    let cs = claims(&e, "Roof leaks lead to the growth of molds.");
+    assert_eq!(
+        (cs[0].effect.text.as_str(), cs[0].polarity),
+        ("growth of molds", Polarity::Increase)
+    );
+}
+
+#[test]
+fn relatives_after_a_copula_and_reduced_relatives() {
+    let e = ex();
+    // The antecedent of "that" after a copula and the copula's subject are both slots.
+    let mut causes: Vec<String> = claims(&e, "Germs are microscopic organisms that cause disease.")
+        .into_iter()
+        .map(|c| c.cause.text)
+        .collect();
+    causes.sort();
+    assert_eq!(causes, ["Germs", "microscopic organisms"]);
+    // A cue phrase inside a noun phrase: the conjunct before the sentence's verb is kept.
+    let mut causes: Vec<String> = claims(
+        &e,
+        "The wounds caused by the whip and the thorns were deep.",
+    )
+    .into_iter()
+    .map(|c| c.cause.text)
+    .collect();
+    causes.sort();
+    assert_eq!(causes, ["thorns", "whip"]);
+    // A preposition after a verb opens the phrase; after a participle it stays inside it.
+    let (_, ef, _, _) = one(
+        &e,
+        "The bank was caught up in the debt crisis caused by the recession.",
+    );
+    assert_eq!(ef, "debt crisis");
+    let (c, _, _, _) = one(
+        &e,
+        "A spaghetti pie served at a church dinner had caused the poisoning.",
+    );
+    assert_eq!(c, "spaghetti pie served at a church dinner");
+    // Two adjectives joined by "and" modify one noun.
+    let (c, _, _, _) = one(&e, "Sea breezes are caused by cool and dense air.");
+    assert_eq!(c, "cool and dense air");
 }
 
 #[test]
