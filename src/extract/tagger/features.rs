@@ -32,6 +32,7 @@ impl Prepared {
     }
 
     pub(super) fn from_hashed(weights: HashedWeights) -> Prepared {
+        let weights = weights.grouped();
         let vec_of = |fs: &[&str]| {
             let mut v = vec![0f32; NT];
             for f in fs {
@@ -193,6 +194,29 @@ impl HashedWeights {
             out.insert(f, start);
         }
         out
+    }
+
+    /// The same weights with the pairs laid out by table: a word's five role features next to
+    /// each other, then a suffix's three, then the other tables'. A word the cache misses reads
+    /// its features from one stretch of memory instead of from up to five places in the model's
+    /// alphabetical order; every feature keeps its pairs, in their order.
+    pub(super) fn grouped(mut self) -> HashedWeights {
+        let old = std::mem::take(&mut self.pairs);
+        let mut pairs = Vec::with_capacity(old.len());
+        let mut moved = |r: &mut (u32, u32)| {
+            let at = pairs.len() as u32;
+            pairs.extend_from_slice(&old[r.0 as usize..r.1 as usize]);
+            *r = (at, pairs.len() as u32);
+        };
+        self.words.values_mut().flatten().for_each(&mut moved);
+        self.suffix3.values_mut().flatten().for_each(&mut moved);
+        for table in &mut self.singles {
+            table.values_mut().for_each(&mut moved);
+        }
+        self.t1w.values_mut().for_each(&mut moved);
+        self.ranges.values_mut().for_each(&mut moved);
+        self.pairs = pairs;
+        self
     }
 
     /// File the feature `name`, whose pairs are `pairs[start..]`.

@@ -202,3 +202,33 @@ fn feature_pairs_read_fast_as_the_general_reading_does() {
     }
     assert!(lines > 50_000 && fast == lines, "{fast} of {lines}");
 }
+
+/// After the pairs are regrouped by table, every feature of the built-in model still reads its
+/// own weights, in the order of its line in the model file.
+#[test]
+fn grouped_weights_read_back_every_feature_of_the_model() {
+    let text = include_str!("../../../patterns/tagger.model");
+    let weights = &Tagger::load_builtin().prepared().weights;
+    let mut tags: Vec<Tag> = Vec::new();
+    let mut features = 0;
+    for line in text.lines() {
+        let mut parts = line.split('\t');
+        match parts.next() {
+            Some("tags") => tags = parts.filter_map(Tag::parse).collect(),
+            Some("f") => {
+                let name = parts.next().unwrap_or_default();
+                let want: Vec<(u8, f32)> = parts
+                    .filter_map(|p| {
+                        let (c, w) = p.split_once(':')?;
+                        let tag = tags.get(c.parse::<usize>().ok()?)?;
+                        Some((tag.0, w.parse::<i32>().ok()? as f32 / 100.0))
+                    })
+                    .collect();
+                assert_eq!(weights.get(name), want.as_slice(), "feature {name}");
+                features += 1;
+            }
+            _ => {}
+        }
+    }
+    assert!(features > 80_000, "{features} features read");
+}
