@@ -271,6 +271,8 @@ def parse_args():
     ap.add_argument("--keep", metavar="DIR", help="make dumps and stores in DIR and keep them")
     ap.add_argument("--runs", type=int, default=3, help="cold runs per query (median)")
     ap.add_argument("--repeat", type=int, default=20, help="queries of the warm pair run")
+    ap.add_argument("--no-merge", action="store_true",
+                    help="skip the merge of the top rung's parts (its targets are then absent)")
     ap.add_argument("--corpus", default=CORPUS, help="folder of plain-text articles")
     ap.add_argument("--bin", help="the hearsay binary to measure (default: the release build), "
                     "to measure an older build side by side")
@@ -316,8 +318,9 @@ def main():
         if not a.keep:
             for store in stores.values():
                 shutil.rmtree(store, ignore_errors=True)
-        print(f"ladder: merge of {top} parts", flush=True)
-        res["merge"] = merge_rung(work, files, a.corpus, top, a.keep)
+        if not a.no_merge:
+            print(f"ladder: merge of {top} parts", flush=True)
+            res["merge"] = merge_rung(work, files, a.corpus, top, a.keep)
     finally:
         if not a.keep:
             shutil.rmtree(work, ignore_errors=True)

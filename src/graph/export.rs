@@ -326,32 +326,77 @@ impl AttrType {
 /// Separator of the evidence ids in the flat formats (GraphML, GEXF, DOT, CSV).
 pub const EVIDENCE_SEPARATOR: &str = " | ";
 
-/// An edge's attributes (all but source and target) as (name, type, value) in field order.
-pub fn edge_attrs(e: &ExportEdge) -> Vec<(String, AttrType, String)> {
-    let v = serde_json::to_value(e).unwrap_or_default();
-    let mut out = Vec::new();
-    if let serde_json::Value::Object(m) = v {
-        for (k, val) in m {
-            if k == "source" || k == "target" {
-                continue;
-            }
-            let (ty, text) = match &val {
-                serde_json::Value::Array(items) => (
-                    AttrType::Text,
-                    items
-                        .iter()
-                        .filter_map(|i| i.as_str())
-                        .collect::<Vec<_>>()
-                        .join(EVIDENCE_SEPARATOR),
-                ),
-                serde_json::Value::String(s) => (AttrType::Text, s.clone()),
-                x if x.is_f64() => (AttrType::Double, x.to_string()),
-                x => (AttrType::Int, x.to_string()),
-            };
-            out.push((k, ty, text));
-        }
+/// An edge's attributes (all but source and target) as (name, type, value), by name (the order
+/// every format has written them in: that of the fields serialised into a sorted map); the
+/// evidence only when there is some.
+pub fn edge_attrs(e: &ExportEdge) -> Vec<(&'static str, AttrType, String)> {
+    let int = |name: &'static str, n: usize| (name, AttrType::Int, n.to_string());
+    // A number as JSON writes it (the shortest text that reads back as the same double); a
+    // value that is not finite is JSON's `null`, typed as a plain value.
+    let float = |name: &'static str, x: f64| match serde_json::Number::from_f64(x) {
+        Some(n) => (name, AttrType::Double, n.to_string()),
+        None => (name, AttrType::Int, "null".to_string()),
+    };
+    let mut out = Vec::with_capacity(19);
+    out.extend([
+        int("asserted", e.asserted),
+        int("association", e.association),
+        int("conditional", e.conditional),
+        int("decrease", e.decrease),
+        float("direction_ratio", e.direction_ratio),
+        int("documents", e.documents),
+    ]);
+    if !e.evidence.is_empty() {
+        out.push((
+            "evidence",
+            AttrType::Text,
+            e.evidence.join(EVIDENCE_SEPARATOR),
+        ));
     }
+    out.extend([
+        int("hedged", e.hedged),
+        int("increase", e.increase),
+        int("mentions", e.mentions),
+        int("negated", e.negated),
+        float("net_sign", e.net_sign),
+        int("no_effect", e.no_effect),
+        int("prevent", e.prevent),
+        int("question", e.question),
+        float("reverse_weight", e.reverse_weight),
+        int("sentences", e.sentences),
+        int("unsigned", e.unsigned),
+        float("weight", e.weight),
+    ]);
     out
+}
+
+/// The GraphML key id of an edge attribute: `edge_` and its name.
+fn edge_key_id(name: &str) -> std::borrow::Cow<'static, str> {
+    const IDS: [&str; 19] = [
+        "edge_asserted",
+        "edge_association",
+        "edge_conditional",
+        "edge_decrease",
+        "edge_direction_ratio",
+        "edge_documents",
+        "edge_evidence",
+        "edge_hedged",
+        "edge_increase",
+        "edge_mentions",
+        "edge_negated",
+        "edge_net_sign",
+        "edge_no_effect",
+        "edge_prevent",
+        "edge_question",
+        "edge_reverse_weight",
+        "edge_sentences",
+        "edge_unsigned",
+        "edge_weight",
+    ];
+    match IDS.iter().find(|id| &id[5..] == name) {
+        Some(id) => std::borrow::Cow::Borrowed(id),
+        None => std::borrow::Cow::Owned(format!("edge_{name}")),
+    }
 }
 
 const NODE_ATTRS: &[(&str, AttrType)] = &[
@@ -372,11 +417,11 @@ fn node_values(n: &ExportNode) -> [String; 4] {
 
 type XmlResult = quick_xml::Result<()>;
 
-/// GraphML, with one `<key>` per attribute and the weight rule as graph data.
+/// GraphML, with one `<key>` per attribute and the weight rule as graph data. Written directly
+/// (a graph of a large store is tens of megabytes of it), in the layout of an XML writer
+/// indenting by two spaces, every attribute value and text escaped by [`xml_escaped`].
 pub fn write_graphml(out: &mut impl Write, e: &Export) -> XmlResult {
     let ids = file_ids(e);
-    let mut w = Writer::new_with_indent(out, b' ', 2);
-    w.write_event(Event::Decl(BytesDecl::new("1.0", Some("UTF-8"), None)))?;
     let sample = e.edges.first().map(edge_attrs).unwrap_or_default();
     let graph_data = [
         ("weight_rule", AttrType::Text, e.weight_rule.clone()),
@@ -386,68 +431,95 @@ pub fn write_graphml(out: &mut impl Write, e: &Export) -> XmlResult {
             e.duplicates_removed.to_string(),
         ),
     ];
-    w.create_element("graphml")
-        .with_attribute(("xmlns", "http://graphml.graphdrawing.org/xmlns"))
-        .write_inner_content(|w| {
-            let keys = graph_data
-                .iter()
-                .map(|(n, t, _)| ("graph", *n, *t))
-                .chain(NODE_ATTRS.iter().map(|(n, t)| ("node", *n, *t)))
-                .chain(sample.iter().map(|(n, t, _)| ("edge", n.as_str(), *t)));
-            for (class, name, ty) in keys {
-                // Ids are unique per class (an edge and a node attribute may share a name).
-                let id = format!("{class}_{name}");
-                w.create_element("key")
-                    .with_attributes([
-                        ("id", id.as_str()),
-                        ("for", class),
-                        ("attr.name", name),
-                        ("attr.type", ty.graphml()),
-                    ])
-                    .write_empty()?;
-            }
-            w.create_element("graph")
-                .with_attributes([("id", "G"), ("edgedefault", "directed")])
-                .write_inner_content(|w| {
-                    for (name, _, v) in &graph_data {
-                        data(w, &format!("graph_{name}"), v)?;
-                    }
-                    for n in &e.nodes {
-                        let vals = node_values(n);
-                        w.create_element("node")
-                            .with_attribute(("id", n.slug.as_str()))
-                            .write_inner_content(|w| {
-                                for ((name, _), v) in NODE_ATTRS.iter().zip(vals.iter()) {
-                                    data(w, &format!("node_{name}"), v)?;
-                                }
-                                Ok(())
-                            })?;
-                    }
-                    for ed in &e.edges {
-                        w.create_element("edge")
-                            .with_attributes([
-                                ("source", file_id(&ids, &ed.source)),
-                                ("target", file_id(&ids, &ed.target)),
-                            ])
-                            .write_inner_content(|w| {
-                                for (name, _, v) in edge_attrs(ed) {
-                                    data(w, &format!("edge_{name}"), &v)?;
-                                }
-                                Ok(())
-                            })?;
-                    }
-                    Ok(())
-                })?;
-            Ok(())
-        })?;
+    let o = out;
+    o.write_all(b"<?xml version=\"1.0\" encoding=\"UTF-8\"?>")?;
+    o.write_all(b"\n<graphml xmlns=\"http://graphml.graphdrawing.org/xmlns\">")?;
+    let keys = graph_data
+        .iter()
+        .map(|(n, t, _)| ("graph", *n, *t))
+        .chain(NODE_ATTRS.iter().map(|(n, t)| ("node", *n, *t)))
+        .chain(sample.iter().map(|(n, t, _)| ("edge", *n, *t)));
+    for (class, name, ty) in keys {
+        // Ids are unique per class (an edge and a node attribute may share a name).
+        let id = format!("{class}_{name}");
+        o.write_all(b"\n  <key id=\"")?;
+        xml_escaped(o, &id, true)?;
+        o.write_all(b"\" for=\"")?;
+        xml_escaped(o, class, true)?;
+        o.write_all(b"\" attr.name=\"")?;
+        xml_escaped(o, name, true)?;
+        o.write_all(b"\" attr.type=\"")?;
+        xml_escaped(o, ty.graphml(), true)?;
+        o.write_all(b"\"/>")?;
+    }
+    o.write_all(b"\n  <graph id=\"G\" edgedefault=\"directed\">")?;
+    for (name, _, v) in &graph_data {
+        graphml_data(o, 4, &format!("graph_{name}"), v)?;
+    }
+    for n in &e.nodes {
+        o.write_all(b"\n    <node id=\"")?;
+        xml_escaped(o, &n.slug, true)?;
+        o.write_all(b"\">")?;
+        let vals = node_values(n);
+        for ((name, _), v) in NODE_ATTRS.iter().zip(vals.iter()) {
+            graphml_data(o, 6, &format!("node_{name}"), v)?;
+        }
+        o.write_all(b"\n    </node>")?;
+    }
+    for ed in &e.edges {
+        o.write_all(b"\n    <edge source=\"")?;
+        xml_escaped(o, file_id(&ids, &ed.source), true)?;
+        o.write_all(b"\" target=\"")?;
+        xml_escaped(o, file_id(&ids, &ed.target), true)?;
+        o.write_all(b"\">")?;
+        for (name, _, v) in edge_attrs(ed) {
+            graphml_data(o, 6, &edge_key_id(name), &v)?;
+        }
+        o.write_all(b"\n    </edge>")?;
+    }
+    o.write_all(b"\n  </graph>\n</graphml>")?;
     Ok(())
 }
 
-fn data<W: Write>(w: &mut Writer<W>, key: &str, v: &str) -> std::io::Result<()> {
-    w.create_element("data")
-        .with_attribute(("key", key))
-        .write_text_content(BytesText::new(v))?;
-    Ok(())
+/// One `<data>` element of GraphML on a line of its own, indented by `indent` spaces.
+fn graphml_data(o: &mut impl Write, indent: usize, key: &str, v: &str) -> std::io::Result<()> {
+    const SPACES: &[u8; 8] = b"        ";
+    o.write_all(b"\n")?;
+    o.write_all(&SPACES[..indent.min(SPACES.len())])?;
+    o.write_all(b"<data key=\"")?;
+    xml_escaped(o, key, true)?;
+    o.write_all(b"\">")?;
+    xml_escaped(o, v, false)?;
+    o.write_all(b"</data>")
+}
+
+/// `s` escaped for XML as quick-xml escapes it: in text `<`, `>`, `&`, `'`, `"` and CR; in an
+/// attribute value also LF and tab (which attribute-value normalisation would turn into spaces).
+fn xml_escaped(o: &mut impl Write, s: &str, attribute: bool) -> std::io::Result<()> {
+    let special = |b: u8| {
+        matches!(b, b'<' | b'>' | b'&' | b'\'' | b'"' | b'\r')
+            || (attribute && matches!(b, b'\n' | b'\t'))
+    };
+    let bytes = s.as_bytes();
+    let mut from = 0;
+    for (i, &b) in bytes.iter().enumerate() {
+        if !special(b) {
+            continue;
+        }
+        o.write_all(&bytes[from..i])?;
+        o.write_all(match b {
+            b'<' => b"&lt;",
+            b'>' => b"&gt;",
+            b'&' => b"&amp;",
+            b'\'' => b"&apos;",
+            b'"' => b"&quot;",
+            b'\r' => b"&#13;",
+            b'\n' => b"&#10;",
+            _ => b"&#9;",
+        })?;
+        from = i + 1;
+    }
+    o.write_all(&bytes[from..])
 }
 
 /// GEXF 1.2 (the version networkx reads and writes by default). The edge weight is GEXF's own
@@ -457,13 +529,13 @@ pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
     let ids = file_ids(e);
     let mut w = Writer::new_with_indent(out, b' ', 2);
     w.write_event(Event::Decl(BytesDecl::new("1.0", Some("UTF-8"), None)))?;
-    let sample: Vec<(String, AttrType)> = e
+    let sample: Vec<(&str, AttrType)> = e
         .edges
         .first()
         .map(edge_attrs)
         .unwrap_or_default()
         .into_iter()
-        .filter(|(n, _, _)| n != "weight")
+        .filter(|(n, _, _)| *n != "weight")
         .map(|(n, t, _)| (n, t))
         .collect();
     let node_attrs = &NODE_ATTRS[1..];
@@ -486,13 +558,8 @@ pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
             w.create_element("graph")
                 .with_attributes([("defaultedgetype", "directed"), ("mode", "static")])
                 .write_inner_content(|w| {
-                    let classes: [(&str, Vec<(&str, AttrType)>); 2] = [
-                        ("node", node_attrs.to_vec()),
-                        (
-                            "edge",
-                            sample.iter().map(|(n, t)| (n.as_str(), *t)).collect(),
-                        ),
-                    ];
+                    let classes: [(&str, Vec<(&str, AttrType)>); 2] =
+                        [("node", node_attrs.to_vec()), ("edge", sample.clone())];
                     for (class, attrs) in &classes {
                         w.create_element("attributes")
                             .with_attributes([("class", *class), ("mode", "static")])
@@ -529,9 +596,9 @@ pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
                         for (i, ed) in e.edges.iter().enumerate() {
                             let id = i.to_string();
                             let weight = ed.weight.to_string();
-                            let attrs: Vec<(String, AttrType, String)> = edge_attrs(ed)
+                            let attrs: Vec<(&str, AttrType, String)> = edge_attrs(ed)
                                 .into_iter()
-                                .filter(|(n, _, _)| n != "weight")
+                                .filter(|(n, _, _)| *n != "weight")
                                 .collect();
                             w.create_element("edge")
                                 .with_attributes([
@@ -541,7 +608,7 @@ pub fn write_gexf(out: &mut impl Write, e: &Export) -> XmlResult {
                                     ("weight", weight.as_str()),
                                 ])
                                 .write_inner_content(|w| {
-                                    attvalues(w, attrs.iter().map(|(n, _, v)| (n.as_str(), v)))
+                                    attvalues(w, attrs.iter().map(|(n, _, v)| (*n, v)))
                                 })?;
                         }
                         Ok(())
@@ -636,7 +703,7 @@ pub fn write_edges_csv(out: &mut impl Write, e: &Export) -> Result<(), csv::Erro
     let names: Vec<String> = e
         .edges
         .first()
-        .map(|x| edge_attrs(x).into_iter().map(|a| a.0).collect())
+        .map(|x| edge_attrs(x).into_iter().map(|a| a.0.to_string()).collect())
         .unwrap_or_default();
     let mut header = vec!["source".to_string(), "target".to_string()];
     header.extend(names);

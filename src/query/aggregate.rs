@@ -289,7 +289,7 @@ fn add_var<'a>(
 
 /// The most frequent surface form (the smaller form on a tie), as the claim graph labels a
 /// variable.
-fn label_of(forms: &[&[(String, u32)]]) -> String {
+pub(super) fn label_of(forms: &[&[(String, u32)]]) -> String {
     let best = |it: &mut dyn Iterator<Item = (&str, u64)>| {
         it.fold(None::<(&str, u64)>, |best, (f, n)| match best {
             Some((bf, bn)) if bn > n || (bn == n && bf <= f) => Some((bf, bn)),

@@ -1,12 +1,16 @@
 //! `pair`: everything the corpus says about two variables, and the plan that answers it fast.
 //!
 //! [`pair_report`] is a pure function of a graph. [`PairQuery`] is the latency-sensitive path
-//! of `hearsay pair`: it keeps the store's postings directories in memory, reads only the rows
-//! that name X or Y (after aliases) and builds each query's graph from them, which gives the same report as the whole graph (every
-//! count, label and evidence row of the report depends on those rows alone) in a fraction of
-//! the time. Only when a name is unknown (the report then suggests known variables containing
-//! its words) is the whole graph built.
+//! of `hearsay pair`: it keeps the store's postings directories in memory and reads only the
+//! rows that name both X and Y (the two keys' postings intersected), with the two labels from
+//! the aggregate tables' keys (read once): every count, co-mention and evidence row of the
+//! report depends on the relations between X and Y alone, and a label on every claim naming the
+//! variable, which the tables count. With aliases or a claim filter (the tables hold raw keys
+//! and every claim) it reads the rows that name X or Y (after aliases) instead, and builds the
+//! graph from them, which gives the same report as the whole graph. Only when a name is unknown
+//! (the report then suggests known variables containing its words) is the whole graph built.
 
+use super::aggregate::label_of;
 use super::comention::pair_co_mentions;
 use super::evidence::{evidence_text, strongest_rows};
 use super::load::Loaded;
@@ -14,7 +18,7 @@ use super::lookup::{lookup, Looked, VarMatch};
 use crate::claim::{Modality, Polarity};
 use crate::error::StoreError;
 use crate::graph::{ClaimGraph, Filter, Relation};
-use crate::store::{PostingIndex, Store};
+use crate::store::{KeyAggregate, PostingIndex, Store};
 use crate::variables::rollup::Level;
 use crate::variables::{Aliases, Normalizer};
 use serde::Serialize;
@@ -181,12 +185,15 @@ impl Loaded {
 }
 
 /// What every `pair` query needs, loaded once: the store (its search index opens on first use),
-/// the normaliser and aliases, and the postings' directories.
+/// the normaliser and aliases, the postings' directories, and (on the first query that can use
+/// them) the aggregate tables' keys.
 pub struct PairQuery {
     store: Store,
     normalizer: Normalizer,
     aliases: Aliases,
     postings: PostingIndex,
+    /// The `keys` table of each aggregate table the store's queries read (each sorted by key).
+    keys: Option<Vec<Vec<KeyAggregate>>>,
 }
 
 /// The graph that answers one pair, with the two names looked up in it.
@@ -209,18 +216,91 @@ impl PairQuery {
             normalizer,
             aliases,
             postings,
+            keys: None,
         })
     }
 
-    /// The graph of the rows that name `x` or `y` (after aliases) and the filter accepts; the
-    /// whole graph when `whole_graph` is set or a name is unknown.
+    /// The label of the stored key `key` from the aggregate tables (the most frequent surface
+    /// form over every live claim naming it, as the graph labels it); `None` when no live claim
+    /// names it.
+    fn table_label(&mut self, key: &str) -> Result<Option<String>, StoreError> {
+        let tables = match &self.keys {
+            Some(t) => t,
+            None => self.keys.insert(self.store.aggregate_keys()?),
+        };
+        let forms: Vec<&[(String, u32)]> = tables
+            .iter()
+            .filter_map(|t| {
+                let i = t.binary_search_by(|k| k.key.as_str().cmp(key)).ok()?;
+                Some(t[i].forms.as_slice())
+            })
+            .collect();
+        Ok((!forms.is_empty()).then(|| label_of(&forms)))
+    }
+
+    /// The fast plan: the graph of the rows that name both `x` and `y` (the postings of the two
+    /// keys intersected), the two variables' labels from the aggregate tables. Only without
+    /// aliases (a stored key is then its own variable, so a key's table entry is the variable's)
+    /// and without a claim filter (the tables count every claim); `None` when it does not apply
+    /// or a name is no variable (the caller then reads the rows of either name).
+    fn pair_graph(&mut self, x: &str, y: &str) -> Result<Option<PairGraph>, StoreError> {
+        let (kx, ky) = (
+            self.aliases.query_key(&self.normalizer, x),
+            self.aliases.query_key(&self.normalizer, y),
+        );
+        if !self.aliases.is_empty() || kx.is_empty() || ky.is_empty() || kx == ky {
+            return Ok(None);
+        }
+        let (Some(lx), Some(ly)) = (self.table_label(&kx)?, self.table_label(&ky)?) else {
+            return Ok(None);
+        };
+        let group = |k: &str| {
+            if k == kx {
+                Some(0)
+            } else if k == ky {
+                Some(1)
+            } else {
+                None
+            }
+        };
+        let rows = self
+            .store
+            .rows_naming_pairs(&self.postings, 2, group, &[(0, 1)])?;
+        let graph = ClaimGraph::build(rows, &self.aliases, &Filter::default());
+        // Every row of this graph names both, so either both variables are nodes or (no claim
+        // between them) neither is; their labels are the whole store's.
+        let known = |query: &str, key: String, label: String| -> Looked {
+            let node = graph.index.get(&key).copied();
+            (
+                VarMatch {
+                    query: query.to_string(),
+                    key,
+                    label: Some(label),
+                    known: true,
+                    suggestions: Vec::new(),
+                },
+                node,
+            )
+        };
+        let (x, y) = (known(x, kx, lx), known(y, ky, ly));
+        Ok(Some(PairGraph { graph, x, y }))
+    }
+
+    /// The graph that answers the pair: without aliases and claim filter, that of the rows
+    /// naming both `x` and `y`; else that of the rows that name `x` or `y` (after aliases) and
+    /// the filter accepts; the whole graph when `whole_graph` is set or a name is unknown.
     pub fn graph(
-        &self,
+        &mut self,
         x: &str,
         y: &str,
         filter: &Filter,
         whole_graph: bool,
     ) -> Result<PairGraph, StoreError> {
+        if !whole_graph && filter.is_empty() {
+            if let Some(pg) = self.pair_graph(x, y)? {
+                return Ok(pg);
+            }
+        }
         let key = |q: &str| self.aliases.query_key(&self.normalizer, q);
         let (kx, ky) = (key(x), key(y));
         let aliases = &self.aliases;

@@ -330,29 +330,54 @@ impl SegmentAggregates {
     }
 
     pub fn open(path: &Path) -> Result<SegmentAggregates, StoreError> {
-        let bytes = std::fs::read(path).map_err(|e| StoreError::io(path, e))?;
-        let corrupt = |message: String| StoreError::Corrupt {
+        let raw = read_raw(path)?;
+        postcard::from_bytes(&raw).map_err(|e| StoreError::Corrupt {
             path: path.to_path_buf(),
-            message,
-        };
-        let body = bytes
-            .strip_prefix(MAGIC.as_slice())
-            .ok_or_else(|| corrupt("not an aggregate file".into()))?;
-        let (len, body) = body
-            .split_first_chunk::<8>()
-            .ok_or_else(|| corrupt("no length".into()))?;
-        // The length bounds the buffer; a damaged file claiming more than zstd can make of its
-        // bytes is refused before anything is allocated.
-        let len = u64::from_le_bytes(*len);
-        if len > (body.len() as u64).saturating_mul(2048) {
-            return Err(corrupt(format!(
-                "a length of {len} bytes for {} compressed",
-                body.len()
-            )));
-        }
-        let raw = zstd::bulk::decompress(body, len as usize).map_err(|e| corrupt(e.to_string()))?;
-        postcard::from_bytes(&raw).map_err(|e| corrupt(e.to_string()))
+            message: e.to_string(),
+        })
     }
+
+    /// The `keys` table of the file alone: the tables after it are not decoded (a query that
+    /// needs a few variables' labels, `pair`, is spared decoding every relation).
+    pub fn open_keys(path: &Path) -> Result<Vec<KeyAggregate>, StoreError> {
+        /// The file's record up to its first table (postcard stops there).
+        #[derive(Deserialize)]
+        struct KeysOnly {
+            keys: Vec<KeyAggregate>,
+        }
+        let raw = read_raw(path)?;
+        postcard::from_bytes::<KeysOnly>(&raw)
+            .map(|k| k.keys)
+            .map_err(|e| StoreError::Corrupt {
+                path: path.to_path_buf(),
+                message: e.to_string(),
+            })
+    }
+}
+
+/// The decompressed postcard record of an aggregate file.
+fn read_raw(path: &Path) -> Result<Vec<u8>, StoreError> {
+    let bytes = std::fs::read(path).map_err(|e| StoreError::io(path, e))?;
+    let corrupt = |message: String| StoreError::Corrupt {
+        path: path.to_path_buf(),
+        message,
+    };
+    let body = bytes
+        .strip_prefix(MAGIC.as_slice())
+        .ok_or_else(|| corrupt("not an aggregate file".into()))?;
+    let (len, body) = body
+        .split_first_chunk::<8>()
+        .ok_or_else(|| corrupt("no length".into()))?;
+    // The length bounds the buffer; a damaged file claiming more than zstd can make of its
+    // bytes is refused before anything is allocated.
+    let len = u64::from_le_bytes(*len);
+    if len > (body.len() as u64).saturating_mul(2048) {
+        return Err(corrupt(format!(
+            "a length of {len} bytes for {} compressed",
+            body.len()
+        )));
+    }
+    zstd::bulk::decompress(body, len as usize).map_err(|e| corrupt(e.to_string()))
 }
 
 /// The name of segment `seg`'s aggregate file under `manifest`: it fingerprints the files the
@@ -476,6 +501,7 @@ mod tests {
         let p = dir.path().join("x.agg");
         s.write(&p).unwrap();
         assert_eq!(SegmentAggregates::open(&p).unwrap(), s);
+        assert_eq!(SegmentAggregates::open_keys(&p).unwrap(), s.keys);
         std::fs::write(&p, b"HSAGG01\n\x05\0\0\0\0\0\0\0bad").unwrap();
         assert!(SegmentAggregates::open(&p).is_err());
     }

@@ -315,30 +315,38 @@ impl SentenceIndex {
             path: self.dir.join("index"),
             message: format!("sentence columns: {e}"),
         };
-        let mut path = String::new();
         for seg in hits.chunk_by(|a, b| a.segment_ord == b.segment_ord) {
             let columns = searcher.segment_reader(seg[0].segment_ord).fast_fields();
             let starts = columns.u64("start").map_err(column_error)?;
             let Some(paths) = columns.str("path").map_err(column_error)? else {
                 continue;
             };
-            // Sentences of one document are neighbours: look each path up once.
-            let mut last_ord = None;
-            for addr in seg {
-                let (Some(ord), Some(start)) = (
-                    paths.term_ords(addr.doc_id).next(),
-                    starts.first(addr.doc_id),
-                ) else {
-                    continue;
-                };
-                if last_ord != Some(ord) {
-                    path.clear();
-                    paths
-                        .ord_to_str(ord, &mut path)
-                        .map_err(|e| StoreError::io(self.dir.join("index"), e))?;
-                    last_ord = Some(ord);
+            let mut found: Vec<(u64, u64)> = seg
+                .iter()
+                .filter_map(|addr| {
+                    Some((
+                        paths.term_ords(addr.doc_id).next()?,
+                        starts.first(addr.doc_id)?,
+                    ))
+                })
+                .collect();
+            // Each path is looked up once, in ordinal order, in one pass over the dictionary
+            // (a look-up by ordinal alone reads its dictionary block from the start).
+            let mut ords: Vec<u64> = found.iter().map(|f| f.0).collect();
+            ords.sort_unstable();
+            ords.dedup();
+            let mut names: Vec<String> = Vec::with_capacity(ords.len());
+            paths
+                .dictionary()
+                .sorted_ords_to_term_cb(&ords, |b| {
+                    names.push(String::from_utf8_lossy(b).into_owned())
+                })
+                .map_err(|e| StoreError::io(self.dir.join("index"), e))?;
+            found.sort_unstable();
+            for (ord, start) in found {
+                if let Some(name) = ords.binary_search(&ord).ok().and_then(|i| names.get(i)) {
+                    out.insert((name.clone(), start));
                 }
-                out.insert((path.clone(), start));
             }
         }
         Ok(out)

@@ -1,7 +1,7 @@
 //! Reading a store: the manifest, the compact rows the graph is built from, the full claim
 //! records they point at, and sentence lookups in the search index.
 
-use super::aggregates::{self, SegmentAggregates};
+use super::aggregates::{self, KeyAggregate, SegmentAggregates};
 use super::compact;
 use super::index::SentenceIndex;
 use super::manifest::{load, seg_name, Manifest};
@@ -212,6 +212,24 @@ impl Store {
             out.push((TableScope::Segment(seg), SegmentAggregates::open(&p)?));
         }
         Ok(out)
+    }
+
+    /// The `keys` tables of the same tables as [`Store::aggregates`] (the summed one, else each
+    /// live segment's), without their relations: per raw key its surface forms and counts.
+    pub fn aggregate_keys(&self) -> Result<Vec<Vec<KeyAggregate>>, StoreError> {
+        let segs = self.manifest.segments();
+        if segs.len() > 1 {
+            let p = self.dir.join(compact::summed_name(&self.manifest));
+            if p.exists() {
+                return Ok(vec![SegmentAggregates::open_keys(&p)?]);
+            }
+        }
+        segs.into_iter()
+            .map(|seg| {
+                let p = self.dir.join(aggregates::file_name(&self.manifest, seg));
+                SegmentAggregates::open_keys(&p)
+            })
+            .collect()
     }
 
     /// Where claims are in corpus order: a function from a table's scope and a first-claim

@@ -237,8 +237,13 @@ impl RowsFile {
         })
     }
 
-    /// Decompress block `b` and decode its rows.
-    fn block(&self, b: usize) -> Result<Vec<ClaimRow>, StoreError> {
+    /// Decompress block `b` with `dctx` (one decompression context for a run of blocks: making
+    /// one costs more than decompressing a block) and decode its rows.
+    fn block(
+        &self,
+        b: usize,
+        dctx: &mut zstd::bulk::Decompressor<'static>,
+    ) -> Result<Vec<ClaimRow>, StoreError> {
         let (first, at) = self.blocks[b];
         let (next_row, next_at) = self
             .blocks
@@ -249,7 +254,8 @@ impl RowsFile {
         self.file
             .read_exact_at(&mut frame, at)
             .map_err(|e| StoreError::io(&self.path, e))?;
-        let raw = zstd::bulk::decompress(&frame, MAX_BLOCK)
+        let raw = dctx
+            .decompress(&frame, MAX_BLOCK)
             .map_err(|e| corrupt(&self.path, format!("row block at byte {at}: {e}")))?;
         let want = (next_row - first) as usize;
         let mut out = Vec::with_capacity(want);
@@ -274,11 +280,16 @@ impl RowsFile {
         Ok(out)
     }
 
+    fn decompressor(&self) -> Result<zstd::bulk::Decompressor<'static>, StoreError> {
+        zstd::bulk::Decompressor::new().map_err(|e| StoreError::io(&self.path, e))
+    }
+
     /// Every row with its number, in row order, one block in memory at a time.
     pub fn for_each(&self, mut f: impl FnMut(u64, ClaimRow)) -> Result<(), StoreError> {
+        let mut dctx = self.decompressor()?;
         for b in 0..self.blocks.len() {
             let first = self.blocks[b].0;
-            for (i, row) in self.block(b)?.into_iter().enumerate() {
+            for (i, row) in self.block(b, &mut dctx)?.into_iter().enumerate() {
                 f(first + i as u64, row);
             }
         }
@@ -296,6 +307,7 @@ impl RowsFile {
     /// one of them is decompressed once.
     pub fn read(&self, wanted: &[u32]) -> Result<Vec<(u32, ClaimRow)>, StoreError> {
         let mut out = Vec::with_capacity(wanted.len());
+        let mut dctx = self.decompressor()?;
         let mut i = 0;
         while i < wanted.len() {
             let row = wanted[i] as u64;
@@ -308,7 +320,8 @@ impl RowsFile {
             let b = self.blocks.partition_point(|&(first, _)| first <= row) - 1;
             let first = self.blocks[b].0;
             let next = self.blocks.get(b + 1).map_or(self.rows, |x| x.0);
-            let mut rows: Vec<Option<ClaimRow>> = self.block(b)?.into_iter().map(Some).collect();
+            let mut rows: Vec<Option<ClaimRow>> =
+                self.block(b, &mut dctx)?.into_iter().map(Some).collect();
             while i < wanted.len() && (wanted[i] as u64) < next {
                 let at = (wanted[i] as u64 - first) as usize;
                 if let Some(r) = rows.get_mut(at).and_then(Option::take) {
