@@ -55,13 +55,10 @@ pub fn pair_co_mentions(
     if xt.is_empty() || yt.is_empty() || x_key == y_key {
         return Ok(0);
     }
-    let both = store.sentence_ids_with(&[&xt, &yt])?;
-    Ok(unclaimed(
-        g,
-        x,
-        y,
-        both.iter().map(|(d, s)| (d.as_str(), *s)),
-    ))
+    // Tens of thousands of sentences may name both; only the few claimed ones need their
+    // document, so the index counts by path ordinal (what `unclaimed` counts).
+    let both = store.sentence_positions_with(&[&xt, &yt])?;
+    store.count_sentences_except(&both, &claimed_sentences(g, x, y))
 }
 
 /// The sentences naming each of a set of variables, fetched once per variable.

@@ -4,7 +4,7 @@
 
 use crate::error::StoreError;
 use crate::variables::StemCache;
-use std::collections::BTreeSet;
+use std::collections::{BTreeSet, HashSet};
 use std::fs;
 use std::path::{Path, PathBuf};
 use tantivy::collector::DocSetCollector;
@@ -295,6 +295,59 @@ impl SentenceIndex {
             .collect();
         hits.sort_unstable();
         Ok(hits)
+    }
+
+    /// How many of the sentences at `positions` are not among `except` (document, sentence
+    /// start): the same count as [`Self::sentence_ids_at`] less `except`, without making a
+    /// document id for each sentence. The few excepted documents are looked up in each index
+    /// segment's path dictionary instead, and sentences are compared by path ordinal.
+    pub(super) fn count_except(
+        &self,
+        positions: &[u64],
+        except: &HashSet<(&str, u64)>,
+    ) -> Result<usize, StoreError> {
+        let searcher = &self.searcher;
+        let column_error = |e: tantivy::TantivyError| StoreError::Corrupt {
+            path: self.dir.join("index"),
+            message: format!("sentence columns: {e}"),
+        };
+        let mut hits: Vec<DocAddress> = positions
+            .iter()
+            .map(|&p| DocAddress::new((p >> 32) as u32, (p & 0xffff_ffff) as u32))
+            .filter(|a| (a.segment_ord as usize) < searcher_segments(searcher))
+            .collect();
+        hits.sort_unstable();
+        let mut count = 0;
+        for seg in hits.chunk_by(|a, b| a.segment_ord == b.segment_ord) {
+            let columns = searcher.segment_reader(seg[0].segment_ord).fast_fields();
+            let starts = columns.u64("start").map_err(column_error)?;
+            let Some(paths) = columns.str("path").map_err(column_error)? else {
+                continue;
+            };
+            let mut skip: HashSet<(u64, u64)> = HashSet::with_capacity(except.len());
+            for &(doc, start) in except {
+                let ord = paths
+                    .dictionary()
+                    .term_ord(doc)
+                    .map_err(|e| StoreError::io(self.dir.join("index"), e))?;
+                if let Some(ord) = ord {
+                    skip.insert((ord, start));
+                }
+            }
+            let mut found: Vec<(u64, u64)> = seg
+                .iter()
+                .filter_map(|addr| {
+                    Some((
+                        paths.term_ords(addr.doc_id).next()?,
+                        starts.first(addr.doc_id)?,
+                    ))
+                })
+                .collect();
+            found.sort_unstable();
+            found.dedup();
+            count += found.iter().filter(|f| !skip.contains(f)).count();
+        }
+        Ok(count)
     }
 
     /// The (document, sentence start) of the sentences at `positions` (from

@@ -10,7 +10,7 @@ use super::rows::{ClaimRef, ClaimRow, RowsFile};
 use super::writer::CLAIMS_EXT;
 use crate::claim::Claim;
 use crate::error::StoreError;
-use std::collections::{BTreeSet, HashMap};
+use std::collections::{BTreeSet, HashMap, HashSet};
 use std::fs::File;
 use std::io::{Read, Seek, SeekFrom};
 use std::path::{Path, PathBuf};
@@ -343,6 +343,17 @@ impl Store {
         groups: &[&[String]],
     ) -> Result<Vec<u64>, StoreError> {
         self.sentence_index()?.positions_with(groups)
+    }
+
+    /// How many of the sentences at `positions` are not among `except` (document, sentence
+    /// start); what `sentence_ids_at(positions)` less `except` counts, without a document id
+    /// per sentence.
+    pub fn count_sentences_except(
+        &mut self,
+        positions: &[u64],
+        except: &HashSet<(&str, u64)>,
+    ) -> Result<usize, StoreError> {
+        self.sentence_index()?.count_except(positions, except)
     }
 
     /// The (document, sentence start) of the sentences at `positions`.
