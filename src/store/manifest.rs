@@ -26,7 +26,10 @@ use std::path::Path;
 /// the aggregate-reading queries read instead of the rows, and every commit writes the store's
 /// vocabulary (`vocabulary-NNNNNN.json.zst`: per file, abbreviation definitions and the heads of
 /// variable keys), which `variables` and `--roll-up` read; a version 5 store has neither.
-pub(super) const STORE_VERSION: u32 = 7;
+/// 7: rows and postings in compressed blocks, and rows no longer name their segment. 8: the
+/// search index's document store is zstd-compressed (version 7's was lz4), which a binary made
+/// for version 7 cannot open.
+pub(super) const STORE_VERSION: u32 = 8;
 
 /// One input file as the store knows it.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]

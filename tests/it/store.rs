@@ -574,7 +574,7 @@ fn a_rescanned_store_answers_every_query_as_a_fresh_scan() {
     }
 }
 
-/// A store of an older layout (version 6: rows and postings not yet in compressed blocks) is refused by
+/// A store of an older layout (version 7: the search index's document store lz4, not zstd) is refused by
 /// every query with its version named and a request to scan again; never read in part.
 #[test]
 fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
@@ -582,8 +582,8 @@ fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
     let store = demo_store_in(tmp.path());
     let mpath = store.join("manifest.json");
     let mut m: serde_json::Value = serde_json::from_slice(&std::fs::read(&mpath).unwrap()).unwrap();
-    assert_eq!(m["store_version"], 7);
-    m["store_version"] = json!(6);
+    assert_eq!(m["store_version"], 8);
+    m["store_version"] = json!(7);
     std::fs::write(&mpath, serde_json::to_vec(&m).unwrap()).unwrap();
     for args in [
         &["top"][..],
@@ -599,7 +599,7 @@ fn a_store_of_an_older_layout_asks_for_a_rescan_naming_its_version() {
         let err = String::from_utf8_lossy(&out.stderr);
         assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
         assert!(
-            err.contains("schema 6") && err.contains("reads 7") && err.contains("rescan"),
+            err.contains("schema 7") && err.contains("reads 8") && err.contains("rescan"),
             "{args:?}: {err}"
         );
     }
