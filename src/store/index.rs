@@ -8,6 +8,7 @@ use std::collections::{BTreeSet, HashSet};
 use std::fs;
 use std::path::{Path, PathBuf};
 use tantivy::collector::DocSetCollector;
+use tantivy::columnar::StrColumn;
 use tantivy::query::{BooleanQuery, Occur, Query, TermQuery};
 use tantivy::schema::{Field, IndexRecordOption, Schema, TextFieldIndexing, TextOptions, FAST};
 use tantivy::store::{Compressor, ZstdCompressor};
@@ -297,6 +298,46 @@ impl SentenceIndex {
         Ok(hits)
     }
 
+    /// The (path ordinal, sentence start) of the sentences at `positions` (from
+    /// [`Self::positions_with`]), sorted, handed to `each` with their index segment's path
+    /// column, one index segment at a time (ordinals are numbers of that segment's dictionary).
+    fn sentences_by_segment(
+        &self,
+        positions: &[u64],
+        mut each: impl FnMut(&StrColumn, Vec<(u64, u64)>) -> Result<(), StoreError>,
+    ) -> Result<(), StoreError> {
+        let searcher = &self.searcher;
+        let mut hits: Vec<DocAddress> = positions
+            .iter()
+            .map(|&p| DocAddress::new((p >> 32) as u32, (p & 0xffff_ffff) as u32))
+            .filter(|a| (a.segment_ord as usize) < searcher_segments(searcher))
+            .collect();
+        hits.sort_unstable();
+        let column_error = |e: tantivy::TantivyError| StoreError::Corrupt {
+            path: self.dir.join("index"),
+            message: format!("sentence columns: {e}"),
+        };
+        for seg in hits.chunk_by(|a, b| a.segment_ord == b.segment_ord) {
+            let columns = searcher.segment_reader(seg[0].segment_ord).fast_fields();
+            let starts = columns.u64("start").map_err(column_error)?;
+            let Some(paths) = columns.str("path").map_err(column_error)? else {
+                continue;
+            };
+            let mut found: Vec<(u64, u64)> = seg
+                .iter()
+                .filter_map(|addr| {
+                    Some((
+                        paths.term_ords(addr.doc_id).next()?,
+                        starts.first(addr.doc_id)?,
+                    ))
+                })
+                .collect();
+            found.sort_unstable();
+            each(&paths, found)?;
+        }
+        Ok(())
+    }
+
     /// How many of the sentences at `positions` are not among `except` (document, sentence
     /// start): the same count as [`Self::sentence_ids_at`] less `except`, without making a
     /// document id for each sentence. The few excepted documents are looked up in each index
@@ -306,24 +347,8 @@ impl SentenceIndex {
         positions: &[u64],
         except: &HashSet<(&str, u64)>,
     ) -> Result<usize, StoreError> {
-        let searcher = &self.searcher;
-        let column_error = |e: tantivy::TantivyError| StoreError::Corrupt {
-            path: self.dir.join("index"),
-            message: format!("sentence columns: {e}"),
-        };
-        let mut hits: Vec<DocAddress> = positions
-            .iter()
-            .map(|&p| DocAddress::new((p >> 32) as u32, (p & 0xffff_ffff) as u32))
-            .filter(|a| (a.segment_ord as usize) < searcher_segments(searcher))
-            .collect();
-        hits.sort_unstable();
         let mut count = 0;
-        for seg in hits.chunk_by(|a, b| a.segment_ord == b.segment_ord) {
-            let columns = searcher.segment_reader(seg[0].segment_ord).fast_fields();
-            let starts = columns.u64("start").map_err(column_error)?;
-            let Some(paths) = columns.str("path").map_err(column_error)? else {
-                continue;
-            };
+        self.sentences_by_segment(positions, |paths, mut found| {
             let mut skip: HashSet<(u64, u64)> = HashSet::with_capacity(except.len());
             for &(doc, start) in except {
                 let ord = paths
@@ -334,19 +359,10 @@ impl SentenceIndex {
                     skip.insert((ord, start));
                 }
             }
-            let mut found: Vec<(u64, u64)> = seg
-                .iter()
-                .filter_map(|addr| {
-                    Some((
-                        paths.term_ords(addr.doc_id).next()?,
-                        starts.first(addr.doc_id)?,
-                    ))
-                })
-                .collect();
-            found.sort_unstable();
             found.dedup();
             count += found.iter().filter(|f| !skip.contains(f)).count();
-        }
+            Ok(())
+        })?;
         Ok(count)
     }
 
@@ -357,36 +373,10 @@ impl SentenceIndex {
         positions: &[u64],
     ) -> Result<BTreeSet<(String, u64)>, StoreError> {
         let mut out = BTreeSet::new();
-        let mut hits: Vec<DocAddress> = positions
-            .iter()
-            .map(|&p| DocAddress::new((p >> 32) as u32, (p & 0xffff_ffff) as u32))
-            .filter(|a| (a.segment_ord as usize) < searcher_segments(&self.searcher))
-            .collect();
-        hits.sort_unstable();
-        let searcher = &self.searcher;
-        let column_error = |e: tantivy::TantivyError| StoreError::Corrupt {
-            path: self.dir.join("index"),
-            message: format!("sentence columns: {e}"),
-        };
-        for seg in hits.chunk_by(|a, b| a.segment_ord == b.segment_ord) {
-            let columns = searcher.segment_reader(seg[0].segment_ord).fast_fields();
-            let starts = columns.u64("start").map_err(column_error)?;
-            let Some(paths) = columns.str("path").map_err(column_error)? else {
-                continue;
-            };
-            let mut found: Vec<(u64, u64)> = seg
-                .iter()
-                .filter_map(|addr| {
-                    Some((
-                        paths.term_ords(addr.doc_id).next()?,
-                        starts.first(addr.doc_id)?,
-                    ))
-                })
-                .collect();
+        self.sentences_by_segment(positions, |paths, found| {
             // Each path is looked up once, in ordinal order, in one pass over the dictionary
             // (a look-up by ordinal alone reads its dictionary block from the start).
             let mut ords: Vec<u64> = found.iter().map(|f| f.0).collect();
-            ords.sort_unstable();
             ords.dedup();
             let mut names: Vec<String> = Vec::with_capacity(ords.len());
             paths
@@ -395,13 +385,13 @@ impl SentenceIndex {
                     names.push(String::from_utf8_lossy(b).into_owned())
                 })
                 .map_err(|e| StoreError::io(self.dir.join("index"), e))?;
-            found.sort_unstable();
             for (ord, start) in found {
                 if let Some(name) = ords.binary_search(&ord).ok().and_then(|i| names.get(i)) {
                     out.insert((name.clone(), start));
                 }
             }
-        }
+            Ok(())
+        })?;
         Ok(out)
     }
 }
