@@ -219,13 +219,10 @@ pub fn co_mention_pairs(
             {
                 continue;
             }
-            let both = store.sentence_ids_at(&intersection(&sets[i], &sets[j]))?;
-            let sentences = unclaimed(
-                g,
-                Some(a),
-                Some(b),
-                both.iter().map(|(d, s)| (d.as_str(), *s)),
-            );
+            let sentences = store.count_sentences_except(
+                &intersection(&sets[i], &sets[j]),
+                &claimed_sentences(g, Some(a), Some(b)),
+            )?;
             if sentences > 0 {
                 out.push(CoMention {
                     a: g.graph[a].label.clone(),
