@@ -335,9 +335,9 @@ impl Store {
     }
 
     /// The positions in the sentence index of every sentence that contains every term of each
-    /// group, sorted: numbers that [`Store::sentence_ids_at`] turns into (document, sentence
-    /// start), valid for this opened store. A set of positions is a sixth the memory of the
-    /// ids, so a query that intersects many sets keeps positions and asks for ids last.
+    /// group, sorted: numbers valid for this opened store, which
+    /// [`Store::count_sentences_except`] counts. A set of positions is a sixth the memory of the
+    /// (document, sentence start) ids, so a query that intersects many sets keeps positions.
     pub fn sentence_positions_with(
         &mut self,
         groups: &[&[String]],
@@ -346,22 +346,13 @@ impl Store {
     }
 
     /// How many of the sentences at `positions` are not among `except` (document, sentence
-    /// start); what `sentence_ids_at(positions)` less `except` counts, without a document id
-    /// per sentence.
+    /// start), without making a document id for each sentence.
     pub fn count_sentences_except(
         &mut self,
         positions: &[u64],
         except: &HashSet<(&str, u64)>,
     ) -> Result<usize, StoreError> {
         self.sentence_index()?.count_except(positions, except)
-    }
-
-    /// The (document, sentence start) of the sentences at `positions`.
-    pub fn sentence_ids_at(
-        &mut self,
-        positions: &[u64],
-    ) -> Result<BTreeSet<(String, u64)>, StoreError> {
-        self.sentence_index()?.sentence_ids_at(positions)
     }
 
     fn sentence_index(&mut self) -> Result<&SentenceIndex, StoreError> {
