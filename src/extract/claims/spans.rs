@@ -183,11 +183,8 @@ impl Extractor {
                 }))
     }
 
-    /// "Germs are microscopic organisms that cause disease": the antecedent of a relative
-    /// pronoun that is the complement of a copula names what the clause's subject is said to
-    /// be, so the slot is the subject ("germs"). Only a subject that opens its clause.
-    fn defined_subject(&self, toks: &[Token], np: Span, blocked: &Blocked<'_>) -> Option<Span> {
-        let mut k = np.from;
+    /// Where the run of determiners just before token `k` starts (`k` itself when there is none).
+    fn determiners_before(&self, toks: &[Token], mut k: usize) -> usize {
         while k > 0
             && self
                 .lexicon
@@ -196,19 +193,19 @@ impl Extractor {
         {
             k -= 1;
         }
+        k
+    }
+
+    /// "Germs are microscopic organisms that cause disease": the antecedent of a relative
+    /// pronoun that is the complement of a copula names what the clause's subject is said to
+    /// be, so the slot is the subject ("germs"). Only a subject that opens its clause.
+    fn defined_subject(&self, toks: &[Token], np: Span, blocked: &Blocked<'_>) -> Option<Span> {
+        let k = self.determiners_before(toks, np.from);
         if k < 2 || !matches!(toks[k - 1].lower.as_str(), "is" | "are" | "was" | "were") {
             return None;
         }
         let subject = self.np_back(toks, k - 1, blocked);
-        let mut s = subject.from;
-        while s > 0
-            && self
-                .lexicon
-                .determiners
-                .contains(toks[s - 1].lower.as_str())
-        {
-            s -= 1;
-        }
+        let s = self.determiners_before(toks, subject.from);
         let opens = s == 0 || Self::clause_punct(&toks[s - 1]);
         let has_noun = toks[subject.from..subject.to]
             .iter()
