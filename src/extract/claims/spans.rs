@@ -578,15 +578,7 @@ impl Extractor {
         blocked: &Blocked<'_>,
     ) -> Vec<Span> {
         let mut out = Vec::new();
-        let mut from = span.from;
-        while from > 0
-            && self
-                .lexicon
-                .determiners
-                .contains(toks[from - 1].lower.as_str())
-        {
-            from -= 1;
-        }
+        let mut from = self.determiners_before(toks, span.from);
         let mut first = true;
         while out.len() < 4 && from > 0 {
             let mut i = from;
